@@ -1,0 +1,19 @@
+/** Two projects: fast unit tests (engine, functions, pane logic) and browser tests (headless Chromium). */
+const tsJest = ["ts-jest", { tsconfig: "tsconfig.json", diagnostics: { warnOnly: false } }];
+module.exports = {
+  projects: [
+    {
+      displayName: "unit",
+      testEnvironment: "node",
+      testMatch: ["<rootDir>/test/unit/**/*.test.ts"],
+      transform: { "^.+\\.tsx?$": tsJest },
+      moduleNameMapper: { "^office-addin-manifest$": "<rootDir>/test/support/office-addin-manifest-stub.js" },
+    },
+    {
+      displayName: "browser",
+      testEnvironment: "node",
+      testMatch: ["<rootDir>/test/browser/**/*.test.ts"],
+      transform: { "^.+\\.tsx?$": tsJest },
+    },
+  ],
+};
