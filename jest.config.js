@@ -1,5 +1,5 @@
 /** Two projects: fast unit tests (engine, functions, pane logic) and browser tests (headless Chromium). */
-const tsJest = ["ts-jest", { tsconfig: "tsconfig.json", diagnostics: { warnOnly: false } }];
+const tsJest = ["ts-jest", { tsconfig: "tsconfig.json" }];
 module.exports = {
   projects: [
     {

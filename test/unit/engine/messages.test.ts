@@ -1,0 +1,31 @@
+import { formatMessage, listNames, MESSAGES, OddsmithError, problem } from "../../../src/engine/messages";
+
+describe("message catalogue", () => {
+  test("fills every placeholder it is given and marks missing ones with ?", () => {
+    expect(formatMessage("EMPTY_RANGE", { argument: "labels" })).toBe(
+      "The labels range has no data. Select a range that holds at least one row of values.",
+    );
+    expect(formatMessage("BAD_WEIGHT", { row: 3 })).toContain("row 3 is ?");
+  });
+
+  test("problem() carries the code and the cell error of its entry", () => {
+    const e = problem("TOO_FEW_ROWS", { rows: 2, parameters: 3 });
+    expect(e).toBeInstanceOf(OddsmithError);
+    expect(e.code).toBe("TOO_FEW_ROWS");
+    expect(e.cellError).toBe("#N/A");
+    expect(e.message).toBe("Only 2 usable rows for 3 parameters. Add rows, remove predictors, or set a penalty.");
+  });
+
+  test("every entry says what to do or names what was found", () => {
+    for (const [code, entry] of Object.entries(MESSAGES)) {
+      expect([code, entry.template.length > 30]).toEqual([code, true]);
+      expect(["#VALUE!", "#N/A"]).toContain(entry.cellError);
+    }
+  });
+
+  test("listNames quotes, joins with 'and', and shortens long lists", () => {
+    expect(listNames(["a"])).toBe('"a"');
+    expect(listNames(["a", "b", "c"])).toBe('"a", "b" and "c"');
+    expect(listNames(["a", "b", "c", "d"], 2)).toBe('"a", "b" and 2 more');
+  });
+});
