@@ -55,6 +55,34 @@ export const MESSAGES = {
     template:
       "Row {row} has {successes} successes out of {trials} trials. Successes must lie between 0 and the number of trials.",
   },
+  RAGGED_RANGE: {
+    cellError: "#VALUE!",
+    title: "Rows of different lengths",
+    template:
+      "Row {row} of the {argument} range has {got} cells but row 1 has {expected}. Pass a rectangular range.",
+  },
+  NOT_FINITE_VALUE: {
+    cellError: "#VALUE!",
+    title: "Value that is not a finite number",
+    template:
+      "The {argument} value in row {row}, column {column} is {value}, which is not a finite number. Enter a finite number or clear the cell.",
+  },
+  SINGLE_COLUMN_NEEDED: {
+    cellError: "#VALUE!",
+    title: "One column expected",
+    template: "The {argument} range has {columns} columns. Select a single column.",
+  },
+  COLUMN_NOT_FOUND: {
+    cellError: "#VALUE!",
+    title: "Column not found",
+    template: "There is no predictor column named \"{name}\". Columns found: {columns}.",
+  },
+  LEVEL_NOT_FOUND: {
+    cellError: "#VALUE!",
+    title: "Category not in the column",
+    template:
+      "The reference category \"{level}\" does not occur in the {column} column. Categories found: {levels}.",
+  },
   // ---- options (#VALUE!) -----------------------------------------------------------------------
   UNKNOWN_OPTION: {
     cellError: "#VALUE!",
