@@ -1,0 +1,298 @@
+/**
+ * Dense symmetric-matrix kernels for the fitting loops. Matrices are Float64Array, row-major, n*n.
+ *
+ * Policy: factorizations report failure in their result (`ok: false`, the failing column) rather
+ * than throwing; the caller decides what that means for the user. Symmetric products are
+ * accumulated over the upper triangle only and then mirrored, so they are exactly symmetric.
+ * References: G. H. Golub & C. F. Van Loan, Matrix Computations, 4th ed. (2013), §4.2 (Cholesky),
+ * §5.4.2 (rank-revealing / pivoted Cholesky); N. J. Higham, "Analysis of the Cholesky decomposition
+ * of a semi-definite matrix" (1990).
+ */
+
+/** A symmetric (or triangular) matrix stored row-major in a Float64Array of length n*n. */
+export type SquareMatrix = Float64Array;
+
+/** Copy the upper triangle onto the lower one, in place: A[j][i] = A[i][j] for i < j. */
+export function mirrorUpper(a: SquareMatrix, n: number): SquareMatrix {
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) a[j * n + i] = a[i * n + j];
+  }
+  return a;
+}
+
+/**
+ * Weighted cross-product X'WX of columnar data, accumulated over the upper triangle and mirrored.
+ * `columns[j][i]` is x_ij; a null weight array means W = I. Writes into `out` (n*n, n = columns)
+ * and returns it. Cost p(p+1)/2 passes over the rows; allocates nothing.
+ * @example weightedCrossProduct([x1, x2], w, 100, new Float64Array(4))
+ */
+export function weightedCrossProduct(
+  columns: readonly Float64Array[],
+  weights: Float64Array | null,
+  rows: number,
+  out: SquareMatrix,
+): SquareMatrix {
+  const p = columns.length;
+  for (let j = 0; j < p; j++) {
+    const xj = columns[j];
+    for (let k = j; k < p; k++) {
+      const xk = columns[k];
+      let s = 0;
+      if (weights) {
+        for (let i = 0; i < rows; i++) s += weights[i] * xj[i] * xk[i];
+      } else {
+        for (let i = 0; i < rows; i++) s += xj[i] * xk[i];
+      }
+      out[j * p + k] = s;
+    }
+  }
+  return mirrorUpper(out, p);
+}
+
+/**
+ * Weighted cross-product X'Wv of columnar data with one vector; writes into `out` (length p).
+ */
+export function weightedCrossVector(
+  columns: readonly Float64Array[],
+  weights: Float64Array | null,
+  v: Float64Array,
+  rows: number,
+  out: Float64Array,
+): Float64Array {
+  for (let j = 0; j < columns.length; j++) {
+    const xj = columns[j];
+    let s = 0;
+    if (weights) {
+      for (let i = 0; i < rows; i++) s += weights[i] * xj[i] * v[i];
+    } else {
+      for (let i = 0; i < rows; i++) s += xj[i] * v[i];
+    }
+    out[j] = s;
+  }
+  return out;
+}
+
+/** Outcome of a Cholesky factorization. */
+export interface CholeskyResult {
+  /** True when every pivot exceeded the tolerance. */
+  ok: boolean;
+  /** Lower-triangular factor L (row-major n*n, A = L L'); upper part is zero. Partial when !ok. */
+  factor: SquareMatrix;
+  /** First column (0-based) whose pivot fell below the tolerance, or -1. */
+  failedColumn: number;
+}
+
+/** Default relative pivot tolerance for {@link cholesky}. */
+export const CHOLESKY_RELATIVE_TOLERANCE = 1e-13;
+
+/**
+ * Cholesky factorization A = L L' of a symmetric positive-definite matrix (Golub & Van Loan §4.2.5).
+ * A pivot d_j is accepted when d_j > tol * max(A_jj, max_k A_kk * eps-floor): failure is reported
+ * in the result, never thrown. Reads only the lower triangle of A.
+ * @param a - symmetric matrix, row-major n*n (not modified)
+ * @param n - order
+ * @param relTol - pivot must exceed relTol * max diagonal of A [1e-13]
+ */
+export function cholesky(a: SquareMatrix, n: number, relTol = CHOLESKY_RELATIVE_TOLERANCE): CholeskyResult {
+  const l = new Float64Array(n * n);
+  let maxDiag = 0;
+  for (let i = 0; i < n; i++) maxDiag = Math.max(maxDiag, Math.abs(a[i * n + i]));
+  const floor = relTol * maxDiag;
+  for (let j = 0; j < n; j++) {
+    let d = a[j * n + j];
+    for (let k = 0; k < j; k++) d -= l[j * n + k] * l[j * n + k];
+    if (!(d > floor) || !(d > 0)) return { ok: false, factor: l, failedColumn: j };
+    const ljj = Math.sqrt(d);
+    l[j * n + j] = ljj;
+    for (let i = j + 1; i < n; i++) {
+      let s = a[i * n + j];
+      for (let k = 0; k < j; k++) s -= l[i * n + k] * l[j * n + k];
+      l[i * n + j] = s / ljj;
+    }
+  }
+  return { ok: true, factor: l, failedColumn: -1 };
+}
+
+/**
+ * Solve A x = b given the Cholesky factor L of A (forward then back substitution).
+ * Writes into `out` when given (may alias b) and returns it.
+ */
+export function choleskySolve(l: SquareMatrix, n: number, b: ArrayLike<number>, out = new Float64Array(n)): Float64Array {
+  for (let i = 0; i < n; i++) {
+    let s = b[i];
+    for (let k = 0; k < i; k++) s -= l[i * n + k] * out[k];
+    out[i] = s / l[i * n + i];
+  }
+  for (let i = n - 1; i >= 0; i--) {
+    let s = out[i];
+    for (let k = i + 1; k < n; k++) s -= l[k * n + i] * out[k];
+    out[i] = s / l[i * n + i];
+  }
+  return out;
+}
+
+/**
+ * Inverse of A from its Cholesky factor: A^{-1} = L^{-T} L^{-1}, exactly symmetric (upper triangle
+ * computed, then mirrored).
+ */
+export function choleskyInverse(l: SquareMatrix, n: number): SquareMatrix {
+  // Invert L in place into linv (lower triangular).
+  const linv = new Float64Array(n * n);
+  for (let j = 0; j < n; j++) {
+    linv[j * n + j] = 1 / l[j * n + j];
+    for (let i = j + 1; i < n; i++) {
+      let s = 0;
+      for (let k = j; k < i; k++) s -= l[i * n + k] * linv[k * n + j];
+      linv[i * n + j] = s / l[i * n + i];
+    }
+  }
+  // A^{-1}[i][j] = sum_k linv[k][i] * linv[k][j], k >= max(i, j).
+  const inv = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      let s = 0;
+      for (let k = j; k < n; k++) s += linv[k * n + i] * linv[k * n + j];
+      inv[i * n + j] = s;
+    }
+  }
+  return mirrorUpper(inv, n);
+}
+
+/**
+ * Solve the symmetric positive-definite system A x = b; null when A is not positive definite at the
+ * given relative tolerance.
+ */
+export function solveSymmetric(a: SquareMatrix, n: number, b: ArrayLike<number>, relTol = CHOLESKY_RELATIVE_TOLERANCE): Float64Array | null {
+  const c = cholesky(a, n, relTol);
+  return c.ok ? choleskySolve(c.factor, n, b) : null;
+}
+
+/**
+ * Inverse of a symmetric positive-definite matrix; null when it is not positive definite at the
+ * given relative tolerance.
+ */
+export function invertSymmetric(a: SquareMatrix, n: number, relTol = CHOLESKY_RELATIVE_TOLERANCE): SquareMatrix | null {
+  const c = cholesky(a, n, relTol);
+  return c.ok ? choleskyInverse(c.factor, n) : null;
+}
+
+/** Outcome of {@link rankRevealingCholesky}. */
+export interface RankRevealingResult {
+  /** Numerical rank. */
+  rank: number;
+  /** Indices of the columns kept (linearly independent at the tolerance), in their original order. */
+  independent: number[];
+  /** Indices of the columns judged linearly dependent on earlier kept columns. */
+  dependent: number[];
+  /**
+   * For each column, the share of its (scaled) diagonal left after projecting it on the kept
+   * columns before it: 1 - R^2 of that column on them. 1 for the first column; NaN for a zero column.
+   */
+  residualShare: Float64Array;
+}
+
+/** Default tolerance of {@link rankRevealingCholesky} on 1 - R^2 (squared residual-norm ratio). */
+export const RANK_TOLERANCE = 1e-9;
+
+/**
+ * Rank-revealing Cholesky of a symmetric positive semi-definite Gram matrix A = X'WX, in column
+ * order with deferral: column j is kept when its residual diagonal after eliminating the columns
+ * kept before it is more than `tol` times its own diagonal (i.e. 1 - R^2 > tol on the earlier
+ * kept columns); otherwise it is named dependent and skipped. This is the Gram-matrix analogue of
+ * the limited column pivoting R's glm uses (LINPACK dqrdc2): the later column of a dependent set
+ * is the one dropped. Columns whose diagonal is zero (all-zero columns) are dependent.
+ * Reference: Golub & Van Loan (2013) §5.4.2; Higham (1990).
+ * @param a - symmetric matrix, row-major n*n (not modified)
+ * @param n - order
+ * @param tol - threshold on 1 - R^2 [1e-9]
+ */
+export function rankRevealingCholesky(a: SquareMatrix, n: number, tol = RANK_TOLERANCE): RankRevealingResult {
+  const l = new Float64Array(n * n);
+  const kept: number[] = [];
+  const dependent: number[] = [];
+  const residualShare = new Float64Array(n);
+  let maxDiag = 0;
+  for (let j = 0; j < n; j++) maxDiag = Math.max(maxDiag, a[j * n + j]);
+  for (let j = 0; j < n; j++) {
+    const ajj = a[j * n + j];
+    if (!(ajj > maxDiag * 1e-300) || !(ajj > 0)) {
+      residualShare[j] = NaN;
+      dependent.push(j);
+      continue;
+    }
+    // Row j of L restricted to kept columns: solve L_kk * r = a_kj.
+    let d = ajj;
+    for (let t = 0; t < kept.length; t++) {
+      const k = kept[t];
+      let s = a[j * n + k];
+      for (let u = 0; u < t; u++) s -= l[j * n + kept[u]] * l[k * n + kept[u]];
+      const v = s / l[k * n + k];
+      l[j * n + k] = v;
+      d -= v * v;
+    }
+    residualShare[j] = d / ajj;
+    if (d / ajj > tol) {
+      l[j * n + j] = Math.sqrt(d);
+      kept.push(j);
+    } else {
+      dependent.push(j);
+    }
+  }
+  return { rank: kept.length, independent: kept, dependent, residualShare };
+}
+
+/** Take the sub-matrix of A (n*n) on the given index set. */
+export function subMatrix(a: SquareMatrix, n: number, idx: readonly number[]): SquareMatrix {
+  const m = idx.length;
+  const out = new Float64Array(m * m);
+  for (let i = 0; i < m; i++) {
+    for (let j = 0; j < m; j++) out[i * m + j] = a[idx[i] * n + idx[j]];
+  }
+  return out;
+}
+
+/** Matrix-vector product y = A x for a square row-major A. */
+export function multiplyVector(a: SquareMatrix, n: number, x: ArrayLike<number>, out = new Float64Array(n)): Float64Array {
+  for (let i = 0; i < n; i++) {
+    let s = 0;
+    for (let j = 0; j < n; j++) s += a[i * n + j] * x[j];
+    out[i] = s;
+  }
+  return out;
+}
+
+/** Quadratic form x' A x for a square row-major A. */
+export function quadraticForm(a: SquareMatrix, n: number, x: ArrayLike<number>): number {
+  let s = 0;
+  for (let i = 0; i < n; i++) {
+    let r = 0;
+    for (let j = 0; j < n; j++) r += a[i * n + j] * x[j];
+    s += x[i] * r;
+  }
+  return s;
+}
+
+/**
+ * Congruence transform B = T A T' for square row-major T (n*n) and symmetric A; the result is
+ * mirrored so it is exactly symmetric. Used to map a covariance from the scaled fitting
+ * coordinates back to the original ones.
+ */
+export function congruence(t: SquareMatrix, a: SquareMatrix, n: number): SquareMatrix {
+  const ta = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let k = 0; k < n; k++) {
+      const tik = t[i * n + k];
+      if (tik === 0) continue;
+      for (let j = 0; j < n; j++) ta[i * n + j] += tik * a[k * n + j];
+    }
+  }
+  const out = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) {
+    for (let j = i; j < n; j++) {
+      let s = 0;
+      for (let k = 0; k < n; k++) s += ta[i * n + k] * t[j * n + k];
+      out[i * n + j] = s;
+    }
+  }
+  return mirrorUpper(out, n);
+}

@@ -1,0 +1,142 @@
+import {
+  cholesky,
+  choleskyInverse,
+  choleskySolve,
+  congruence,
+  invertSymmetric,
+  mirrorUpper,
+  multiplyVector,
+  quadraticForm,
+  rankRevealingCholesky,
+  solveSymmetric,
+  subMatrix,
+  weightedCrossProduct,
+  weightedCrossVector,
+} from "../../../src/engine/linalg";
+
+/** Well-conditioned small systems: results are exact to a few ulps times the condition number. */
+const TOL = 1e-12;
+
+/** A fixed, symmetric positive-definite 3x3 (a hand-made example; eigenvalues all positive). */
+const A3 = new Float64Array([4, 12, -16, 12, 37, -43, -16, -43, 98]);
+
+describe("cholesky", () => {
+  test("factors the textbook 3x3 example into integer L (L = [2,0,0; 6,1,0; -8,5,3])", () => {
+    // Worked example widely used for Cholesky, checked by hand: L L' reproduces A3.
+    const c = cholesky(A3, 3);
+    expect(c.ok).toBe(true);
+    expect(Array.from(c.factor)).toEqual([2, 0, 0, 6, 1, 0, -8, 5, 3]);
+  });
+  test("reports failure (not an exception) for an indefinite matrix and names the column", () => {
+    const c = cholesky(new Float64Array([1, 2, 2, 1]), 2);
+    expect(c.ok).toBe(false);
+    expect(c.failedColumn).toBe(1);
+  });
+  test("reports failure for a singular matrix judged with the relative tolerance", () => {
+    // [[1, 1], [1, 1 + d]] has second pivot d: 1e-15 is below the default 1e-13, 1e-6 is above it
+    // but below a caller's 1e-5.
+    const a = new Float64Array([1, 1, 1, 1 + 1e-15]);
+    expect(cholesky(a, 2).ok).toBe(false);
+    expect(cholesky(new Float64Array([1, 1, 1, 1 + 1e-6]), 2).ok).toBe(true);
+    expect(cholesky(new Float64Array([1, 1, 1, 1 + 1e-6]), 2, 1e-5).ok).toBe(false);
+  });
+  test("solve and inverse reproduce the identity", () => {
+    const b = [1, -2, 3];
+    const x = solveSymmetric(A3, 3, b)!;
+    const back = multiplyVector(A3, 3, x);
+    for (let i = 0; i < 3; i++) expect(Math.abs(back[i] - b[i])).toBeLessThan(TOL * 100);
+    const inv = invertSymmetric(A3, 3)!;
+    for (let i = 0; i < 3; i++) {
+      for (let j = 0; j < 3; j++) {
+        let s = 0;
+        for (let k = 0; k < 3; k++) s += A3[i * 3 + k] * inv[k * 3 + j];
+        expect(Math.abs(s - (i === j ? 1 : 0))).toBeLessThan(TOL * 100);
+      }
+    }
+    // exactly symmetric
+    expect(inv[1]).toBe(inv[3]);
+    expect(invertSymmetric(new Float64Array([1, 1, 1, 1]), 2)).toBeNull();
+    expect(solveSymmetric(new Float64Array([1, 1, 1, 1]), 2, [1, 1])).toBeNull();
+  });
+  test("choleskySolve may write into its right-hand side", () => {
+    const c = cholesky(A3, 3);
+    const b = new Float64Array([1, 2, 3]);
+    const expected = choleskySolve(c.factor, 3, b);
+    choleskySolve(c.factor, 3, b, b);
+    expect(Array.from(b)).toEqual(Array.from(expected));
+    expect(choleskyInverse(c.factor, 3).length).toBe(9);
+  });
+});
+
+describe("weighted cross products", () => {
+  test("X'WX is exactly symmetric and equals the direct sum", () => {
+    const x1 = new Float64Array([1, 2, 3, 4]);
+    const x2 = new Float64Array([0.5, -1, 2, 0]);
+    const w = new Float64Array([1, 2, 0, 3]);
+    const out = weightedCrossProduct([x1, x2], w, 4, new Float64Array(4));
+    expect(out[0]).toBe(1 + 8 + 0 + 48);
+    expect(out[1]).toBe(0.5 - 4 + 0 + 0);
+    expect(out[2]).toBe(out[1]);
+    expect(out[3]).toBe(0.25 + 2 + 0 + 0);
+    const v = weightedCrossVector([x1, x2], null, new Float64Array([1, 1, 1, 1]), 4, new Float64Array(2));
+    expect(Array.from(v)).toEqual([10, 1.5]);
+  });
+  test("mirrorUpper copies the upper triangle down", () => {
+    expect(Array.from(mirrorUpper(new Float64Array([1, 2, 99, 3]), 2))).toEqual([1, 2, 2, 3]);
+  });
+});
+
+describe("rankRevealingCholesky", () => {
+  test("names the later column of an exact linear dependence x3 = x1 + 2 x2", () => {
+    const n = 50;
+    const ones = new Float64Array(n).fill(1);
+    const x1 = new Float64Array(n);
+    const x2 = new Float64Array(n);
+    const x3 = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      x1[i] = Math.sin(i);
+      x2[i] = Math.cos(3 * i) * 10;
+      x3[i] = x1[i] + 2 * x2[i];
+    }
+    const g = weightedCrossProduct([ones, x1, x2, x3], null, n, new Float64Array(16));
+    const r = rankRevealingCholesky(g, 4);
+    expect(r.rank).toBe(3);
+    expect(r.dependent).toEqual([3]);
+    expect(r.independent).toEqual([0, 1, 2]);
+    expect(r.residualShare[3]).toBeLessThan(1e-12);
+  });
+  test("keeps a nearly but not exactly dependent column (1 - R^2 = 1e-6 > tolerance)", () => {
+    const n = 40;
+    const x1 = new Float64Array(n);
+    const x2 = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      x1[i] = i % 2 === 0 ? 1 : -1;
+      x2[i] = x1[i] + (i % 4 < 2 ? 1e-3 : -1e-3);
+    }
+    const g = weightedCrossProduct([x1, x2], null, n, new Float64Array(4));
+    const r = rankRevealingCholesky(g, 2);
+    expect(r.rank).toBe(2);
+    expect(Math.abs(r.residualShare[1] - 1e-6 / (1 + 1e-6))).toBeLessThan(1e-9);
+    expect(rankRevealingCholesky(g, 2, 1e-5).dependent).toEqual([1]);
+  });
+  test("an all-zero column is dependent", () => {
+    const g = new Float64Array([2, 0, 0, 0]);
+    const r = rankRevealingCholesky(g, 2);
+    expect(r.dependent).toEqual([1]);
+    expect(r.residualShare[1]).toBeNaN();
+  });
+});
+
+describe("small helpers", () => {
+  test("subMatrix, quadraticForm and congruence", () => {
+    expect(Array.from(subMatrix(A3, 3, [0, 2]))).toEqual([4, -16, -16, 98]);
+    expect(quadraticForm(A3, 3, [1, 0, 1])).toBe(4 - 32 + 98);
+    // T = diag(2, 1, 1): T A T' scales row and column 0 by 2.
+    const t = new Float64Array([2, 0, 0, 0, 1, 0, 0, 0, 1]);
+    const b = congruence(t, A3, 3);
+    expect(b[0]).toBe(16);
+    expect(b[1]).toBe(24);
+    expect(b[3]).toBe(24);
+    expect(b[8]).toBe(98);
+  });
+});
