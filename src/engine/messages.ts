@@ -83,6 +83,23 @@ export const MESSAGES = {
     template:
       "The reference category \"{level}\" does not occur in the {column} column. Categories found: {levels}.",
   },
+  COLUMN_COUNT_MISMATCH: {
+    cellError: "#VALUE!",
+    title: "Different columns than in training",
+    template:
+      "The {argument} range has {got} columns but the model was trained on {expected} ({columns}). Select the same columns in the same order, or include their names in the first row.",
+  },
+  EMPTY_COLUMN_IGNORED: {
+    cellError: "#N/A",
+    title: "Blank column left out",
+    template: "The {column} column has no values, so it was left out of the model.",
+  },
+  LEVELS_POOLED: {
+    cellError: "#N/A",
+    title: "Rare categories pooled",
+    template:
+      "{count} categories of {column} ({levels}) occur in fewer than {min} rows and were pooled into \"(other)\".",
+  },
   // ---- options (#VALUE!) -----------------------------------------------------------------------
   UNKNOWN_OPTION: {
     cellError: "#VALUE!",
@@ -148,6 +165,30 @@ export const MESSAGES = {
     template:
       "{columns} separate the classes for {count} rows (for example rows {rows}): some estimates run off to infinity. Use bias reduction (firth=true) or a penalty.",
   },
+  CLASSES_SEPARATED: {
+    cellError: "#N/A",
+    title: "Classes separated (multi-class)",
+    template:
+      "{separated} can be told apart perfectly by {columns} ({count} rows, for example rows {rows}): maximum-likelihood estimates do not exist (they run off to infinity), so none are shown. Set a penalty, or remove the separating columns, or merge the separated classes.",
+  },
+  EMPTY_CLASS: {
+    cellError: "#N/A",
+    title: "Class without rows",
+    template:
+      "The class \"{label}\" has no usable rows (rows with a missing value or zero weight do not count), so its probability cannot be estimated. Remove it from the class list or add rows of it.",
+  },
+  SYMMETRIC_NEEDS_PENALTY: {
+    cellError: "#VALUE!",
+    title: "Symmetric form needs a penalty",
+    template:
+      "The symmetric form (one equation per class) is only identifiable with a penalty, but penalty is {penalty}. Set a penalty above 0, or use the reference-class form.",
+  },
+  CLASS_INDEX_OUT_OF_RANGE: {
+    cellError: "#VALUE!",
+    title: "Label outside the class list",
+    template:
+      "Row {row} has class number {value}, but the class list has {count} classes ({classes}). Use a class number from 0 to {last}, or a negative number for a missing label.",
+  },
   ALIASED_COLUMNS: {
     cellError: "#N/A",
     title: "Aliased columns",
@@ -188,11 +229,133 @@ export const MESSAGES = {
     title: "Recipe not understood",
     template: "The recipe \"{text}\" could not be read at \"{at}\". {hint}",
   },
+  RECIPE_UNKNOWN_TRANSFORM: {
+    cellError: "#VALUE!",
+    title: "Unknown basis transform",
+    template: "\"{name}\" in the recipe is not a basis transform. Use one of: {valid}.",
+  },
+  RECIPE_UNKNOWN_COLUMN: {
+    cellError: "#VALUE!",
+    title: "Recipe names a missing column",
+    template:
+      "The recipe names the column \"{column}\", but the {argument} range has no such header. Headers found: {headers}.",
+  },
+  RECIPE_BAD_PARAMETER: {
+    cellError: "#VALUE!",
+    title: "Invalid transform setting",
+    template: "In the recipe step \"{step}\", {name}={value} is not allowed. {expected}",
+  },
+  BASIS_NEEDS_NUMBERS: {
+    cellError: "#VALUE!",
+    title: "Text where a basis transform needs numbers",
+    template:
+      "{transform} needs numbers, but the column \"{column}\" holds text (row {row}: \"{value}\"). Use levels for a text column, or correct the value.",
+  },
+  BASIS_TOO_FEW_VALUES: {
+    cellError: "#VALUE!",
+    title: "Too few distinct values for a basis transform",
+    template:
+      "{transform} on \"{column}\" needs at least {needed} distinct values in the training rows, but found {found}. {hint}",
+  },
+  BASIS_REDUCED: {
+    cellError: "#N/A",
+    title: "Fewer basis columns than asked",
+    template: "{transform} on \"{column}\" made {got} columns instead of the {asked} asked for, because {reason}.",
+  },
+  BASIS_MANY_COLUMNS: {
+    cellError: "#N/A",
+    title: "Many basis columns for the rows",
+    template:
+      "The recipe makes {columns} columns for {rows} rows ({ratio} rows per column). With fewer than {rule} rows per column a fit tends to overfit or separate: use fewer or smaller transforms, or more rows.",
+  },
+  BASIS_TARGET_NOT_EMPTY: {
+    cellError: "#VALUE!",
+    title: "Cells in the way",
+    template:
+      "The cells {address} on sheet \"{sheet}\" are not empty. Choose another place or a new sheet, or confirm that they may be overwritten.",
+  },
   // ---- metrics (#VALUE!) -----------------------------------------------------------------------
   BAD_PROBABILITY: {
     cellError: "#VALUE!",
     title: "Invalid probability",
     template: "The probability in row {row} is {value}. Probabilities must lie between 0 and 1.",
+  },
+  METRIC_MISSING_VALUE: {
+    cellError: "#VALUE!",
+    title: "Missing value in a metric input",
+    template:
+      "The {argument} value in row {row} is missing (not a number). Metrics need a value in every row: remove the incomplete rows first.",
+  },
+  BAD_BINARY_LABEL: {
+    cellError: "#VALUE!",
+    title: "Label is not 0 or 1",
+    template:
+      "The label in row {row} is {value}. Binary metrics need labels coded 1 for the positive class and 0 for the negative class.",
+  },
+  BAD_CLASS_INDEX: {
+    cellError: "#VALUE!",
+    title: "Class index out of range",
+    template:
+      "The class index in row {row} is {value}. With {classes} probability columns, class indices must be whole numbers from 0 to {max}.",
+  },
+  PROBABILITIES_NOT_SUMMING: {
+    cellError: "#VALUE!",
+    title: "Class probabilities do not add up to 1",
+    template:
+      "The class probabilities in row {row} add up to {sum}, not 1 (allowed difference {tolerance}). Give one column per class, with each row's probabilities summing to 1.",
+  },
+  TOO_FEW_PROBABILITY_COLUMNS: {
+    cellError: "#VALUE!",
+    title: "Too few probability columns",
+    template:
+      "Multi-class metrics need one probability column per class, at least 2, but {got} were given. For a single column of positive-class probabilities use the binary metrics.",
+  },
+  ZERO_TOTAL_WEIGHT: {
+    cellError: "#VALUE!",
+    title: "All weights are zero",
+    template:
+      "Every weight is zero, so there is nothing to average over ({rows} rows). Give at least one row a positive weight.",
+  },
+  METRIC_NEEDS_BOTH_CLASSES: {
+    cellError: "#N/A",
+    title: "Metric needs both classes",
+    template:
+      "{metric} compares positive with negative rows, but every row with a positive weight has label {label}. It is undefined here: evaluate on rows that include both classes.",
+  },
+  TOO_FEW_CALIBRATION_GROUPS: {
+    cellError: "#N/A",
+    title: "Too few calibration groups",
+    template:
+      "The predicted probabilities form only {groups} groups (of {requested} requested), because many rows share the same value; the Hosmer-Lemeshow test needs at least {needed}. Use a different check, such as the calibration slope.",
+  },
+  CONSTANT_PROBABILITIES: {
+    cellError: "#N/A",
+    title: "Probabilities are all the same",
+    template:
+      "Every row with a positive weight has the probability {value}, so {measure} cannot be estimated. It needs predictions that vary between rows.",
+  },
+  PROBABILITIES_CLIPPED: {
+    cellError: "#N/A",
+    title: "Probabilities clipped",
+    template:
+      "{count} probabilities (first in row {row}) were 0 or 1, or closer to them than {eps}, and were moved to {eps} or 1 - {eps} before taking logarithms, so their contribution is large but finite.",
+  },
+  RATE_UNDEFINED: {
+    cellError: "#N/A",
+    title: "Rate undefined",
+    template: "{measure} is undefined because {denominator} is zero at threshold {threshold}; it is left empty.",
+  },
+  AUC_INTERVAL_UNDEFINED: {
+    cellError: "#N/A",
+    title: "No interval for the AUC",
+    template:
+      "The DeLong variance needs more than one row of each class (positive weight {positives}, negative weight {negatives}); the AUC is given without a standard error or interval.",
+  },
+  SMALL_EXPECTED_COUNTS: {
+    cellError: "#N/A",
+    title: "Small expected counts",
+    template:
+      "{count} of {groups} groups have an expected count below {minimum} (first: group {group}), so the chi-square p-value of the Hosmer-Lemeshow test may be unreliable. Use fewer groups or more rows.",
   },
   // ---- catch-all (#VALUE!) ---------------------------------------------------------------------
   INTERNAL: {
