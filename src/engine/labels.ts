@@ -1,0 +1,189 @@
+/**
+ * Labels: turn the label column of a table into classes.
+ *
+ * Policy (each rule is repeated in one line above the code that applies it):
+ * - Class names: text labels as trimmed text (case-sensitive), numbers as their shortest text
+ *   (1 -> "1", 2.5 -> "2.5"), booleans as "TRUE"/"FALSE".
+ * - Sorted order: numbers by value, booleans FALSE before TRUE, text case-insensitively by code unit
+ *   (ties broken case-sensitively), with no locale rules, so every machine sorts alike.
+ * - Two classes make a binary problem. The positive class is the one named by the caller; otherwise
+ *   the "yes" member of a recognized pair (1/0, TRUE/FALSE, yes/no, y/n, case-insensitive); otherwise
+ *   the second class in sorted order. Outputs always name it (ModelFit.positiveClass).
+ * - More than two classes make a multi-class problem; the reference class is the one named by the
+ *   caller, otherwise the first in sorted order.
+ * - A named class matches exactly first, then by numeric value (a numeric label column: "1.0" names 1),
+ *   then case-insensitively when that is unambiguous; booleans also answer to yes/no and 1/0.
+ * - A numeric label column looks like a measurement, not classes (TOO_MANY_CLASSES), when it has more
+ *   than 10 distinct values, or more than 2 distinct values of which any is not a whole number.
+ * - Only rows marked usable (when a mask is given) define the classes; fewer than two classes among
+ *   them is ONE_CLASS_ONLY.
+ */
+import { listNames, problem } from "./messages";
+import type { TableColumn } from "./table";
+
+/** Numeric label columns with more distinct values than this are taken for measurements. */
+export const MAX_NUMERIC_CLASSES = 10;
+
+/** Classes found in a label column. */
+export interface LabelInfo {
+  /** Name of the label column. */
+  name: string;
+  kind: "binary" | "multiclass";
+  /**
+   * Class names. Binary: [negative, positive]. Multi-class: sorted order (the reference class is at
+   * `referenceIndex`).
+   */
+  classes: string[];
+  /** Binary: the positive class. */
+  positiveClass?: string;
+  /** Multi-class: the reference class and its index into `classes`. */
+  referenceClass?: string;
+  referenceIndex: number;
+  /** Class index per row; -1 for a missing label or a row outside the usable mask. */
+  codes: Int32Array;
+  /** Rows per class, parallel to `classes`. */
+  counts: number[];
+  /** How the column was typed. */
+  source: "number" | "boolean" | "text";
+}
+
+export interface ReadLabelsOptions {
+  /** Positive class for a binary problem, by name (null/undefined = default rule). */
+  positive?: string | null;
+  /** Reference class for a multi-class problem, by name (null/undefined = first in sorted order). */
+  reference?: string | null;
+  /** 1 for rows that may define classes (complete rows); all rows when omitted. */
+  use?: Uint8Array | null;
+}
+
+const YES = new Set(["1", "true", "yes", "y"]);
+const NO = new Set(["0", "false", "no", "n"]);
+
+/** Locale-free text order: case-insensitive, ties broken by code units. */
+export function compareText(a: string, b: string): number {
+  const la = a.toLowerCase();
+  const lb = b.toLowerCase();
+  if (la !== lb) return la < lb ? -1 : 1;
+  return a < b ? -1 : a > b ? 1 : 0;
+}
+
+/**
+ * Read a label column into classes under the policy at the top of this file.
+ *
+ * @throws OddsmithError ONE_CLASS_ONLY, TOO_MANY_CLASSES, CLASS_NOT_FOUND.
+ * @example
+ * readLabels(readTable([["yes"], ["no"], ["yes"]], { argument: "labels", headers: "no" }).columns[0])
+ * // { kind: "binary", classes: ["no", "yes"], positiveClass: "yes", codes: [1, 0, 1], ... }
+ */
+export function readLabels(column: TableColumn, opts: ReadLabelsOptions = {}): LabelInfo {
+  const n = column.missing.length;
+  const use = opts.use ?? null;
+  const source: LabelInfo["source"] = column.kind === "text" ? "text" : column.kind === "boolean" ? "boolean" : "number";
+
+  // Collect distinct values among usable, non-missing rows.
+  const keyOf: (i: number) => string =
+    column.kind === "text"
+      ? (i) => (column.values as string[])[i]
+      : column.kind === "boolean"
+        ? (i) => ((column.values as Float64Array)[i] === 1 ? "TRUE" : "FALSE")
+        : (i) => String((column.values as Float64Array)[i]);
+  const countByKey = new Map<string, number>();
+  const numericByKey = new Map<string, number>();
+  let usable = 0;
+  for (let i = 0; i < n; i++) {
+    if (column.missing[i] || (use && !use[i])) continue;
+    usable++;
+    const k = keyOf(i);
+    countByKey.set(k, (countByKey.get(k) ?? 0) + 1);
+    if (column.kind !== "text") numericByKey.set(k, (column.values as Float64Array)[i]);
+  }
+  let sorted = [...countByKey.keys()];
+  // Sorted order: numbers by value, booleans FALSE before TRUE, text case-insensitively.
+  if (column.kind === "text") sorted.sort(compareText);
+  else sorted.sort((a, b) => (numericByKey.get(a) as number) - (numericByKey.get(b) as number));
+
+  if (source === "number") {
+    const anyFraction = sorted.some((k) => !Number.isInteger(numericByKey.get(k) as number));
+    // A numeric label column with > 10 distinct values, or > 2 with a fraction, is a measurement.
+    if (sorted.length > MAX_NUMERIC_CLASSES || (anyFraction && sorted.length > 2)) {
+      throw problem("TOO_MANY_CLASSES", { count: sorted.length, rows: usable });
+    }
+  }
+  // Fewer than two classes among the usable rows cannot be classified.
+  if (sorted.length < 2) {
+    throw problem("ONE_CLASS_ONLY", { label: sorted.length === 1 ? sorted[0] : "" });
+  }
+
+  let classes: string[];
+  let positiveClass: string | undefined;
+  let referenceClass: string | undefined;
+  let referenceIndex = 0;
+  if (sorted.length === 2) {
+    let pos: string;
+    if (opts.positive != null && String(opts.positive).trim() !== "") {
+      pos = matchClass(sorted, String(opts.positive), source, "positive");
+    } else {
+      // Default positive: the "yes" member of a recognized pair, else the second in sorted order.
+      const [a, b] = sorted;
+      const recognized = YES.has(a.toLowerCase()) && NO.has(b.toLowerCase());
+      pos = recognized ? a : b;
+    }
+    classes = [sorted.find((c) => c !== pos) as string, pos];
+    positiveClass = pos;
+    referenceIndex = 0;
+  } else {
+    classes = sorted;
+    if (opts.reference != null && String(opts.reference).trim() !== "") {
+      referenceClass = matchClass(sorted, String(opts.reference), source, "reference");
+    } else {
+      // Default reference: the first class in sorted order.
+      referenceClass = sorted[0];
+    }
+    referenceIndex = classes.indexOf(referenceClass);
+  }
+  const index = new Map(classes.map((c, i) => [c, i] as [string, number]));
+  const codes = new Int32Array(n).fill(-1);
+  for (let i = 0; i < n; i++) {
+    if (column.missing[i] || (use && !use[i])) continue;
+    codes[i] = index.get(keyOf(i)) as number;
+  }
+  return {
+    name: column.name,
+    kind: classes.length === 2 ? "binary" : "multiclass",
+    classes,
+    positiveClass,
+    referenceClass,
+    referenceIndex,
+    codes,
+    counts: classes.map((c) => countByKey.get(c) as number),
+    source,
+  };
+}
+
+/**
+ * Find the class a user named. Exact match, then numeric value (numeric labels), then
+ * case-insensitive when unambiguous; booleans also answer to yes/no and 1/0.
+ * @throws OddsmithError CLASS_NOT_FOUND listing the classes found.
+ */
+export function matchClass(
+  classes: readonly string[],
+  name: string,
+  source: LabelInfo["source"],
+  role: "positive" | "reference",
+): string {
+  const wanted = name.trim();
+  if (classes.includes(wanted)) return wanted;
+  if (source === "number") {
+    const x = Number(wanted);
+    const hit = classes.find((c) => wanted !== "" && Number(c) === x);
+    if (hit !== undefined) return hit;
+  }
+  const lower = wanted.toLowerCase();
+  if (source === "boolean") {
+    if (YES.has(lower)) return "TRUE";
+    if (NO.has(lower)) return "FALSE";
+  }
+  const hits = classes.filter((c) => c.toLowerCase() === lower);
+  if (hits.length === 1) return hits[0];
+  throw problem("CLASS_NOT_FOUND", { role, label: wanted, classes: listNames(classes, 12) });
+}

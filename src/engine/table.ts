@@ -1,0 +1,343 @@
+/**
+ * The one range parser: a worksheet range (row-major 2-D array of cell values) in, typed columns out.
+ * Every cell function and the task pane read their ranges through `readTable`, so a blank, a number
+ * stored as text or a boolean means the same thing everywhere.
+ *
+ * Policy (each rule is repeated in one line above the code that applies it):
+ * - Blank: null, undefined, "" and text of only whitespace. Blank cells are missing values.
+ * - Trailing rows that are entirely blank are dropped (scanned from the bottom, so a whole-column
+ *   reference costs one pass over the blank tail). Blank rows inside the data stay, as missing rows.
+ * - Older desktop builds send 0 for a blank cell; a 0 cannot be told from a real 0, so a 0 is a real 0,
+ *   with one exception: a 0 in a column whose every other non-blank cell is (non-numeric) text is a
+ *   blank (a real 0 among category names is far less likely than a blank sent as 0).
+ * - Numbers stored as text are numbers when, after trimming spaces, they match the locale-free form
+ *   [+|-] digits [. digits] [e|E [+|-] digits] (also "-.5" and "1."): "1.5", " 2 ", "1e-3", "-.5" are
+ *   numbers; "1,234", "1 234", "12%", "$3", "0x1F", "NaN", "Infinity" are text. No locale guessing.
+ * - NaN and +-Infinity arriving as numbers are rejected (NOT_FINITE_VALUE): Excel never sends them, so
+ *   they signal a broken upstream computation that must not be fitted silently.
+ * - Booleans: a column of only booleans has kind "boolean" with values 1 (TRUE) and 0 (FALSE); booleans
+ *   among numbers count as 1/0; booleans among text become the text "TRUE"/"FALSE".
+ * - Column kind: "empty" (no non-blank cell), "boolean", "number" (numbers, numeric text, booleans) or
+ *   "text" (any non-numeric text). A column mixing numbers with text is text when text cells are at least
+ *   as many as numeric ones (a category column with some numeric codes; numbers become their text, e.g.
+ *   3 -> "3"); when numbers are the majority, the first text cell is a typo in a numeric column and is
+ *   rejected (NOT_A_NUMBER) rather than turned into a category or silently dropped.
+ * - Text values are trimmed and otherwise kept exactly (case-sensitive).
+ * - Header row, headers = "auto" (the default): the first row is a header when the range has at least
+ *   two rows, no first-row cell is a number or boolean, at least one is text, and every non-blank
+ *   first-row cell looks like a name: its column's other cells hold numbers/booleans and no text
+ *   ("strong" evidence), or they hold text in which the first cell's text never recurs ("weak"
+ *   evidence: category values recur, names do not). "yes"/"no" force the decision.
+ * - Column names: the header text (trimmed); a blank header, or no header row, gives "x1", "x2", ...
+ *   (prefix configurable); a repeated name gets " (2)", " (3)", ... appended.
+ * - Ragged input (rows of different lengths) is rejected (RAGGED_RANGE); a lone scalar is a 1x1 range.
+ * - Positions in messages are 1-based rows and columns of the range as the user selected it (the header
+ *   row, when present, is row 1).
+ */
+import { problem } from "./messages";
+import type { CellValue } from "./types";
+
+export type ColumnKind = "number" | "text" | "boolean" | "empty";
+
+/** A numeric, boolean (1/0) or all-blank column; missing entries hold NaN. */
+export interface NumericColumn {
+  name: string;
+  kind: "number" | "boolean" | "empty";
+  values: Float64Array;
+  /** 1 where the cell is missing (blank). */
+  missing: Uint8Array;
+}
+
+/** A text (category) column; missing entries hold "". */
+export interface TextColumn {
+  name: string;
+  kind: "text";
+  values: string[];
+  missing: Uint8Array;
+}
+
+export type TableColumn = NumericColumn | TextColumn;
+
+/** How sure header detection was: forced by the caller, or the evidence found under "auto". */
+export type HeaderEvidence = "forced" | "strong" | "weak" | "none";
+
+/** A parsed range. */
+export interface Table {
+  /** The argument name used in messages ("predictors", "labels"). */
+  argument: string;
+  /** True when the first row was taken as column names. */
+  header: boolean;
+  headerEvidence: HeaderEvidence;
+  names: string[];
+  columns: TableColumn[];
+  /** Data rows (after the header and after trimming trailing blank rows). */
+  rows: number;
+  /** Trailing entirely-blank rows that were dropped. */
+  trimmedRows: number;
+  /** 1-based row of the range that holds data row 0 (2 with a header, 1 without). */
+  firstRow: number;
+}
+
+export interface ReadTableOptions {
+  /** Argument name shown in messages. */
+  argument: string;
+  /** Header handling ["auto"]. */
+  headers?: "auto" | "yes" | "no";
+  /** Prefix of generated column names ["x"]. */
+  namePrefix?: string;
+}
+
+/** Classification of one cell. */
+const BLANK = 0;
+const NUM = 1;
+const BOOL = 2;
+const TEXT = 3;
+
+/** The locale-free number-as-text form (see the policy at the top of the file). */
+const NUMERIC_TEXT = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/**
+ * Parse text as a number under the locale-free rule, or return NaN.
+ * @example parseNumericText(" -.5 ") // -0.5 ; parseNumericText("1,234") // NaN
+ */
+export function parseNumericText(text: string): number {
+  const t = text.trim();
+  return NUMERIC_TEXT.test(t) ? Number(t) : NaN;
+}
+
+/** True for a cell that counts as blank: null, undefined, "" or whitespace-only text. */
+export function isBlankCell(v: CellValue): boolean {
+  // Blank: null, undefined, "" and whitespace-only text.
+  return v === null || v === undefined || (typeof v === "string" && v.trim() === "");
+}
+
+function classify(v: CellValue): number {
+  if (isBlankCell(v)) return BLANK;
+  if (typeof v === "number") return NUM;
+  if (typeof v === "boolean") return BOOL;
+  // Numbers stored as text follow the locale-free rule.
+  if (typeof v === "string") return NUMERIC_TEXT.test(v.trim()) ? NUM : TEXT;
+  return TEXT;
+}
+
+function numberOf(v: CellValue): number {
+  if (typeof v === "number") return v;
+  if (typeof v === "boolean") return v ? 1 : 0;
+  return Number(String(v).trim());
+}
+
+function textOf(v: CellValue): string {
+  if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
+  if (typeof v === "number") return String(v);
+  return String(v).trim();
+}
+
+/** Normalize the input to a list of rows: a lone scalar is a 1x1 range; a flat array is one row. */
+function asRows(cells: unknown): CellValue[][] {
+  if (!Array.isArray(cells)) return [[cells as CellValue]];
+  if (cells.length > 0 && !Array.isArray(cells[0])) return [cells as CellValue[]];
+  return cells as CellValue[][];
+}
+
+/**
+ * Decide whether the first row of `rows` (already trimmed) is a header under the "auto" rule.
+ * Returns the decision and the strength of the evidence.
+ */
+export function detectHeader(rows: CellValue[][]): { header: boolean; evidence: HeaderEvidence } {
+  // A header needs at least one data row below it.
+  if (rows.length < 2) return { header: false, evidence: "none" };
+  const first = rows[0];
+  let anyText = false;
+  for (const v of first) {
+    const k = classify(v);
+    // A number or boolean in the first row means it is data.
+    if (k === NUM || k === BOOL) return { header: false, evidence: "strong" };
+    if (k === TEXT) anyText = true;
+  }
+  if (!anyText) return { header: false, evidence: "none" };
+  let strong = false;
+  for (let j = 0; j < first.length; j++) {
+    if (classify(first[j]) !== TEXT) continue;
+    const name = textOf(first[j]);
+    let numeric = 0;
+    let text = 0;
+    let recurs = false;
+    for (let i = 1; i < rows.length; i++) {
+      const v = rows[i][j];
+      const k = classify(v);
+      if (k === NUM || k === BOOL) numeric++;
+      else if (k === TEXT) {
+        text++;
+        if (textOf(v) === name) {
+          recurs = true;
+          break;
+        }
+      }
+    }
+    // Text over a column of numbers/booleans is a name (strong evidence).
+    if (text === 0 && numeric > 0) {
+      strong = true;
+      continue;
+    }
+    // In a text column a category value recurs and a name does not (weak evidence).
+    if (recurs) return { header: false, evidence: "weak" };
+  }
+  return { header: true, evidence: strong ? "strong" : "weak" };
+}
+
+/**
+ * Read a worksheet range into typed columns under the policy written at the top of this file.
+ *
+ * @param cells row-major 2-D array as Excel passes it to a custom function (or a lone scalar).
+ * @throws OddsmithError EMPTY_RANGE, RAGGED_RANGE, NOT_FINITE_VALUE, NOT_A_NUMBER.
+ * @example
+ * readTable([["age", "region"], [31, "North"], [null, "South"]], { argument: "predictors" })
+ * // header true; columns: age (number, [31, NaN], missing [0, 1]), region (text)
+ */
+export function readTable(cells: CellValue[][], opts: ReadTableOptions): Table {
+  const argument = opts.argument;
+  const headers = opts.headers ?? "auto";
+  const prefix = opts.namePrefix ?? "x";
+  const { rows: rowsIn, end, total, width } = normalizeRange(cells, argument);
+
+  let header: boolean;
+  let evidence: HeaderEvidence;
+  if (headers === "yes") {
+    header = true;
+    evidence = "forced";
+  } else if (headers === "no") {
+    header = false;
+    evidence = "forced";
+  } else {
+    ({ header, evidence } = detectHeader(rowsIn));
+  }
+  const start = header ? 1 : 0;
+  const n = end - start;
+  if (n === 0) throw problem("EMPTY_RANGE", { argument });
+
+  const names = makeNames(header ? rowsIn[0] : null, width, prefix);
+  const columns: TableColumn[] = [];
+  for (let j = 0; j < width; j++) columns.push(readColumn(rowsIn, start, j, names[j], argument));
+  return {
+    argument,
+    header,
+    headerEvidence: evidence,
+    names,
+    columns,
+    rows: n,
+    trimmedRows: total - end,
+    firstRow: start + 1,
+  };
+}
+
+/**
+ * Shape checks shared by every reader: a lone scalar is a 1x1 range, a flat array one row; ragged rows
+ * are rejected; trailing entirely-blank rows are trimmed by scanning from the bottom.
+ * @throws OddsmithError RAGGED_RANGE, EMPTY_RANGE.
+ */
+export function normalizeRange(
+  cells: unknown,
+  argument: string,
+): { rows: CellValue[][]; end: number; total: number; width: number } {
+  const all = asRows(cells);
+  const width = all.length > 0 && Array.isArray(all[0]) ? all[0].length : 0;
+  // Ragged arrays are rejected: every row must have as many cells as row 1.
+  for (let i = 1; i < all.length; i++) {
+    if (!Array.isArray(all[i]) || all[i].length !== width) {
+      throw problem("RAGGED_RANGE", {
+        argument,
+        row: i + 1,
+        got: Array.isArray(all[i]) ? all[i].length : 1,
+        expected: width,
+      });
+    }
+  }
+  // Trailing entirely-blank rows are trimmed, scanning from the bottom.
+  let end = all.length;
+  outer: while (end > 0) {
+    const row = all[end - 1];
+    for (let j = 0; j < width; j++) if (!isBlankCell(row[j])) break outer;
+    end--;
+  }
+  if (end === 0 || width === 0) throw problem("EMPTY_RANGE", { argument });
+  return { rows: end === all.length ? all : all.slice(0, end), end, total: all.length, width };
+}
+
+function makeNames(headerRow: CellValue[] | null, width: number, prefix: string): string[] {
+  const names: string[] = [];
+  const seen = new Map<string, number>();
+  for (let j = 0; j < width; j++) {
+    // A blank header cell (or no header row) gives a generated name.
+    let name = headerRow && !isBlankCell(headerRow[j]) ? textOf(headerRow[j]) : `${prefix}${j + 1}`;
+    const count = (seen.get(name) ?? 0) + 1;
+    seen.set(name, count);
+    // A repeated name gets " (2)", " (3)", ... appended.
+    if (count > 1) name = `${name} (${count})`;
+    names.push(name);
+  }
+  return names;
+}
+
+function readColumn(rows: CellValue[][], start: number, j: number, name: string, argument: string): TableColumn {
+  const n = rows.length - start;
+  const missing = new Uint8Array(n);
+  const kinds = new Uint8Array(n);
+  let nNum = 0;
+  let nBool = 0;
+  let nText = 0;
+  let nonZeroNumber = false;
+  let firstText = -1;
+  for (let i = 0; i < n; i++) {
+    const v = rows[start + i][j];
+    const k = classify(v);
+    kinds[i] = k;
+    if (k === NUM) {
+      const x = numberOf(v);
+      // NaN and infinities are not valid values.
+      if (!Number.isFinite(x)) {
+        throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value: String(x) });
+      }
+      nNum++;
+      // Only a real numeric 0 can be a blank sent by an older build; the text "0" was typed.
+      if (x !== 0 || typeof v !== "number") nonZeroNumber = true;
+    } else if (k === BOOL) nBool++;
+    else if (k === TEXT) {
+      nText++;
+      if (firstText < 0) firstText = i;
+    }
+  }
+  // A 0 in a column whose other non-blank cells are all text is a blank sent as 0 by an older build.
+  const zeroIsBlank = nText > 0 && nNum > 0 && !nonZeroNumber && nBool === 0;
+  if (zeroIsBlank) nNum = 0;
+
+  if (nText > 0 && nNum > nText) {
+    // Numbers in the majority: the text cell is a typo in a numeric column.
+    const v = rows[start + firstText][j];
+    throw problem("NOT_A_NUMBER", { argument, row: start + firstText + 1, column: j + 1, value: textOf(v) });
+  }
+  if (nText > 0) {
+    const values: string[] = new Array(n);
+    for (let i = 0; i < n; i++) {
+      const k = kinds[i];
+      if (k === BLANK || (zeroIsBlank && k === NUM)) {
+        values[i] = "";
+        missing[i] = 1;
+      } else values[i] = textOf(rows[start + i][j]);
+    }
+    return { name, kind: "text", values, missing };
+  }
+  const values = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    if (kinds[i] === BLANK) {
+      values[i] = NaN;
+      missing[i] = 1;
+    } else values[i] = numberOf(rows[start + i][j]);
+  }
+  const kind: ColumnKind = nNum + nBool === 0 ? "empty" : nNum === 0 ? "boolean" : "number";
+  return { name, kind, values, missing };
+}
+
+/** 1-based row of the range (as the user selected it) that holds data row `i` of `table`. */
+export function rangeRow(table: Pick<Table, "firstRow">, i: number): number {
+  return table.firstRow + i;
+}
