@@ -117,6 +117,11 @@ export const MESSAGES = {
     template:
       "The options text \"{text}\" could not be read at \"{at}\". Write name=value pairs separated by semicolons, e.g. \"penalty=0.1; level=0.9\".",
   },
+  DUPLICATE_OPTION: {
+    cellError: "#VALUE!",
+    title: "Option given twice",
+    template: "The option {name} is given twice (\"{first}\" and \"{second}\"). Give it once.",
+  },
   // ---- labels (#VALUE!) ------------------------------------------------------------------------
   ONE_CLASS_ONLY: {
     cellError: "#VALUE!",
