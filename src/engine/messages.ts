@@ -211,6 +211,29 @@ export const MESSAGES = {
     title: "Rows skipped",
     template: "{count} rows were skipped because a used value was missing ({detail}).",
   },
+  BAD_RESPONSE: {
+    cellError: "#VALUE!",
+    title: "Response is not 0 or 1",
+    template:
+      "The response in row {row} is {value}. A binary fit needs 1 for the positive class and 0 for the negative class; with grouped counts, give the number of successes and pass the trials.",
+  },
+  SEPARATION_HANDLED: {
+    cellError: "#N/A",
+    title: "Separation kept finite by the fit method",
+    template:
+      "{columns} separate the classes ({count} rows, for example rows {rows}), so ordinary estimates would run off to infinity; the {method} keeps them finite. Read these estimates with care.",
+  },
+  PROFILE_INTERVAL_OPEN: {
+    cellError: "#N/A",
+    title: "Profile interval end not found",
+    template:
+      "The profile-likelihood interval of {term} has no {side} end within {limit} (the likelihood stays too flat), so that end is shown as missing. Check for separation or use Wald intervals.",
+  },
+  PROFILE_NOT_AVAILABLE: {
+    cellError: "#N/A",
+    title: "Profile intervals not available",
+    template: "Profile-likelihood intervals are not computed for {reason}; {shown} are shown instead.",
+  },
   // ---- scoring (#N/A per row) ------------------------------------------------------------------
   UNSEEN_LEVEL: {
     cellError: "#N/A",
