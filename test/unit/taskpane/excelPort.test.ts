@@ -1,0 +1,309 @@
+/**
+ * ExcelPort against office-addin-mock: the mock enforces the Office.js contract that a property can
+ * only be read after load() and sync(), so these tests also check that every read is loaded first.
+ * Ranges are created on demand by the mock worksheet's getRange over a small in-memory grid.
+ */
+import { OfficeMockObject } from "office-addin-mock";
+
+// The shared stub of office-addin-manifest (jest moduleNameMapper) is empty, but the mock reads the
+// host names from its OfficeApp enum; the values below are that enum's (office-addin-manifest 2.x).
+jest.mock("office-addin-manifest", () => ({
+  OfficeApp: {
+    Excel: "excel",
+    OneNote: "onenote",
+    Outlook: "outlook",
+    PowerPoint: "powerpoint",
+    Project: "project",
+    Word: "word",
+  },
+}));
+import { columnNumber, parseAddress, rectAddress } from "../../../src/taskpane/a1";
+import { ExcelPort, OUR_FILL, rowRuns, type TransferProgress } from "../../../src/taskpane/excelPort";
+
+type Grid = (string | number | boolean)[][];
+
+interface Created {
+  address: string;
+  range: Record<string, any>;
+}
+
+/** A mock Excel with one or more sheets held as grids from A1; records every range it hands out. */
+function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1") {
+  const created: Created[] = [];
+  const added: string[] = [];
+  const events: { sheet: string; handler: () => Promise<void> }[] = [];
+  const loads: string[] = [];
+  let counter = 0;
+
+  function cellsOf(sheet: string, address: string): Grid {
+    const rect = parseAddress(address)!;
+    const grid = sheets[sheet];
+    const out: Grid = [];
+    for (let r = rect.top; r <= rect.bottom; r++) {
+      const row: (string | number | boolean)[] = [];
+      for (let c = rect.left; c <= rect.right; c++) row.push(grid[r - 1]?.[c - 1] ?? "");
+      out.push(row);
+    }
+    return out;
+  }
+
+  function usedAddress(sheet: string): string | null {
+    const grid = sheets[sheet];
+    let bottom = 0;
+    let right = 0;
+    grid.forEach((row, i) =>
+      row.forEach((v, j) => {
+        if (v !== "") {
+          bottom = Math.max(bottom, i + 1);
+          right = Math.max(right, j + 1);
+        }
+      }),
+    );
+    return bottom === 0 ? null : rectAddress({ top: 1, left: 1, bottom, right });
+  }
+
+  /** Attach a new range mock under `owner` so context.sync() reaches it. */
+  function rangeMock(owner: any, sheet: string, address: string) {
+    const name = `range${counter++}`;
+    owner.addMock(name);
+    const range = owner[name];
+    const isEmpty = cellsOf(sheet, address).every((row) => row.every((v) => v === ""));
+    range.populate({
+      address: `${sheet}!${address}`,
+      values: cellsOf(sheet, address),
+      rowCount: parseAddress(address)!.bottom - parseAddress(address)!.top + 1,
+      columnCount: parseAddress(address)!.right - parseAddress(address)!.left + 1,
+      format: {
+        fill: {
+          color: "#FFFFFF",
+          clear: function (this: any) {
+            this.cleared = true;
+          },
+        },
+      },
+      clear: function (this: any) {
+        this.clearedAll = true;
+      },
+      select: function (this: any) {
+        this.selected = true;
+      },
+      getUsedRangeOrNullObject: function (this: any) {
+        // isNullObject is readable after sync without load (Office.js contract), so a plain field.
+        return { isNullObject: isEmpty };
+      },
+      getSurroundingRegion: function (this: any) {
+        const used = usedAddress(sheet)!;
+        return rangeMock(owner, sheet, used);
+      },
+    });
+    created.push({ address, range });
+    return range;
+  }
+
+  const sheetMocks: Record<string, any> = {};
+  const data = {
+    context: {
+      workbook: {
+        worksheets: {
+          // The mock cannot navigate into arrays ("items/name"), so the collection's load is replaced:
+          // it records what was asked and exposes the items only when the names were requested.
+          load: function (this: any, what: string) {
+            loads.push(what);
+            if (what === "items/name") this.items = Object.keys(sheets).map((name) => ({ name }));
+          },
+          getItem: function (this: any, name: string) {
+            return sheetMocks[name];
+          },
+          add: function (name: string) {
+            added.push(name);
+          },
+        },
+        getSelectedRange: function () {
+          const [sheet, address] = selected.split("!");
+          return rangeMock(root.context.workbook, sheet, address);
+        },
+      },
+    },
+    run: async function (this: any, batch: (context: any) => Promise<unknown>) {
+      return batch(this.context);
+    },
+  };
+  const root = new OfficeMockObject(data) as any;
+  for (const sheet of Object.keys(sheets)) {
+    root.context.workbook.worksheets.addMock(`sheet_${sheet}`);
+    const ws = root.context.workbook.worksheets[`sheet_${sheet}`];
+    ws.populate({
+      name: sheet,
+      activate: function (this: any) {
+        this.activated = true;
+      },
+      getRange: function (this: any, address: string) {
+        return rangeMock(this, sheet, address);
+      },
+      getUsedRangeOrNullObject: function (this: any) {
+        const used = usedAddress(sheet);
+        if (!used) return { isNullObject: true, load() {} };
+        return rangeMock(this, sheet, used);
+      },
+      onChanged: {
+        add: function (handler: () => Promise<void>) {
+          events.push({ sheet, handler });
+          return { context: root.context, remove() {} };
+        },
+      },
+    });
+    sheetMocks[sheet] = ws;
+  }
+  return { root, created, added, events, loads, run: (batch: any) => root.run(batch) };
+}
+
+/** A 12 x 3 grid: header row, then numbers with a blank at row 5, column B. */
+function sampleGrid(): Grid {
+  const grid: Grid = [["weight", "moisture", "flag"]];
+  for (let i = 1; i <= 11; i++) grid.push([i, i === 4 ? "" : i * 0.5, i % 2 === 0 ? "yes" : "no"]);
+  return grid;
+}
+
+describe("ExcelPort reading", () => {
+  test("reads a block in chunks of at most chunkCells cells and reports progress to the end", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const progress: TransferProgress[] = [];
+    const port = new ExcelPort({ chunkCells: 10, onProgress: (p) => progress.push(p) }, excel.run);
+    const block = await port.readBlock("Data", "A1:C12");
+    // 10 cells per chunk with 3 columns -> 3 rows per chunk -> 4 chunks for 12 rows.
+    expect(excel.created.map((c) => c.address)).toEqual(["A1:C3", "A4:C6", "A7:C9", "A10:C12"]);
+    expect(block.values).toHaveLength(12);
+    expect(block.values[0]).toEqual(["weight", "moisture", "flag"]);
+    expect(block.values[11]).toEqual([11, 5.5, "no"]);
+    expect([block.top, block.left, block.address]).toEqual([1, 1, "A1:C12"]);
+    expect(progress.map((p) => p.done)).toEqual([9, 18, 27, 36]);
+    expect(progress.every((p) => p.total === 36 && p.task === "read")).toBe(true);
+  });
+
+  test("turns Excel's blank \"\" into null, the engine's blank", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const block = await new ExcelPort({}, excel.run).readBlock("Data", "B5");
+    expect(block.values).toEqual([[null]]);
+  });
+
+  test("the default chunk is 50,000 cells", () => {
+    expect(new ExcelPort({}, mockExcel({ Data: [] }).run).chunkCells).toBe(50_000);
+  });
+
+  test("a whole-column address is cut to the used rows", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const block = await new ExcelPort({}, excel.run).readBlock("Data", "B:C");
+    expect(block.address).toBe("B1:C12");
+    expect(block.values).toHaveLength(12);
+    expect(block.left).toBe(columnNumber("B"));
+  });
+
+  test("a single selected cell stands for the table around it", async () => {
+    const excel = mockExcel({ Data: sampleGrid() }, "Data!B3");
+    const block = await new ExcelPort({}, excel.run).selectedBlock();
+    expect(block.sheet).toBe("Data");
+    expect(block.address).toBe("A1:C12");
+  });
+
+  test("sheet names come from the loaded worksheet collection", async () => {
+    const excel = mockExcel({ Data: sampleGrid(), Results: [] });
+    expect(await new ExcelPort({}, excel.run).sheetNames()).toEqual(["Data", "Results"]);
+    expect(excel.loads).toEqual(["items/name"]);
+  });
+
+  test("isEmpty asks Excel for the used part of the block", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const port = new ExcelPort({}, excel.run);
+    expect(await port.isEmpty("Data", "E1:F20")).toBe(true);
+    expect(await port.isEmpty("Data", "A1:B2")).toBe(false);
+  });
+
+  test("a bad address is refused before any request", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    await expect(new ExcelPort({}, excel.run).readBlock("Data", "not an address")).rejects.toThrow(
+      '"not an address" is not a cell address.',
+    );
+    expect(excel.created).toHaveLength(0);
+  });
+});
+
+describe("ExcelPort writing", () => {
+  test("adding a sheet whose name is taken (in any case) appends a number", async () => {
+    const excel = mockExcel({ Data: sampleGrid(), Results: [] });
+    const port = new ExcelPort({}, excel.run);
+    expect(await port.addSheet("results")).toBe("results (2)");
+    expect(await port.addSheet("Model")).toBe("Model");
+    expect(excel.added).toEqual(["results (2)", "Model"]);
+  });
+
+  test("formulas are written through Range.formulas, in chunks", async () => {
+    const excel = mockExcel({ Results: [] });
+    const port = new ExcelPort({ chunkCells: 4 }, excel.run);
+    await port.write({
+      sheet: "Results",
+      at: "B2",
+      values: [["=ODDS.FIT(Data!A2:A9,Data!B2:C9)", null], ["=1+1", "x"], ["=2", 3]],
+      formulas: true,
+    });
+    expect(excel.created.map((c) => c.address)).toEqual(["B2:C3", "B4:C4"]);
+    expect(excel.created[0].range.formulas).toEqual([["=ODDS.FIT(Data!A2:A9,Data!B2:C9)", ""], ["=1+1", "x"]]);
+    expect(excel.created[1].range.formulas).toEqual([["=2", 3]]);
+  });
+
+  test("literal text that starts with '=' is written as text, not as a formula", async () => {
+    const excel = mockExcel({ Results: [] });
+    await new ExcelPort({}, excel.run).write({ sheet: "Results", at: "A1", values: [["=not a formula", 2]] });
+    expect(excel.created[0].range.values).toEqual([["=not a formula", 2]]);
+    expect(excel.created[0].range.numberFormat).toEqual([["@", "General"]]);
+  });
+
+  test("clear clears values and formats of the block", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    await new ExcelPort({}, excel.run).clear("Data", "D1:E12");
+    expect(excel.created[0].address).toBe("D1:E12");
+    expect(excel.created[0].range.clearedAll).toBe(true);
+  });
+});
+
+describe("ExcelPort highlighting, selection and events", () => {
+  test("rowRuns merges consecutive rows and drops repeats", () => {
+    expect(rowRuns([9, 3, 4, 5, 4, 12, 11])).toEqual([
+      [3, 5],
+      [9, 9],
+      [11, 12],
+    ]);
+    expect(rowRuns([])).toEqual([]);
+  });
+
+  test("highlighting fills runs of rows within the block's columns with our colour", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    await new ExcelPort({}, excel.run).highlightRows("Data", "A1:C12", [4, 5, 9], true);
+    expect(excel.created.map((c) => c.address)).toEqual(["A4:C5", "A9:C9"]);
+    for (const c of excel.created) expect(c.range.format.fill.color).toBe(OUR_FILL);
+  });
+
+  test("removing the highlight clears the fill of those rows only", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    await new ExcelPort({}, excel.run).highlightRows("Data", "A1:C12", [7], false);
+    expect(excel.created.map((c) => c.address)).toEqual(["A7:C7"]);
+    expect(excel.created[0].range.format.fill.cleared).toBe(true);
+    expect(excel.created[0].range.format.fill.color).not.toBe(OUR_FILL);
+  });
+
+  test("selecting a row activates the sheet and selects the row within the block's columns", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    await new ExcelPort({}, excel.run).selectRow("Data", "A1:C12", 8);
+    expect(excel.created[0].address).toBe("A8:C8");
+    expect(excel.created[0].range.selected).toBe(true);
+    expect(excel.root.context.workbook.worksheets.sheet_Data.activated).toBe(true);
+  });
+
+  test("onChanged registers on the worksheet and calls the handler when Excel fires", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    let calls = 0;
+    await new ExcelPort({}, excel.run).onChanged("Data", () => calls++);
+    expect(excel.events.map((e) => e.sheet)).toEqual(["Data"]);
+    await excel.events[0].handler();
+    expect(calls).toBe(1);
+  });
+});
