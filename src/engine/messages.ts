@@ -251,6 +251,38 @@ export const MESSAGES = {
     title: "Value outside the transform's domain",
     template: "Row {row}: {transform} is not defined for {value} in {column}. {hint}",
   },
+  // ---- coefficient tables on the sheet (ODDS.SCORE, #VALUE!) ----------------------------------
+  COEFFICIENT_TABLE_HEADER: {
+    cellError: "#VALUE!",
+    title: "Coefficient table without its header",
+    template:
+      "The coefficients range needs a header row with columns named \"term\" and \"coefficient\" (and \"class\" when the model has several classes); its first row holds {found}. Select the table ODDS.FIT wrote, header row included.",
+  },
+  COEFFICIENT_TERM_REPEATED: {
+    cellError: "#VALUE!",
+    title: "Term listed twice",
+    template:
+      "The term \"{term}\" appears twice for class \"{outcome}\" in the coefficients range (rows {first} and {second}). Keep one row per term and class.",
+  },
+  // ---- metric cell functions: matching labels with probability columns (#VALUE!) ---------------
+  BINARY_METRIC_ONLY: {
+    cellError: "#VALUE!",
+    title: "Metric for two classes only",
+    template:
+      "{fn} works with two classes, but the labels hold {count} ({classes}). For several classes use ODDS.LOGLOSS or ODDS.CONFUSION with one probability column per class.",
+  },
+  PROBABILITY_COLUMN_COUNT: {
+    cellError: "#VALUE!",
+    title: "Probability columns do not match the classes",
+    template:
+      "The probabilities range has {got} columns for {count} classes ({classes}). Give one column of positive-class probabilities for two classes, or one column per class under a header row naming the classes (as ODDS.PROB writes it).",
+  },
+  PROBABILITY_COLUMN_MISSING: {
+    cellError: "#VALUE!",
+    title: "No probability column for a class",
+    template:
+      "The labels hold the class \"{label}\" but no probability column is named for it (column headers: {headers}). Name each column after its class, e.g. \"P({label})\".",
+  },
   // ---- recipes for basis columns (#VALUE!) -----------------------------------------------------
   RECIPE_SYNTAX: {
     cellError: "#VALUE!",
@@ -267,6 +299,17 @@ export const MESSAGES = {
     title: "Recipe names a missing column",
     template:
       "The recipe names the column \"{column}\", but the {argument} range has no such header. Headers found: {headers}.",
+  },
+  RECIPE_DUPLICATE_COLUMN: {
+    cellError: "#VALUE!",
+    title: "Recipe makes a column twice",
+    template:
+      "The recipe makes the column \"{name}\" more than once ({steps}). Remove one of the steps that make it.",
+  },
+  RECIPE_EMPTY: {
+    cellError: "#VALUE!",
+    title: "Empty recipe",
+    template: "The recipe is empty. {hint}",
   },
   RECIPE_BAD_PARAMETER: {
     cellError: "#VALUE!",
