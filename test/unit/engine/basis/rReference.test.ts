@@ -7,6 +7,7 @@ import reference from "../../../fixtures/basis/r-reference.json";
 import { quantile7, sortedCopy } from "../../../../src/engine/basis/common";
 import { applyNs, fitNs } from "../../../../src/engine/basis/ns";
 import { applyPoly, fitPoly } from "../../../../src/engine/basis/poly";
+import { applyZscore, fitZscore } from "../../../../src/engine/basis/zscore";
 
 /**
  * Agreement tolerance, relative to the largest magnitude in the compared column (floor 1): both
@@ -84,4 +85,20 @@ describe("type-7 quantiles agree with R's quantile()", () => {
       c.probs.forEach((p, j) => expect(Math.abs(quantile7(s, p) - c.q[j])).toBeLessThanOrEqual(Math.abs(c.q[j]) * 4e-16));
     });
   });
+});
+
+describe("z-scores agree with R's scale()", () => {
+  /** Mean and SD are sums of 50-60 values: agreement to a few ulps of the magnitude. */
+  const SCALE_AGREEMENT = 1e-13;
+  for (const c of reference.zscore) {
+    test(`${c.label}: training mean and sample SD equal scale()'s center and scale`, () => {
+      const s = fitZscore(column("x", c.x));
+      expect(Math.abs(s.mean - c.center) / Math.abs(c.center)).toBeLessThan(SCALE_AGREEMENT);
+      expect(Math.abs(s.sd - c.scale) / c.scale).toBeLessThan(SCALE_AGREEMENT);
+    });
+    test(`${c.label}: standardized values equal scale(x)`, () => {
+      const s = fitZscore(column("x", c.x));
+      expectColumnsClose(applyZscore(s, column("x", c.x)).columns, [c.scaled], "scaled");
+    });
+  }
 });
