@@ -1,0 +1,614 @@
+/**
+ * Binary logistic regression: fitBinaryModel.
+ *
+ * Model: P(y = 1 | x) = sigmoid(offset + b0 + x'b), maximum likelihood by Newton-Raphson (IRLS)
+ * with step halving (see logisticNewton.ts), optionally with an L2 penalty or Firth's bias
+ * reduction. Columns are centred (when there is an intercept) and scaled to unit population
+ * standard deviation inside the fit; coefficients and covariance are mapped back exactly by the
+ * linear map b = T g (b_j = g_j / s_j, b0 = g0 - sum_j g_j m_j / s_j) and V_b = T V_g T'.
+ *
+ * Conventions
+ * - Case weights are frequency weights: weight 2 is the same as the row twice. Zero weight: the row
+ *   is left out of the fit (it can still be scored).
+ * - Grouped data (options.trials): y counts successes out of trials. The log-likelihood includes
+ *   the binomial coefficient, sum_i w_i [log C(t_i, y_i) + y_i log p_i + (t_i - y_i) log(1 - p_i)],
+ *   as R's glm does in its AIC; the deviance is twice the gap to the saturated model, so grouped
+ *   and row-by-row input give the same coefficients and standard errors but different deviances
+ *   and AIC (as in R).
+ * - observations = sum of case weights over the rows used (for grouped data: the number of groups
+ *   when weights are 1, as R's nobs); BIC = -2 logLik + k log(observations). With non-integer or
+ *   unequal case weights this differs from R's BIC, which counts rows with non-zero weight.
+ * - AIC = -2 logLik + 2k with k = number of estimated (non-aliased) coefficients, as R's glm.
+ * - Penalized (ridge) fits: objective -l(b) + (lambda/2) sum_j (s_j b_j)^2 over non-intercept terms,
+ *   s_j the population standard deviation of column j (penaltyScale "standardized", weighted by
+ *   w_i t_i) or 1 ("original"); no covariance, no p-values (PENALIZED_NO_P_VALUES note).
+ * - Firth fits (biasReduction): estimates maximize l(b) + (1/2) log det I(b); standard errors from
+ *   I(b*)^{-1} at the estimate with Wald z, p and intervals (as brglm2's summary for "AS_mean").
+ *   logLikelihood is the ordinary log-likelihood at the Firth estimate; nullLogLikelihood the
+ *   ordinary intercept-only maximum; lrTest uses the penalized log-likelihoods of the full and the
+ *   intercept-only Firth fits (Heinze & Schemper 2002, §2.2).
+ * - Separation (unpenalized, non-Firth fits): when certified, the fit has no usable estimate: the
+ *   coefficients, covariance and table numbers are NaN and an error diagnostic names the columns
+ *   and rows; logLikelihood and deviance keep the supremum the iterations approached.
+ * References: McCullagh & Nelder (1989) ch. 4; Agresti (2013) ch. 5; Firth (1993); Heinze &
+ * Schemper (2002); Albert & Anderson (1984).
+ */
+
+import { chiSquareSurvival } from "./distributions";
+import {
+  buildCoefficientTable,
+  INTERCEPT_TERM,
+  informationCriteria,
+  likelihoodRatioTest,
+  mcFaddenR2,
+  penalizedNote,
+  type Interval,
+} from "./inference";
+import { congruence, invertSymmetric, rankRevealingCholesky, weightedCrossProduct } from "./linalg";
+import { newtonLogistic, type NewtonProblem, type NewtonResult } from "./logisticNewton";
+import { formatMessage, listNames, problem, type MessageCode } from "./messages";
+import { logDetFromCholesky } from "./firth";
+import { cholesky } from "./linalg";
+import { logGamma } from "./numerics";
+import { profileIntervals } from "./profile";
+import { separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
+import type { BinaryFitOptions, DesignMatrix, Diagnostic, ModelFit, Severity } from "./types";
+
+/** Defaults of the fit options (see FitOptions in types.ts). */
+export const BINARY_DEFAULTS = {
+  intercept: true,
+  penalty: 0,
+  penaltyScale: "standardized" as const,
+  biasReduction: false,
+  level: 0.95,
+  intervalMethod: "wald" as const,
+  maxIterations: 100,
+  tolerance: 1e-10,
+};
+
+/** Tolerance on 1 - R^2 of a column on the earlier ones below which it is called aliased. */
+export const ALIAS_TOLERANCE = 1e-9;
+
+/** Screened data of the rows that enter the fit (compacted). */
+interface FitData {
+  rows: number;
+  /** Caller's row index of each compacted row. */
+  rowIndex: Int32Array;
+  columns: Float64Array[];
+  successes: Float64Array;
+  trials: Float64Array;
+  weights: Float64Array;
+  offset: Float64Array;
+  grouped: boolean;
+  skipped: number;
+  skippedDetail: string;
+}
+
+function badOption(name: string, value: unknown, expected: string): never {
+  throw problem("BAD_OPTION_VALUE", { name, value, expected });
+}
+
+function diag(code: MessageCode, severity: Severity, params: Record<string, unknown>, extra: Partial<Diagnostic> = {}): Diagnostic {
+  return { code, severity, message: formatMessage(code, params), ...extra };
+}
+
+/** Validate shapes and values; throw problem(...) for invalid input; compact the usable rows. */
+function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData {
+  const n = X.rows;
+  if (X.columns.length !== X.names.length) {
+    throw problem("RANGE_SHAPE_MISMATCH", { argument: "column names", got: X.names.length, expectedArgument: "predictor columns", expected: X.columns.length });
+  }
+  for (let j = 0; j < X.columns.length; j++) {
+    if (X.columns[j].length !== n) {
+      throw problem("RANGE_SHAPE_MISMATCH", { argument: `predictor ${X.names[j]}`, got: X.columns[j].length, expectedArgument: "the design", expected: n });
+    }
+  }
+  const checkLength = (arr: Float64Array | null | undefined, argument: string): void => {
+    if (arr && arr.length !== n) throw problem("RANGE_SHAPE_MISMATCH", { argument, got: arr.length, expectedArgument: "predictors", expected: n });
+  };
+  checkLength(y, "response");
+  checkLength(o.weights, "weights");
+  checkLength(o.offset, "offset");
+  checkLength(o.trials, "trials");
+  const w = o.weights ?? null;
+  const off = o.offset ?? null;
+  const tr = o.trials ?? null;
+  const keep = new Uint8Array(n);
+  let used = 0;
+  let skipped = 0;
+  const missingBy: Record<string, number> = {};
+  const miss = (what: string): void => {
+    missingBy[what] = (missingBy[what] ?? 0) + 1;
+  };
+  for (let i = 0; i < n; i++) {
+    let missing = false;
+    const yi = y[i];
+    if (Number.isNaN(yi)) {
+      missing = true;
+      miss("response");
+    }
+    for (let j = 0; j < X.columns.length; j++) {
+      const v = X.columns[j][i];
+      if (Number.isNaN(v)) {
+        missing = true;
+        miss(X.names[j]);
+      } else if (!Number.isFinite(v)) {
+        throw problem("NOT_FINITE_VALUE", { argument: "predictor", row: i + 1, column: X.names[j], value: v });
+      }
+    }
+    if (w) {
+      const wi = w[i];
+      if (Number.isNaN(wi)) {
+        missing = true;
+        miss("weights");
+      } else if (!(wi >= 0) || !Number.isFinite(wi)) {
+        throw problem("BAD_WEIGHT", { row: i + 1, value: wi });
+      }
+    }
+    if (off) {
+      const v = off[i];
+      if (Number.isNaN(v)) {
+        missing = true;
+        miss("offset");
+      } else if (!Number.isFinite(v)) {
+        throw problem("NOT_FINITE_VALUE", { argument: "offset", row: i + 1, column: "offset", value: v });
+      }
+    }
+    if (tr) {
+      const t = tr[i];
+      if (Number.isNaN(t)) {
+        missing = true;
+        miss("trials");
+      } else if (!(t >= 0) || !Number.isFinite(t) || (!Number.isNaN(yi) && !(yi >= 0 && yi <= t))) {
+        throw problem("BAD_TRIALS", { row: i + 1, successes: yi, trials: t });
+      }
+    } else if (!Number.isNaN(yi) && yi !== 0 && yi !== 1) {
+      throw problem("BAD_RESPONSE", { row: i + 1, value: yi });
+    }
+    if (missing) {
+      skipped++;
+      continue;
+    }
+    if ((w && w[i] === 0) || (tr && tr[i] === 0)) continue;
+    keep[i] = 1;
+    used++;
+  }
+  const rowIndex = new Int32Array(used);
+  const columns = X.columns.map(() => new Float64Array(used));
+  const successes = new Float64Array(used);
+  const trials = new Float64Array(used);
+  const weights = new Float64Array(used);
+  const offset = new Float64Array(used);
+  let r = 0;
+  for (let i = 0; i < n; i++) {
+    if (!keep[i]) continue;
+    rowIndex[r] = i;
+    for (let j = 0; j < columns.length; j++) columns[j][r] = X.columns[j][i];
+    successes[r] = y[i];
+    trials[r] = tr ? tr[i] : 1;
+    weights[r] = w ? w[i] : 1;
+    offset[r] = off ? off[i] : 0;
+    r++;
+  }
+  const skippedDetail = Object.entries(missingBy)
+    .map(([k, v]) => `${k}: ${v}`)
+    .join(", ");
+  return { rows: used, rowIndex, columns, successes, trials, weights, offset, grouped: !!tr, skipped, skippedDetail };
+}
+
+function validateOptions(o: BinaryFitOptions): Required<Omit<BinaryFitOptions, "weights" | "offset" | "trials">> {
+  const intercept = o.intercept ?? BINARY_DEFAULTS.intercept;
+  const penalty = o.penalty ?? BINARY_DEFAULTS.penalty;
+  if (!(penalty >= 0) || !Number.isFinite(penalty)) badOption("penalty", penalty, "Use a number of 0 or more.");
+  const penaltyScale = o.penaltyScale ?? BINARY_DEFAULTS.penaltyScale;
+  if (penaltyScale !== "standardized" && penaltyScale !== "original") badOption("penaltyScale", penaltyScale, 'Use "standardized" or "original".');
+  const level = o.level ?? BINARY_DEFAULTS.level;
+  if (!(level > 0 && level < 1)) badOption("level", level, "Use a number between 0 and 1, such as 0.95.");
+  const intervalMethod = o.intervalMethod ?? BINARY_DEFAULTS.intervalMethod;
+  if (intervalMethod !== "wald" && intervalMethod !== "profile") badOption("intervalMethod", intervalMethod, 'Use "wald" or "profile".');
+  const maxIterations = o.maxIterations ?? BINARY_DEFAULTS.maxIterations;
+  if (!(Number.isInteger(maxIterations) && maxIterations >= 1)) badOption("maxIterations", maxIterations, "Use a whole number of 1 or more.");
+  const tolerance = o.tolerance ?? BINARY_DEFAULTS.tolerance;
+  if (!(tolerance > 0 && tolerance < 1)) badOption("tolerance", tolerance, "Use a small positive number such as 1e-10.");
+  const biasReduction = o.biasReduction ?? BINARY_DEFAULTS.biasReduction;
+  return { intercept, penalty, penaltyScale, level, intervalMethod, maxIterations, tolerance, biasReduction };
+}
+
+/** sum_i w_i log C(t_i, y_i) and the saturated kernel log-likelihood. */
+function constantTerms(d: FitData): { logBinom: number; saturated: number } {
+  let logBinom = 0;
+  let saturated = 0;
+  for (let i = 0; i < d.rows; i++) {
+    const y = d.successes[i];
+    const t = d.trials[i];
+    const w = d.weights[i];
+    if (d.grouped) logBinom += w * (logGamma(t + 1) - logGamma(y + 1) - logGamma(t - y + 1));
+    const f = t - y;
+    if (y > 0) saturated += w * y * Math.log(y / t);
+    if (f > 0) saturated += w * f * Math.log(f / t);
+  }
+  return { logBinom, saturated };
+}
+
+/**
+ * Fit a binary logistic regression model.
+ *
+ * @param X - design matrix without the intercept column (the intercept is an option)
+ * @param y - 0/1 response (1 = positive class), or the number of successes when options.trials is
+ *   given; NaN marks a missing value (the row is skipped and counted in a ROWS_SKIPPED warning)
+ * @param options - fit options (see FitOptions / BinaryFitOptions in types.ts)
+ * @param classes - labels [negative, positive] used in the result ["0", "1"]
+ * @returns the fit; data problems that leave no usable estimate (one class, too few rows,
+ *   separation of an unpenalized fit) are reported as severity "error" diagnostics with NaN
+ *   estimates, never thrown
+ * @throws OddsmithError (BAD_WEIGHT, BAD_TRIALS, BAD_RESPONSE, NOT_FINITE_VALUE,
+ *   RANGE_SHAPE_MISMATCH, BAD_OPTION_VALUE) for invalid input; row numbers in these messages are
+ *   1-based positions within the arrays passed in
+ * @example
+ * const fit = fitBinaryModel({ rows: 4, columns: [Float64Array.of(1, 2, 3, 4)], names: ["x"] },
+ *   Float64Array.of(0, 1, 0, 1));
+ * fit.table[1].estimate; // slope of x on the log-odds scale
+ * Reference: McCullagh & Nelder (1989) §4.4; Agresti (2013) §5.2; Firth (1993); Heinze & Schemper (2002).
+ */
+export function fitBinaryModel(
+  X: DesignMatrix,
+  y: Float64Array,
+  options: BinaryFitOptions = {},
+  classes: [negative: string, positive: string] = ["0", "1"],
+): ModelFit {
+  const opt = validateOptions(options);
+  const data = screen(X, y, options);
+  const terms = opt.intercept ? [INTERCEPT_TERM, ...X.names] : [...X.names];
+  const p = terms.length;
+  const penalized = opt.penalty > 0;
+  const diagnostics: Diagnostic[] = [];
+  const rowsToCaller = (rows: number[]): number[] => rows.map((r) => data.rowIndex[r]);
+
+  if (data.skipped > 0) {
+    diagnostics.push(diag("ROWS_SKIPPED", "warning", { count: data.skipped, detail: data.skippedDetail }));
+  }
+  let observations = 0;
+  let totalSucc = 0;
+  let totalTrials = 0;
+  for (let i = 0; i < data.rows; i++) {
+    observations += data.weights[i];
+    totalSucc += data.weights[i] * data.successes[i];
+    totalTrials += data.weights[i] * data.trials[i];
+  }
+  const base = {
+    kind: "binary" as const,
+    classes: [...classes],
+    positiveClass: classes[1],
+    form: "binary" as const,
+    terms,
+    intercept: opt.intercept,
+    equationClasses: [classes[1]],
+    level: opt.level,
+    intervalMethod: opt.intervalMethod,
+    penalized,
+    penalty: opt.penalty,
+    biasReduced: opt.biasReduction,
+    rowsUsed: data.rows,
+    observations,
+  };
+  const failed = (aliased: boolean[] = new Array(p).fill(false)): ModelFit => {
+    const coefficients = [new Float64Array(p).fill(NaN)];
+    return {
+      ...base,
+      coefficients,
+      covariance: null,
+      table: buildCoefficientTable({ terms, equationClasses: base.equationClasses, coefficients, covariance: null, aliased, level: opt.level, penalized }),
+      aliased,
+      logLikelihood: NaN,
+      nullLogLikelihood: NaN,
+      deviance: NaN,
+      nullDeviance: NaN,
+      aic: NaN,
+      bic: NaN,
+      pseudoR2: NaN,
+      lrTest: { statistic: NaN, df: NaN, p: NaN },
+      parameters: 0,
+      iterations: 0,
+      converged: false,
+      diagnostics,
+    };
+  };
+
+  if (data.rows === 0) {
+    const missing = data.skippedDetail || "none (every row has zero weight or zero trials)";
+    diagnostics.push(diag("NO_USABLE_ROWS", "error", { missing }));
+    return failed();
+  }
+  if (totalSucc === 0 || totalSucc === totalTrials) {
+    diagnostics.push(diag("ONE_CLASS_ONLY", "error", { label: totalSucc === 0 ? classes[0] : classes[1] }));
+    return failed();
+  }
+  if (!penalized && data.rows < p) {
+    diagnostics.push(diag("TOO_FEW_ROWS", "error", { rows: data.rows, parameters: p }));
+    return failed();
+  }
+
+  // ---- internal coordinates: centre (with an intercept) and scale every column -------------
+  const n = data.rows;
+  const a = new Float64Array(n); // Bernoulli observations each row stands for: w_i t_i
+  let sumA = 0;
+  for (let i = 0; i < n; i++) {
+    a[i] = data.weights[i] * data.trials[i];
+    sumA += a[i];
+  }
+  const q = X.columns.length;
+  const centre = new Float64Array(q);
+  const scale = new Float64Array(q);
+  const sd = new Float64Array(q);
+  const z: Float64Array[] = [];
+  if (opt.intercept) z.push(new Float64Array(n).fill(1));
+  for (let j = 0; j < q; j++) {
+    const x = data.columns[j];
+    let m = 0;
+    for (let i = 0; i < n; i++) m += a[i] * x[i];
+    m /= sumA;
+    let v = 0;
+    let ms = 0;
+    for (let i = 0; i < n; i++) {
+      v += a[i] * (x[i] - m) * (x[i] - m);
+      ms += a[i] * x[i] * x[i];
+    }
+    sd[j] = Math.sqrt(v / sumA);
+    const s = opt.intercept ? sd[j] : Math.sqrt(ms / sumA);
+    scale[j] = s > 0 ? s : 1;
+    centre[j] = opt.intercept ? m : 0;
+    const col = new Float64Array(n);
+    for (let i = 0; i < n; i++) col[i] = (x[i] - centre[j]) / scale[j];
+    z.push(col);
+  }
+  const off0 = opt.intercept ? 1 : 0;
+  const penaltyAll = new Float64Array(p);
+  if (penalized) {
+    for (let j = 0; j < q; j++) {
+      const ps = opt.penaltyScale === "standardized" ? sd[j] : 1;
+      penaltyAll[off0 + j] = opt.penalty * (ps / scale[j]) ** 2;
+    }
+  }
+
+  // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
+  const gram = weightedCrossProduct(z, a, n, new Float64Array(p * p));
+  for (let j = 0; j < p; j++) gram[j * p + j] += penaltyAll[j];
+  const rr = rankRevealingCholesky(gram, p, ALIAS_TOLERANCE);
+  const aliased = new Array<boolean>(p).fill(false);
+  for (const j of rr.dependent) aliased[j] = true;
+  if (rr.dependent.length > 0) {
+    diagnostics.push(
+      diag("ALIASED_COLUMNS", "warning", { columns: listNames(rr.dependent.map((j) => terms[j])) }, { columns: rr.dependent.map((j) => terms[j]) }),
+    );
+  }
+  const kept = rr.independent;
+  const k = kept.length;
+  const zk = kept.map((j) => z[j]);
+  const interceptIndex = opt.intercept && !aliased[0] ? 0 : -1;
+  const response: BinaryResponse = { rows: n, successes: data.successes, trials: data.trials };
+
+  // ---- main fit ----------------------------------------------------------------------------
+  const problemK: NewtonProblem = {
+    rows: n,
+    columns: zk,
+    successes: data.successes,
+    trials: data.trials,
+    weights: data.weights,
+    offset: data.offset,
+    penalty: Float64Array.from(kept.map((j) => penaltyAll[j])),
+    firth: opt.biasReduction,
+    maxIterations: opt.maxIterations,
+    tolerance: opt.tolerance,
+    keepHistory: !penalized && !opt.biasReduction,
+  };
+  const fit = newtonLogistic(problemK);
+  const { logBinom, saturated } = constantTerms(data);
+
+  // ---- separation --------------------------------------------------------------------------
+  let separation: SeparationFinding | null = null;
+  const univariate: { col: number; rows: number[]; complete: boolean }[] = [];
+  for (let t = 0; t < k; t++) {
+    const j = kept[t];
+    if (j === interceptIndex && opt.intercept) continue;
+    const u = univariateSeparation(data.columns[j - off0], response);
+    if (u) univariate.push({ col: t, rows: u.rows, complete: u.complete });
+  }
+  if (!penalized && !opt.biasReduction) {
+    separation = separationFromIterates(zk, fit.history, fit.eta, response, kept.indexOf(0) === 0 && opt.intercept ? 0 : -1);
+  }
+  if (!separation && univariate.length > 0) {
+    // Certify the first univariate finding in the fitting coordinates (it is already exact).
+    const u = univariate[0];
+    separation = { complete: u.complete, columns: univariate.map((v) => v.col), rows: u.rows };
+  }
+  if (separation) {
+    const colNames = separation.columns.map((t) => terms[kept[t]]);
+    const rows = rowsToCaller(separation.rows);
+    const example = rows.slice(0, 5).map((r) => r + 1).join(", ");
+    if (!penalized && !opt.biasReduction) {
+      const code: MessageCode = separation.complete ? "SEPARATION_COMPLETE" : "SEPARATION_QUASI";
+      diagnostics.push(
+        diag(code, "error", { columns: listNames(colNames), count: rows.length, rows: example }, { columns: colNames, rows }),
+      );
+    } else {
+      const method = opt.biasReduction ? "bias reduction (Firth)" : "penalty";
+      diagnostics.push(
+        diag("SEPARATION_HANDLED", "note", { columns: listNames(colNames), count: rows.length, rows: example, method }, { columns: colNames, rows }),
+      );
+    }
+  }
+  const separatedUnusable = separation !== null && !penalized && !opt.biasReduction;
+
+  if (!fit.converged && !separatedUnusable) {
+    diagnostics.push(diag("NOT_CONVERGED", "warning", { iterations: fit.iterations, change: fit.lastChange.toPrecision(3) }));
+  }
+
+  // ---- back to the original scale ----------------------------------------------------------
+  // T maps fitting coordinates of the kept terms to original ones.
+  const T = new Float64Array(k * k);
+  for (let t = 0; t < k; t++) {
+    const j = kept[t];
+    if (opt.intercept && j === 0) {
+      T[t * k + t] = 1;
+    } else {
+      const c = j - off0;
+      T[t * k + t] = 1 / scale[c];
+      if (interceptIndex === 0) T[0 * k + t] = -centre[c] / scale[c];
+    }
+  }
+  const coefK = new Float64Array(k);
+  for (let r = 0; r < k; r++) {
+    let s = 0;
+    for (let c = 0; c < k; c++) s += T[r * k + c] * fit.coefficients[c];
+    coefK[r] = s;
+  }
+  let covK: Float64Array | null = null;
+  if (!penalized && !separatedUnusable) {
+    const inv = invertSymmetric(fit.information, k);
+    if (inv) covK = congruence(T, inv, k);
+  }
+  const coefficients = new Float64Array(p).fill(NaN);
+  let covariance: Float64Array | null = null;
+  if (!separatedUnusable) {
+    for (let t = 0; t < k; t++) coefficients[kept[t]] = coefK[t];
+    if (covK) {
+      covariance = new Float64Array(p * p).fill(NaN);
+      for (let r = 0; r < k; r++) for (let c = 0; c < k; c++) covariance[kept[r] * p + kept[c]] = covK[r * k + c];
+    }
+  }
+
+  // ---- likelihood summaries ----------------------------------------------------------------
+  const logLikelihood = fit.logLikelihood + logBinom;
+  const nullFit = nullModel(data, opt.intercept, opt.maxIterations, false);
+  const nullLogLikelihood = nullFit.logLikelihood + logBinom;
+  const deviance = 2 * (saturated - fit.logLikelihood);
+  const nullDeviance = 2 * (saturated - nullFit.logLikelihood);
+  const ic = informationCriteria(logLikelihood, k, observations);
+  const df = k - (interceptIndex === 0 ? 1 : 0);
+  let lrTest = likelihoodRatioTest(logLikelihood, nullLogLikelihood, df);
+  if (opt.biasReduction) {
+    // Penalized log-likelihoods l + (1/2) log det I on the original scale (invariant to scaling):
+    // log det I_orig = log det I_fit + 2 sum_j log s_j over the kept non-intercept columns.
+    let logScale = 0;
+    for (const j of kept) if (!(opt.intercept && j === 0)) logScale += Math.log(scale[j - off0]);
+    const c = cholesky(fit.information, k);
+    const penFull = fit.logLikelihood + (c.ok ? 0.5 * logDetFromCholesky(c.factor, k) : NaN) + logScale;
+    const nullFirth = nullModel(data, opt.intercept, opt.maxIterations, true);
+    const statistic = 2 * (penFull - nullFirth.penalizedLogLikelihood);
+    lrTest = { statistic, df, p: df > 0 ? chiSquareSurvival(Math.max(statistic, 0), df) : NaN };
+  }
+  if (penalized) {
+    lrTest = { ...lrTest, p: NaN };
+    diagnostics.push(penalizedNote(opt.penalty));
+  }
+
+  // ---- intervals ---------------------------------------------------------------------------
+  let intervals: Interval[] | null = null;
+  if (opt.intervalMethod === "profile" && !separatedUnusable) {
+    if (penalized || opt.biasReduction) {
+      diagnostics.push(
+        diag("PROFILE_NOT_AVAILABLE", "note", {
+          reason: penalized ? "penalized fits" : "bias-reduced (Firth) fits",
+          shown: penalized ? "no intervals" : "Wald intervals",
+        }),
+      );
+    } else if (covK) {
+      const seK = new Float64Array(k);
+      for (let t = 0; t < k; t++) seK[t] = Math.sqrt(covK[t * k + t]);
+      const prof = profileIntervals(
+        {
+          rows: n,
+          columns: kept.filter((j) => !(opt.intercept && j === 0)).map((j) => data.columns[j - off0]),
+          intercept: interceptIndex === 0,
+          successes: data.successes,
+          trials: data.trials,
+          weights: data.weights,
+          offset: data.offset,
+          estimate: coefK,
+          standardError: seK,
+          logLikelihood: fit.logLikelihood,
+          maxIterations: opt.maxIterations,
+          tolerance: opt.tolerance,
+        },
+        opt.level,
+      );
+      intervals = new Array<Interval>(p).fill({ lower: NaN, upper: NaN });
+      for (let t = 0; t < k; t++) {
+        intervals[kept[t]] = { lower: prof[t].lower, upper: prof[t].upper };
+        for (const side of prof[t].open) {
+          diagnostics.push(
+            diag("PROFILE_INTERVAL_OPEN", "warning", { term: terms[kept[t]], side, limit: "64 Wald half-widths of the estimate" }, { columns: [terms[kept[t]]] }),
+          );
+        }
+      }
+    }
+  }
+
+  const table = buildCoefficientTable({
+    terms,
+    equationClasses: base.equationClasses,
+    coefficients: [coefficients],
+    covariance,
+    aliased,
+    level: opt.level,
+    penalized,
+    intervals,
+  });
+  return {
+    ...base,
+    coefficients: [coefficients],
+    covariance,
+    table,
+    aliased,
+    logLikelihood,
+    nullLogLikelihood,
+    deviance,
+    nullDeviance,
+    aic: ic.aic,
+    bic: ic.bic,
+    pseudoR2: mcFaddenR2(logLikelihood, nullLogLikelihood),
+    lrTest,
+    parameters: k,
+    iterations: fit.iterations,
+    converged: fit.converged && !separatedUnusable,
+    diagnostics,
+  };
+}
+
+/**
+ * Intercept-only model with the same weights, trials and offset (or the offset alone without an
+ * intercept). Returns the kernel log-likelihood and, for Firth, the penalized one.
+ */
+function nullModel(d: FitData, intercept: boolean, maxIterations: number, firth: boolean): { logLikelihood: number; penalizedLogLikelihood: number } {
+  const n = d.rows;
+  if (!intercept) {
+    const r = newtonLogistic({
+      rows: n,
+      columns: [],
+      successes: d.successes,
+      trials: d.trials,
+      weights: d.weights,
+      offset: d.offset,
+      penalty: new Float64Array(0),
+      firth: false,
+      maxIterations: 1,
+      tolerance: 1e-12,
+    });
+    return { logLikelihood: r.logLikelihood, penalizedLogLikelihood: r.logLikelihood };
+  }
+  const r: NewtonResult = newtonLogistic({
+    rows: n,
+    columns: [new Float64Array(n).fill(1)],
+    successes: d.successes,
+    trials: d.trials,
+    weights: d.weights,
+    offset: d.offset,
+    penalty: new Float64Array(1),
+    firth,
+    maxIterations,
+    tolerance: 1e-13,
+  });
+  return { logLikelihood: r.logLikelihood, penalizedLogLikelihood: -r.objective };
+}
+
+

@@ -1,0 +1,277 @@
+/**
+ * The Newton-Raphson (equivalently IRLS) core of the binary logistic fit, on columns that the
+ * caller has already centred and scaled. Kept apart from fitBinaryModel so the profile-likelihood
+ * and null-model fits reuse exactly the same loop.
+ *
+ * Objective (minimized):  F(g) = -l(g) + (1/2) sum_j pen_j g_j^2 - [firth] (1/2) log det I(g),
+ * with l(g) = sum_i w_i [ y_i log mu_i + (t_i - y_i) log(1 - mu_i) ], mu_i = sigmoid(offset_i + z_i'g).
+ * Step: g <- g + I_pen^{-1} U, I_pen = Z'WZ + diag(pen), W_i = w_i t_i mu_i (1 - mu_i), U the
+ * (modified) score. The step is halved while F does not decrease (as glm.fit does on divergence).
+ * Convergence: |D - D_old| / (0.1 + |D|) < tol with D = 2F (the penalized deviance up to a
+ * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations.
+ * References: P. McCullagh & J. A. Nelder, Generalized Linear Models, 2nd ed. (1989), §2.5 (IRLS);
+ * Firth (1993) and Heinze & Schemper (2002) for the modified score (see firth.ts).
+ */
+
+import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
+import { cholesky, choleskySolve, type SquareMatrix } from "./linalg";
+import { logSigmoid, sigmoid } from "./numerics";
+
+/** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
+export interface NewtonProblem {
+  rows: number;
+  /** k design columns, intercept (all ones) first when present. */
+  columns: Float64Array[];
+  /** Successes per row (0/1 for ungrouped data). */
+  successes: Float64Array;
+  /** Trials per row (1 for ungrouped data). */
+  trials: Float64Array;
+  /** Case weights per row (> 0). */
+  weights: Float64Array;
+  /** Offset per row. */
+  offset: Float64Array;
+  /** Ridge penalty per column, >= 0 (0 for the intercept). */
+  penalty: Float64Array;
+  firth: boolean;
+  maxIterations: number;
+  tolerance: number;
+  /** Starting coefficients (length k); default: intercept at the logit of the pooled rate, rest 0. */
+  start?: Float64Array | null;
+  /** Keep every iterate (used by the separation check). */
+  keepHistory?: boolean;
+}
+
+/** What the Newton core returns. */
+export interface NewtonResult {
+  coefficients: Float64Array;
+  /** Objective F at the estimate (see the file comment). */
+  objective: number;
+  /** Kernel log-likelihood l(g) at the estimate (no binomial-coefficient term). */
+  logLikelihood: number;
+  /** Unpenalized Fisher information Z'WZ at the estimate (k*k). */
+  information: SquareMatrix;
+  /** I_pen = information + diag(pen), the matrix whose inverse is the covariance (unpenalized fit). */
+  penalizedInformation: SquareMatrix;
+  /** Linear predictor and fitted probability per row at the estimate. */
+  eta: Float64Array;
+  mu: Float64Array;
+  iterations: number;
+  converged: boolean;
+  /** Last relative change of the deviance. */
+  lastChange: number;
+  /** True when a Cholesky factorization failed (information singular at the tolerance). */
+  singular: boolean;
+  /** Coefficients after each accepted iteration (only with keepHistory). */
+  history: Float64Array[];
+}
+
+/** Halvings tried before a step is declared unable to improve the objective. */
+const MAX_HALVINGS = 30;
+
+/**
+ * Evaluate l(g) into eta/mu buffers; returns the kernel log-likelihood (sum over rows).
+ * No allocation.
+ */
+function evaluate(p: NewtonProblem, g: Float64Array, eta: Float64Array, mu: Float64Array): number {
+  const n = p.rows;
+  eta.set(p.offset.subarray(0, n));
+  for (let j = 0; j < p.columns.length; j++) {
+    const gj = g[j];
+    if (gj === 0) continue;
+    const zj = p.columns[j];
+    for (let i = 0; i < n; i++) eta[i] += gj * zj[i];
+  }
+  const y = p.successes;
+  const t = p.trials;
+  const w = p.weights;
+  let ll = 0;
+  for (let i = 0; i < n; i++) {
+    const e = eta[i];
+    mu[i] = sigmoid(e);
+    const yi = y[i];
+    const fi = t[i] - yi;
+    let li = 0;
+    if (yi !== 0) li += yi * logSigmoid(e);
+    if (fi !== 0) li += fi * logSigmoid(-e);
+    ll += w[i] * li;
+  }
+  return ll;
+}
+
+/** I = Z'WZ (upper triangle then mirrored) with W_i = w_i t_i mu_i (1 - mu_i); fills fisherW. */
+function information(p: NewtonProblem, mu: Float64Array, fisherW: Float64Array, work: Float64Array, out: SquareMatrix): SquareMatrix {
+  const n = p.rows;
+  const k = p.columns.length;
+  for (let i = 0; i < n; i++) fisherW[i] = p.weights[i] * p.trials[i] * mu[i] * (1 - mu[i]);
+  for (let j = 0; j < k; j++) {
+    const zj = p.columns[j];
+    for (let i = 0; i < n; i++) work[i] = fisherW[i] * zj[i];
+    for (let l = j; l < k; l++) {
+      const zl = p.columns[l];
+      let s = 0;
+      for (let i = 0; i < n; i++) s += work[i] * zl[i];
+      out[j * k + l] = s;
+      out[l * k + j] = s;
+    }
+  }
+  return out;
+}
+
+function penaltyValue(p: NewtonProblem, g: Float64Array): number {
+  let s = 0;
+  for (let j = 0; j < g.length; j++) s += p.penalty[j] * g[j] * g[j];
+  return 0.5 * s;
+}
+
+/**
+ * Minimize the (penalized / bias-reduced) negative log-likelihood by Newton-Raphson with step
+ * halving. Never throws: a singular information matrix ends the loop with singular = true.
+ * @see file comment for the objective, step and convergence rule.
+ */
+export function newtonLogistic(p: NewtonProblem): NewtonResult {
+  const n = p.rows;
+  const k = p.columns.length;
+  const eta = new Float64Array(n);
+  const mu = new Float64Array(n);
+  const etaTry = new Float64Array(n);
+  const muTry = new Float64Array(n);
+  const fisherW = new Float64Array(n);
+  const work = new Float64Array(n);
+  const hat = p.firth ? new Float64Array(n) : work;
+  const info = new Float64Array(k * k);
+  const infoPen = new Float64Array(k * k);
+  const score = new Float64Array(k);
+  const step = new Float64Array(k);
+  const gTry = new Float64Array(k);
+  const history: Float64Array[] = [];
+
+  const g = new Float64Array(k);
+  if (p.start) {
+    g.set(p.start);
+  } else if (k > 0 && isInterceptColumn(p.columns[0], n)) {
+    let sy = 0;
+    let st = 0;
+    for (let i = 0; i < n; i++) {
+      sy += p.weights[i] * p.successes[i];
+      st += p.weights[i] * p.trials[i];
+    }
+    const rate = Math.min(Math.max(sy / st, 1e-8), 1 - 1e-8);
+    g[0] = Math.log(rate / (1 - rate));
+  }
+
+  // State at g: log-likelihood, objective (needs log det I for Firth), information and its factor.
+  let ll = evaluate(p, g, eta, mu);
+  information(p, mu, fisherW, work, info);
+  let factor = firthFactor(p, info, k);
+  let singular = factor === null && p.firth;
+  let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
+
+  let iterations = 0;
+  let converged = false;
+  let lastChange = NaN;
+  while (!singular && iterations < p.maxIterations) {
+    iterations++;
+    // Score U = Z'(w (y - t mu)) - pen .* g  [+ Firth adjustment].
+    for (let i = 0; i < n; i++) work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * mu[i]);
+    for (let j = 0; j < k; j++) {
+      const zj = p.columns[j];
+      let s = 0;
+      for (let i = 0; i < n; i++) s += work[i] * zj[i];
+      score[j] = s - p.penalty[j] * g[j];
+    }
+    if (p.firth && factor) {
+      hatValues(p.columns, factor, fisherW, n, work, hat);
+      addFirthScoreAdjustment(p.columns, hat, mu, n, score);
+    }
+    infoPen.set(info);
+    for (let j = 0; j < k; j++) infoPen[j * k + j] += p.penalty[j];
+    const c = cholesky(infoPen, k);
+    if (!c.ok) {
+      singular = true;
+      break;
+    }
+    choleskySolve(c.factor, k, score, step);
+    // Newton decrement: U' I^{-1} U ~ twice the predicted decrease of F.
+    let decrement = 0;
+    for (let j = 0; j < k; j++) decrement += score[j] * step[j];
+
+    let scale = 1;
+    let accepted = false;
+    let llTry = 0;
+    let objTry = 0;
+    let factorTry: SquareMatrix | null = null;
+    const infoTry = infoPen; // reuse as scratch for the candidate's information (infoPen is consumed)
+    for (let h = 0; h <= MAX_HALVINGS; h++) {
+      for (let j = 0; j < k; j++) gTry[j] = g[j] + scale * step[j];
+      llTry = evaluate(p, gTry, etaTry, muTry);
+      objTry = -llTry + penaltyValue(p, gTry);
+      if (p.firth) {
+        information(p, muTry, work, hat, infoTry);
+        factorTry = firthFactor(p, infoTry, k);
+        objTry = factorTry ? objTry - 0.5 * logDetFromCholesky(factorTry, k) : Infinity;
+      }
+      if (objTry <= objective + 1e-13 * Math.abs(objective) && Number.isFinite(objTry)) {
+        accepted = true;
+        break;
+      }
+      scale *= 0.5;
+    }
+    if (!accepted) {
+      // No decrease along the Newton direction: at the optimum up to rounding when the predicted
+      // decrease is negligible; otherwise report non-convergence.
+      const dev = 2 * objective;
+      lastChange = decrement / (0.1 + Math.abs(dev));
+      converged = lastChange < 10 * p.tolerance;
+      break;
+    }
+    g.set(gTry);
+    eta.set(etaTry);
+    mu.set(muTry);
+    ll = llTry;
+    const devOld = 2 * objective;
+    objective = objTry;
+    const dev = 2 * objective;
+    lastChange = Math.abs(dev - devOld) / (0.1 + Math.abs(dev));
+    if (p.keepHistory) history.push(Float64Array.from(g));
+    information(p, mu, fisherW, work, info);
+    if (p.firth) {
+      factor = firthFactor(p, info, k);
+      if (!factor) {
+        singular = true;
+        break;
+      }
+    }
+    if (lastChange < p.tolerance) {
+      converged = true;
+      break;
+    }
+  }
+  // Information at the final g (already current: it is refreshed after each accepted step).
+  const penalizedInformation = Float64Array.from(info);
+  for (let j = 0; j < k; j++) penalizedInformation[j * k + j] += p.penalty[j];
+  return {
+    coefficients: g,
+    objective,
+    logLikelihood: ll,
+    information: Float64Array.from(info),
+    penalizedInformation,
+    eta,
+    mu,
+    iterations,
+    converged,
+    lastChange,
+    singular,
+    history,
+  };
+}
+
+function firthFactor(p: NewtonProblem, info: SquareMatrix, k: number): SquareMatrix | null {
+  if (!p.firth) return null;
+  const c = cholesky(info, k);
+  return c.ok ? c.factor : null;
+}
+
+function isInterceptColumn(col: Float64Array, n: number): boolean {
+  for (let i = 0; i < n; i++) if (col[i] !== 1) return false;
+  return n > 0;
+}
