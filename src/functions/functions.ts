@@ -1,0 +1,160 @@
+/**
+ * Oddsmith's cell functions (namespace ODDS).
+ *
+ * This file only declares the functions Excel sees. Their JSDoc IS the metadata (functions.json is
+ * generated from it by CustomFunctionsMetadataPlugin) and the user's tooltip. Each body calls a pure
+ * adapter (2-D arrays in, 2-D array out) through `runCell`, which turns a thrown problem into a cell
+ * error with its catalogue message. The preview workbench calls the same adapters through registry.ts.
+ *
+ * Metadata rules kept here (see docs/platform-notes): top-level `function` declarations only; the
+ * description comes BEFORE @customfunction; ranges are typed `any[][]`; an omitted optional argument
+ * arrives as null (TypeScript defaults never apply); ids never change once published.
+ */
+/* eslint-disable @typescript-eslint/no-explicit-any */
+import { runCell } from "./cellError";
+import { CELL_FUNCTIONS_BY_NAME as F } from "./registry";
+
+/**
+ * Fits a logistic (two classes) or softmax (three or more classes) classifier and spills its coefficient table: coefficient, standard error, z, p, interval and odds ratio (relative-risk ratio for several classes) per term.
+ * @customfunction FIT FIT
+ * @helpurl https://localhost:3000/help.html#fit
+ * @param labels Label column: one class per row (text, numbers or TRUE/FALSE), with or without a header.
+ * @param predictors Predictor columns, one row per label; a header row names the terms. Text columns become indicator terms.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "positive=yes; level=0.9; firth=true".
+ * @returns Coefficient table with a header row.
+ */
+export function fit(labels: any[][], predictors: any[][], options?: any[][]): any[][] {
+  return runCell(F.FIT.doing, () => F.FIT.adapter(labels, predictors, options ?? null));
+}
+
+/**
+ * Probabilities from a fitted classifier: for each training row (aligned with the input, blank where a row was skipped) or for new rows. One column (positive class) for two classes, one column per class otherwise.
+ * @customfunction PROB PROB
+ * @helpurl https://localhost:3000/help.html#prob
+ * @param labels Label column used for fitting.
+ * @param predictors Predictor columns used for fitting.
+ * @param [new_rows] Rows to score, with the same header names as the predictors. Leave out to score the training rows.
+ * @param [options] Settings as text "name=value; ..." or a two-column range.
+ * @returns Probabilities with a header row naming the class.
+ */
+export function prob(labels: any[][], predictors: any[][], new_rows?: any[][], options?: any[][]): any[][] {
+  return runCell(F.PROB.doing, () => F.PROB.adapter(labels, predictors, new_rows ?? null, options ?? null));
+}
+
+/**
+ * Predicted class of each training row (aligned with the input) or of new rows: for two classes the positive class when its probability reaches the threshold, otherwise the most probable class.
+ * @customfunction CLASS CLASS
+ * @helpurl https://localhost:3000/help.html#class
+ * @param labels Label column used for fitting.
+ * @param predictors Predictor columns used for fitting.
+ * @param [new_rows] Rows to classify, with the same header names as the predictors. Leave out to classify the training rows.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "threshold=0.3".
+ * @returns Predicted classes with a header row.
+ */
+export function predictClass(labels: any[][], predictors: any[][], new_rows?: any[][], options?: any[][]): any[][] {
+  return runCell(F.CLASS.doing, () => F.CLASS.adapter(labels, predictors, new_rows ?? null, options ?? null));
+}
+
+/**
+ * Distance of each row to the decision boundary: |probability - threshold| for two classes, the gap between the two largest class probabilities otherwise. Small margins mark borderline rows.
+ * @customfunction MARGIN MARGIN
+ * @helpurl https://localhost:3000/help.html#margin
+ * @param labels Label column used for fitting.
+ * @param predictors Predictor columns used for fitting.
+ * @param [new_rows] Rows to measure, with the same header names as the predictors. Leave out to use the training rows.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "threshold=0.3".
+ * @returns Margins with a header row.
+ */
+export function margin(labels: any[][], predictors: any[][], new_rows?: any[][], options?: any[][]): any[][] {
+  return runCell(F.MARGIN.doing, () => F.MARGIN.adapter(labels, predictors, new_rows ?? null, options ?? null));
+}
+
+/**
+ * Fit statistics as a two-column table: rows used and skipped, classes, iterations, convergence, log-likelihood, deviance, AIC, BIC, pseudo-R2, likelihood-ratio test, log-loss, Brier score, accuracy, AUC and every diagnostic in words.
+ * @customfunction REPORT REPORT
+ * @helpurl https://localhost:3000/help.html#report
+ * @param labels Label column used for fitting.
+ * @param predictors Predictor columns used for fitting.
+ * @param [options] Settings as text "name=value; ..." or a two-column range.
+ * @returns Two columns: statistic and value.
+ */
+export function report(labels: any[][], predictors: any[][], options?: any[][]): any[][] {
+  return runCell(F.REPORT.doing, () => F.REPORT.adapter(labels, predictors, options ?? null));
+}
+
+/**
+ * Log-loss (mean negative log-likelihood) of predicted probabilities against the actual labels. Lower is better.
+ * @customfunction LOGLOSS LOGLOSS
+ * @helpurl https://localhost:3000/help.html#logloss
+ * @param labels Actual classes, one per row.
+ * @param probabilities Predicted probabilities: one column (positive class) for two classes, or one column per class with a header row naming the classes.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "positive=yes".
+ * @returns The log-loss.
+ */
+export function logLoss(labels: any[][], probabilities: any[][], options?: any[][]): any[][] {
+  return runCell(F.LOGLOSS.doing, () => F.LOGLOSS.adapter(labels, probabilities, options ?? null));
+}
+
+/**
+ * Area under the ROC curve of predicted probabilities against two-class labels, with a DeLong confidence interval.
+ * @customfunction AUC AUC
+ * @helpurl https://localhost:3000/help.html#auc
+ * @param labels Actual classes (two), one per row.
+ * @param probabilities Predicted probability of the positive class, one per row.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "positive=yes; level=0.9".
+ * @returns AUC, lower and upper interval ends, with a header row.
+ */
+export function auc(labels: any[][], probabilities: any[][], options?: any[][]): any[][] {
+  return runCell(F.AUC.doing, () => F.AUC.adapter(labels, probabilities, options ?? null));
+}
+
+/**
+ * Confusion counts of actual against predicted classes at a threshold, with sensitivity, specificity, precision and accuracy.
+ * @customfunction CONFUSION CONFUSION
+ * @helpurl https://localhost:3000/help.html#confusion
+ * @param labels Actual classes, one per row.
+ * @param probabilities Predicted probabilities: one column (positive class) for two classes, or one column per class with a header row naming the classes.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "threshold=0.3; positive=yes".
+ * @returns Count table and rates.
+ */
+export function confusion(labels: any[][], probabilities: any[][], options?: any[][]): any[][] {
+  return runCell(F.CONFUSION.doing, () => F.CONFUSION.adapter(labels, probabilities, options ?? null));
+}
+
+/**
+ * Calibration table: rows grouped by predicted probability, with mean predicted and observed rates per group, and the Hosmer-Lemeshow test.
+ * @customfunction CALIBRATION CALIBRATION
+ * @helpurl https://localhost:3000/help.html#calibration
+ * @param labels Actual classes (two), one per row.
+ * @param probabilities Predicted probability of the positive class, one per row.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "groups=10; positive=yes".
+ * @returns One row per group and the test result.
+ */
+export function calibration(labels: any[][], probabilities: any[][], options?: any[][]): any[][] {
+  return runCell(F.CALIBRATION.doing, () => F.CALIBRATION.adapter(labels, probabilities, options ?? null));
+}
+
+/**
+ * Probabilities from a coefficient table already on the sheet (for example the output of ODDS.FIT, edited or copied), so a model can live in cells.
+ * @customfunction SCORE SCORE
+ * @helpurl https://localhost:3000/help.html#score
+ * @param coefficients Coefficient table with a header row holding at least "term" and "coefficient" (and "class" for several classes).
+ * @param rows Rows to score, with a header row whose names match the terms.
+ * @returns Probabilities with a header row naming the class.
+ */
+export function score(coefficients: any[][], rows: any[][]): any[][] {
+  return runCell(F.SCORE.doing, () => F.SCORE.adapter(coefficients, rows));
+}
+
+/**
+ * Builds non-linear basis columns (polynomials, splines and other transforms) from data columns following a recipe, with a header row naming each new column.
+ * @customfunction BASIS BASIS
+ * @helpurl https://localhost:3000/help.html#basis
+ * @param data Columns to transform, with a header row.
+ * @param recipe The transforms as text, e.g. "poly(age, 2); ns(income, 4)".
+ * @param [training_data] Columns the recipe was fitted on (knots, centres, scales); leave out to fit on data.
+ * @returns Basis columns with a header row.
+ */
+export function basis(data: any[][], recipe: any[][], training_data?: any[][]): any[][] {
+  return runCell(F.BASIS.doing, () => F.BASIS.adapter(data, recipe, training_data ?? null));
+}

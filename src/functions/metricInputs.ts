@@ -1,0 +1,243 @@
+/**
+ * Reading the (labels, probabilities) pair of the metric cell functions: LOGLOSS, AUC, CONFUSION,
+ * CALIBRATION. Ranges go through the shared range parser (readTable) and label reader (readLabels),
+ * so blanks, numbers-as-text and headers mean what they mean everywhere else.
+ *
+ * Policy (one line each):
+ * - labels is one column; probabilities one column (positive-class probability, two classes) or one
+ *   column per class. Both ranges must be equally tall (header rows included).
+ * - Probability columns are matched to classes by their header names, "P(yes)" or "yes" (the header
+ *   ODDS.PROB writes); without a header, several columns follow the classes' sorted order.
+ * - Two classes and one column: the column is the positive class's probability. The positive class is
+ *   the `positive` option, else the class the column's header names, else the labels' default rule.
+ * - A row whose label is blank, or whose probability cells are all blank (a row ODDS.PROB left blank
+ *   because it was skipped by the fit), is skipped and counted; a row with some but not all class
+ *   probabilities blank is an error (METRIC_MISSING_VALUE) naming the sheet row.
+ * - Row numbers in every message are 1-based rows of the ranges as selected (header row = row 1).
+ */
+import { compareText, matchClass, readLabels, type LabelInfo } from "../engine/labels";
+import { OddsmithError, listNames, problem } from "../engine/messages";
+import { readTable, type Table } from "../engine/table";
+import type { CellValue } from "../engine/types";
+
+export interface MetricInputOptions {
+  /** Function name as the user sees it, for messages ("ODDS.AUC"). */
+  fn: string;
+  positive?: string | null;
+  headers?: "auto" | "yes" | "no";
+  /** True for metrics defined for two classes only (AUC, CALIBRATION). */
+  binaryOnly?: boolean;
+}
+
+export interface MetricInputs {
+  kind: "binary" | "multiclass";
+  /** Binary: [negative, positive]. Multi-class: one class per probability column, in column order. */
+  classes: string[];
+  positiveClass?: string;
+  /** Binary: 1 for the positive class, 0 otherwise, per used row. */
+  y: Float64Array;
+  /** Binary: probability of the positive class per used row. */
+  p: Float64Array;
+  /** Multi-class: observed class index per used row (into `classes`). */
+  classIndex: Int32Array;
+  /** Multi-class: one array per class column, per used row. */
+  probabilities: Float64Array[];
+  rowsUsed: number;
+  rowsSkipped: number;
+  /** 1-based row of the labels range (as selected) of each used row. */
+  sheetRows: Int32Array;
+}
+
+/** "P(yes)" -> "yes"; "yes" -> "yes". */
+export function classFromHeader(name: string): string {
+  const m = /^\s*P\s*\((.*)\)\s*$/i.exec(name);
+  return (m ? m[1] : name).trim();
+}
+
+/** The labels' classes in sorted order (readLabels puts a binary problem as [negative, positive]). */
+function sortedClasses(info: LabelInfo): string[] {
+  if (info.kind === "multiclass") return info.classes.slice();
+  const c = info.classes.slice();
+  if (info.source === "text") return c.sort(compareText);
+  const value = (s: string) => (s === "TRUE" ? 1 : s === "FALSE" ? 0 : Number(s));
+  return c.sort((a, b) => value(a) - value(b));
+}
+
+function dataHeight(t: Table): number {
+  return t.rows + t.trimmedRows;
+}
+
+function numericColumnValues(table: Table, j: number): Float64Array {
+  const col = table.columns[j];
+  if (col.kind === "text") {
+    const i = col.values.findIndex((v, k) => !col.missing[k]);
+    throw problem("NOT_A_NUMBER", { argument: table.argument, row: table.firstRow + i, column: j + 1, value: col.values[i] });
+  }
+  return col.values;
+}
+
+/** Which class each probability column holds (null when the columns have no class names). */
+function columnClasses(table: Table, labelClasses: readonly string[], source: LabelInfo["source"]): (string | null)[] {
+  if (!table.header) return table.columns.map(() => null);
+  return table.names.map((name) => {
+    const wanted = classFromHeader(name);
+    try {
+      return matchClass(labelClasses, wanted, source, "positive");
+    } catch {
+      return wanted;
+    }
+  });
+}
+
+/**
+ * Read and align the labels and probabilities of a metric call.
+ * @throws OddsmithError SINGLE_COLUMN_NEEDED, RANGE_SHAPE_MISMATCH, NOT_A_NUMBER, PROBABILITY_COLUMN_COUNT,
+ *   PROBABILITY_COLUMN_MISSING, BINARY_METRIC_ONLY, METRIC_MISSING_VALUE, NO_USABLE_ROWS, and the
+ *   label problems of readLabels (ONE_CLASS_ONLY, TOO_MANY_CLASSES, CLASS_NOT_FOUND)
+ */
+export function readMetricInputs(
+  labelCells: CellValue[][],
+  probabilityCells: CellValue[][],
+  options: MetricInputOptions,
+): MetricInputs {
+  const headers = options.headers ?? "auto";
+  const labelTable = readTable(labelCells, { argument: "labels", headers });
+  if (labelTable.columns.length !== 1) {
+    throw problem("SINGLE_COLUMN_NEEDED", { argument: "labels", columns: labelTable.columns.length });
+  }
+  const probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column " });
+  const labelRows = dataHeight(labelTable) + (labelTable.header ? 1 : 0);
+  const probRows = dataHeight(probTable) + (probTable.header ? 1 : 0);
+  if (labelRows !== probRows || labelTable.header !== probTable.header) {
+    throw problem("RANGE_SHAPE_MISMATCH", {
+      argument: "probabilities",
+      got: probRows,
+      expectedArgument: "labels",
+      expected: labelRows,
+    });
+  }
+  const columns = probTable.columns.map((_, j) => numericColumnValues(probTable, j));
+  const n = dataHeight(labelTable);
+  const cellAt = (col: Float64Array, i: number) => (i < col.length ? col[i] : NaN);
+
+  // Rows kept: a label and at least one probability.
+  const labelColumn = labelTable.columns[0];
+  const use = new Uint8Array(labelTable.rows);
+  for (let i = 0; i < labelTable.rows; i++) {
+    if (labelColumn.missing[i]) continue;
+    if (columns.some((c) => !Number.isNaN(cellAt(c, i)))) use[i] = 1;
+  }
+  if (!use.some((u) => u === 1)) {
+    throw problem("NO_USABLE_ROWS", { missing: `labels ${countMissing(labelColumn.missing)}, probabilities blank in the other rows` });
+  }
+  const firstPass = readLabels(labelColumn, { use });
+  const named = columnClasses(probTable, firstPass.classes, firstPass.source);
+
+  let kind: "binary" | "multiclass";
+  let classes: string[];
+  let info: LabelInfo;
+  let columnOf: number[];
+  if (columns.length === 1) {
+    if (firstPass.kind !== "binary") {
+      throw problem("PROBABILITY_COLUMN_COUNT", { got: 1, count: firstPass.classes.length, classes: listNames(firstPass.classes) });
+    }
+    const headerClass = named[0] !== null && firstPass.classes.includes(named[0]) ? named[0] : null;
+    info = readLabels(labelColumn, { use, positive: options.positive ?? headerClass });
+    kind = "binary";
+    classes = info.classes;
+    columnOf = [0];
+  } else {
+    const binary = firstPass.kind === "binary";
+    if (options.binaryOnly && !binary) {
+      throw problem("BINARY_METRIC_ONLY", { fn: options.fn, count: firstPass.classes.length, classes: listNames(firstPass.classes) });
+    }
+    let columnClassNames: string[];
+    if (named.every((c) => c !== null)) columnClassNames = named as string[];
+    else {
+      // Unnamed columns follow the sorted class order, which needs one column per class.
+      const sorted = sortedClasses(firstPass);
+      if (sorted.length !== columns.length) {
+        throw problem("PROBABILITY_COLUMN_COUNT", { got: columns.length, count: sorted.length, classes: listNames(sorted) });
+      }
+      columnClassNames = sorted;
+    }
+    for (const c of firstPass.classes) {
+      if (!columnClassNames.includes(c)) {
+        throw problem("PROBABILITY_COLUMN_MISSING", { label: c, headers: listNames(probTable.names, 8) });
+      }
+    }
+    if (binary && (options.binaryOnly || columns.length === 2)) {
+      // Two classes with a column each: the positive class's column is the probability.
+      info = readLabels(labelColumn, { use, positive: options.positive ?? null });
+      kind = "binary";
+      classes = info.classes;
+      columnOf = [columnClassNames.indexOf(info.positiveClass as string)];
+    } else {
+      info = firstPass;
+      kind = "multiclass";
+      classes = columnClassNames;
+      columnOf = columnClassNames.map((_, j) => j);
+    }
+  }
+
+  const used: number[] = [];
+  for (let i = 0; i < labelTable.rows; i++) if (use[i]) used.push(i);
+  const m = used.length;
+  const sheetRows = new Int32Array(m);
+  const y = new Float64Array(kind === "binary" ? m : 0);
+  const p = new Float64Array(kind === "binary" ? m : 0);
+  const classIndex = new Int32Array(kind === "multiclass" ? m : 0);
+  const probabilities = kind === "multiclass" ? columnOf.map(() => new Float64Array(m)) : [];
+  for (let r = 0; r < m; r++) {
+    const i = used[r];
+    sheetRows[r] = labelTable.firstRow + i;
+    for (const j of columnOf) {
+      if (Number.isNaN(cellAt(columns[j], i))) {
+        // Some class probabilities blank, others not: an incomplete row, not a skipped one.
+        throw problem("METRIC_MISSING_VALUE", { argument: "probabilities", row: sheetRows[r] });
+      }
+    }
+    if (kind === "binary") {
+      y[r] = info.codes[i] === 1 ? 1 : 0;
+      p[r] = columns[columnOf[0]][i];
+    } else {
+      classIndex[r] = classes.indexOf(info.classes[info.codes[i]]);
+      for (let j = 0; j < columnOf.length; j++) probabilities[j][r] = columns[columnOf[j]][i];
+    }
+  }
+  return {
+    kind,
+    classes,
+    positiveClass: kind === "binary" ? info.positiveClass : undefined,
+    y,
+    p,
+    classIndex,
+    probabilities,
+    rowsUsed: m,
+    rowsSkipped: n - m,
+    sheetRows,
+  };
+}
+
+function countMissing(missing: Uint8Array): number {
+  let k = 0;
+  for (const v of missing) k += v;
+  return k;
+}
+
+/**
+ * Run a metric on inputs read by {@link readMetricInputs}, re-mapping the row numbers of its
+ * messages from positions among the used rows to rows of the ranges as selected.
+ */
+export function withSheetRows<T>(inputs: MetricInputs, body: () => T): T {
+  try {
+    return body();
+  } catch (error) {
+    if (error instanceof OddsmithError && typeof error.params.index === "number") {
+      const index = error.params.index;
+      const row = index >= 0 && index < inputs.sheetRows.length ? inputs.sheetRows[index] : error.params.row;
+      throw new OddsmithError(error.code, { ...error.params, row });
+    }
+    throw error;
+  }
+}

@@ -1,0 +1,31 @@
+/**
+ * Option schemas of the metric cell functions, composed from the shared option specs of options.ts
+ * (the one parser). Only the options a metric really uses are accepted: anything else is reported as
+ * an unknown option rather than silently ignored.
+ */
+import { OPT_HEADERS, OPT_LEVEL, OPT_POSITIVE, OPT_THRESHOLD, type ChoiceSpec, type NumberSpec } from "./options";
+
+/** Number of calibration groups (the Hosmer-Lemeshow "deciles of risk" by default). */
+export const OPT_GROUPS = {
+  name: "groups",
+  type: "number",
+  min: 2,
+  max: 1000,
+  integer: true,
+  default: 10,
+  help: "Number of groups of predicted probability (quantile groups; ties stay together).",
+} as const satisfies NumberSpec;
+
+/** Whether the probabilities come from a model fitted to the same rows (changes the H-L df). */
+export const OPT_SAMPLE = {
+  name: "sample",
+  type: "choice",
+  choices: ["development", "external"],
+  default: "development",
+  help: "development: the probabilities come from a model fitted to these rows (df = groups - 2); external: from a model fitted elsewhere (df = groups).",
+} as const satisfies ChoiceSpec;
+
+export const LOGLOSS_OPTIONS = [OPT_POSITIVE, OPT_HEADERS] as const;
+export const AUC_OPTIONS = [OPT_POSITIVE, OPT_LEVEL, OPT_HEADERS] as const;
+export const CONFUSION_OPTIONS = [OPT_POSITIVE, OPT_THRESHOLD, OPT_HEADERS] as const;
+export const CALIBRATION_OPTIONS = [OPT_POSITIVE, OPT_GROUPS, OPT_SAMPLE, OPT_HEADERS] as const;

@@ -1,0 +1,91 @@
+/**
+ * What the fitting cell functions (FIT, PROB, CLASS, MARGIN, REPORT) share: reading their options,
+ * the payload guard, and one cached fit per distinct input.
+ *
+ * Cache policy: the key is the content of the labels and predictors cells plus every option that
+ * changes the fit (the threshold does not: it only changes scoring), so FIT, PROB, CLASS, MARGIN and
+ * REPORT over the same ranges share one fit, and any edited, appended or deleted cell refits. The
+ * cache is src/shared/fitCache.ts, shared with the task pane in the shared runtime.
+ */
+import { OddsmithError, type MessageCode } from "../engine/messages";
+import { trainModel, type ModelOptions, type TrainedModel } from "../engine/model";
+import type { CellValue, Diagnostic } from "../engine/types";
+import { cellCount, contentKey, sharedFitCache } from "../shared/fitCache";
+import { FIT_OPTIONS, parseBaselines, parseOptions, type ParsedOptions } from "./options";
+import { checkPayload } from "./payload";
+import { required } from "./required";
+
+export type FitCellOptions = ParsedOptions<typeof FIT_OPTIONS>;
+
+/** Parsed options of a fitting function, split into what the fit needs and what scoring needs. */
+export interface ModelCallOptions {
+  model: ModelOptions;
+  threshold: number;
+  headers: "auto" | "yes" | "no";
+  parsed: FitCellOptions;
+}
+
+/** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
+export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
+  const o = parseOptions(fn, FIT_OPTIONS, options);
+  const model: ModelOptions = {
+    headers: o.headers,
+    positive: o.positive,
+    reference: o.reference,
+    intercept: o.intercept,
+    penalty: o.penalty,
+    penaltyScale: o.scale,
+    firth: o.firth,
+    level: o.level,
+    intervalMethod: o.interval,
+    referenceLevels: o.baseline.length > 0 ? parseBaselines(o.baseline) : null,
+    minLevelCount: o.pool,
+    form: o.form,
+  };
+  return { model, threshold: o.threshold, headers: o.headers, parsed: o };
+}
+
+/** The cache shared by every fitting function and the task pane. */
+export function modelCache() {
+  return sharedFitCache<TrainedModel>();
+}
+
+/**
+ * Train (or fetch from the cache) the model of labels x predictors under `options`.
+ * @param extraOutputCells - cells the calling function will return, for the payload estimate
+ * @throws OddsmithError for input problems (never cached: the next call re-checks)
+ */
+export function fittedModel(
+  labels: CellValue[][] | null,
+  predictors: CellValue[][] | null,
+  options: ModelCallOptions,
+  extraOutputCells: number,
+  extraInputs: { argument: string; cells: unknown }[] = [],
+): TrainedModel {
+  const l = required(labels, "labels");
+  const p = required(predictors, "predictors");
+  checkPayload(
+    [{ argument: "labels", cells: l }, { argument: "predictors", cells: p }, ...extraInputs],
+    extraOutputCells,
+  );
+  const key = contentKey("trainModel/1", l, p, options.model as unknown as Record<string, unknown>);
+  return modelCache().getOrCreate(key, cellCount(l, p), () => trainModel(l, p, options.model));
+}
+
+/** The first diagnostic of severity "error" (the fit has no usable estimates), or null. */
+export function fitFailure(model: TrainedModel): Diagnostic | null {
+  return model.fit.diagnostics.find((d) => d.severity === "error") ?? null;
+}
+
+/**
+ * Throw the fit's error diagnostic as a cell error (#N/A with its message): a fit without usable
+ * estimates never shows numbers.
+ */
+export function requireUsableFit(model: TrainedModel): void {
+  const failure = fitFailure(model);
+  if (!failure) return;
+  const error = new OddsmithError(failure.code as MessageCode);
+  // The diagnostic already carries the filled-in message (with columns and rows).
+  error.message = failure.message;
+  throw error;
+}

@@ -1,0 +1,100 @@
+/**
+ * ODDS.PROB, ODDS.CLASS and ODDS.MARGIN: per-row outputs of the (cached) fit of labels x predictors,
+ * for the training rows or for new rows.
+ *
+ * Policy (one line each):
+ * - Output rows line up with the scored range's rows (the training ranges, or new_rows when given):
+ *   a header row naming the output (beside the input's header row), then one row per data row. When
+ *   the scored range has no header row the output has none either, so rows still line up.
+ * - A row that cannot be scored (a blank or unknown value in a predictor) is "" in every column; the
+ *   other rows are scored. Training rows with a blank LABEL but complete predictors are scored too:
+ *   rows to predict can sit below the training rows of the same table with their label left blank.
+ * - PROB: two classes -> one column, the positive class ("P(yes)"); several -> one column per class,
+ *   in the model's class order. CLASS: the predicted class name. MARGIN: two classes ->
+ *   |p - threshold|; several -> the gap between the two largest class probabilities.
+ * - threshold (option) sets the two-class decision for CLASS and MARGIN; it never refits.
+ */
+import { problem } from "../engine/messages";
+import { scoreRows, type RowScores } from "../engine/model";
+import { OPT_THRESHOLD } from "./options";
+import type { CellValue } from "../engine/types";
+import { spill } from "./cellOutput";
+import { fittedModel, readModelOptions, requireUsableFit } from "./modelCell";
+
+type Output = "prob" | "class" | "margin";
+
+const FN: Record<Output, string> = { prob: "ODDS.PROB", class: "ODDS.CLASS", margin: "ODDS.MARGIN" };
+
+/** Rough count of the cells a call returns, for the payload estimate. */
+function outputCells(labels: CellValue[][] | null, newRows: CellValue[][] | null): number {
+  const rows = Array.isArray(newRows) ? newRows.length : Array.isArray(labels) ? labels.length : 1;
+  return rows * 4;
+}
+
+function scored(
+  what: Output,
+  labels: CellValue[][] | null,
+  predictors: CellValue[][] | null,
+  newRows: CellValue[][] | null,
+  options: CellValue[][] | null,
+): RowScores {
+  const opts = readModelOptions(FN[what], options);
+  const model = fittedModel(labels, predictors, opts, outputCells(labels, newRows), newRows ? [{ argument: "new_rows", cells: newRows }] : []);
+  requireUsableFit(model);
+  if (model.kind === "multiclass" && what !== "prob" && opts.threshold !== OPT_THRESHOLD.default) {
+    // A threshold would be silently ignored with several classes: refuse it instead.
+    throw problem("BAD_OPTION_VALUE", {
+      name: "threshold",
+      value: opts.threshold,
+      expected: "A threshold applies to two classes only; with several classes each row gets its most probable class. Remove the threshold option.",
+    });
+  }
+  return scoreRows(model, newRows, { threshold: opts.threshold, headers: opts.headers });
+}
+
+/** The output's header row when the scored range has one (so rows line up), else nothing. */
+function headerRow(s: RowScores, names: string[]): unknown[][] {
+  return s.header ? [names] : [];
+}
+
+/** The ODDS.PROB adapter: class probabilities per row. */
+export function probCell(
+  labels: CellValue[][] | null,
+  predictors: CellValue[][] | null,
+  newRows: CellValue[][] | null,
+  options: CellValue[][] | null,
+): CellValue[][] {
+  const s = scored("prob", labels, predictors, newRows, options);
+  const shown = s.classes.length === 2 ? [s.classes.indexOf(s.positiveClass as string)] : s.classes.map((_, k) => k);
+  const rows: unknown[][] = headerRow(s, shown.map((k) => `P(${s.classes[k]})`));
+  for (let i = 0; i < s.rows; i++) rows.push(shown.map((k) => s.prediction.probabilities[k][i]));
+  return spill(rows);
+}
+
+/** The ODDS.CLASS adapter: predicted class per row. */
+export function classCell(
+  labels: CellValue[][] | null,
+  predictors: CellValue[][] | null,
+  newRows: CellValue[][] | null,
+  options: CellValue[][] | null,
+): CellValue[][] {
+  const s = scored("class", labels, predictors, newRows, options);
+  const header = s.classes.length === 2 ? `predicted class (threshold ${s.threshold})` : "predicted class";
+  const rows: unknown[][] = headerRow(s, [header]);
+  for (let i = 0; i < s.rows; i++) rows.push([s.predictedClass[i] ?? ""]);
+  return spill(rows);
+}
+
+/** The ODDS.MARGIN adapter: distance to the decision boundary per row. */
+export function marginCell(
+  labels: CellValue[][] | null,
+  predictors: CellValue[][] | null,
+  newRows: CellValue[][] | null,
+  options: CellValue[][] | null,
+): CellValue[][] {
+  const s = scored("margin", labels, predictors, newRows, options);
+  const header = s.classes.length === 2 ? `margin |P(${s.positiveClass}) - ${s.threshold}|` : "margin (top two classes)";
+  const rows: unknown[][] = headerRow(s, [header]);
+  for (let i = 0; i < s.rows; i++) rows.push([s.prediction.margin[i]]);
+  return spill(rows);
+}

@@ -1,0 +1,193 @@
+/**
+ * ODDS.SCORE(coefficients, rows): probabilities from a coefficient table that lives on the sheet, so
+ * a model can be kept, copied and edited in cells without refitting.
+ *
+ * Policy (one line each):
+ * - The coefficient table's first row is its header; columns are found by name, case-insensitively:
+ *   "term" and "coefficient" are required; a column whose name starts with "class" names the outcome
+ *   of each equation. Other columns (SE, z, p, intervals, ratios) are ignored. ODDS.FIT's output fits.
+ * - The table ends at its first row with a blank term (ODDS.FIT writes notes below a blank row).
+ * - A blank coefficient counts as 0 (ODDS.FIT leaves aliased, dropped terms blank).
+ * - One distinct class (or no class column): a binary model; the output is the probability of that
+ *   class (header "P(class)"). Several classes: a reference-class softmax; the reference class is
+ *   read from the class header "class (reference: A)" (else it is called "reference") and comes first.
+ * - Terms: "(intercept)" is 1; a term naming a column of `rows` takes that column's numbers; a term
+ *   "column=level" with no column of that name is the indicator of `column` equal to `level`.
+ * - A row with a blank in a used column cannot be scored: its output cells are "" (the other rows are
+ *   scored). A category that matches no term counts as the reference level (the table cannot tell
+ *   the reference level from an unseen one: say so in the help).
+ */
+import { INTERCEPT_TERM } from "../engine/inference";
+import { listNames, problem } from "../engine/messages";
+import { logSumExp, sigmoid } from "../engine/numerics";
+import { isBlankCell, parseNumericText, readTable, type TableColumn } from "../engine/table";
+import type { CellValue } from "../engine/types";
+import { spill } from "./cellOutput";
+import { checkPayload } from "./payload";
+
+/** A model read back from a coefficient table. */
+export interface SheetModel {
+  /** Class names: binary [positive]; multi-class [reference, ...equation classes]. */
+  classes: string[];
+  kind: "binary" | "multiclass";
+  terms: string[];
+  /** One coefficient vector per equation, parallel to `terms` (0 where a class lacks a term). */
+  coefficients: Float64Array[];
+}
+
+const REFERENCE_IN_HEADER = /reference\s*:\s*(.+?)\s*\)?\s*$/i;
+
+/**
+ * Read a coefficient table (the spilled output of ODDS.FIT, or a hand-made one).
+ * @throws OddsmithError COEFFICIENT_TABLE_HEADER, NOT_A_NUMBER, COEFFICIENT_TERM_REPEATED, EMPTY_RANGE
+ */
+export function readCoefficientTable(cells: CellValue[][]): SheetModel {
+  if (!Array.isArray(cells) || cells.length === 0 || !Array.isArray(cells[0])) {
+    throw problem("EMPTY_RANGE", { argument: "coefficients" });
+  }
+  const header = cells[0].map((v) => (typeof v === "string" ? v.trim().toLowerCase() : ""));
+  const termCol = header.indexOf("term");
+  const coefCol = header.indexOf("coefficient");
+  const classCol = header.findIndex((h) => h.startsWith("class"));
+  if (termCol < 0 || coefCol < 0) {
+    const found = cells[0].filter((v) => !isBlankCell(v)).map((v) => String(v));
+    throw problem("COEFFICIENT_TABLE_HEADER", { found: found.length ? listNames(found, 6) : "nothing" });
+  }
+  const referenceMatch = classCol >= 0 ? REFERENCE_IN_HEADER.exec(String(cells[0][classCol])) : null;
+
+  const outcomes: string[] = [];
+  const terms: string[] = [];
+  const entries: { outcome: number; term: number; value: number; row: number }[] = [];
+  for (let i = 1; i < cells.length; i++) {
+    const row = cells[i];
+    const termCell = row[termCol];
+    // The table ends at the first blank term.
+    if (isBlankCell(termCell)) break;
+    const term = String(termCell).trim();
+    const outcome = classCol >= 0 && !isBlankCell(row[classCol]) ? String(row[classCol]).trim() : "";
+    const raw = row[coefCol];
+    let value: number;
+    // A blank coefficient counts as 0 (aliased terms are left blank by ODDS.FIT).
+    if (isBlankCell(raw)) value = 0;
+    else if (typeof raw === "number") value = raw;
+    else if (typeof raw === "string") value = parseNumericText(raw);
+    else value = NaN;
+    if (!Number.isFinite(value)) {
+      throw problem("NOT_A_NUMBER", { argument: "coefficients", row: i + 1, column: coefCol + 1, value: String(raw) });
+    }
+    let o = outcomes.indexOf(outcome);
+    if (o < 0) o = outcomes.push(outcome) - 1;
+    let t = terms.indexOf(term);
+    if (t < 0) t = terms.push(term) - 1;
+    const twin = entries.find((e) => e.outcome === o && e.term === t);
+    if (twin) {
+      throw problem("COEFFICIENT_TERM_REPEATED", { term, outcome: outcome || "(none)", first: twin.row, second: i + 1 });
+    }
+    entries.push({ outcome: o, term: t, value, row: i + 1 });
+  }
+  if (entries.length === 0) throw problem("EMPTY_RANGE", { argument: "coefficients" });
+
+  const coefficients = outcomes.map(() => new Float64Array(terms.length));
+  for (const e of entries) coefficients[e.outcome][e.term] = e.value;
+  if (outcomes.length === 1) {
+    return { kind: "binary", classes: [outcomes[0] || "positive"], terms, coefficients };
+  }
+  const reference = referenceMatch ? referenceMatch[1].replace(/^"|"$/g, "") : "reference";
+  return { kind: "multiclass", classes: [reference, ...outcomes], terms, coefficients };
+}
+
+/** Value of `term` for every row of `columns` (NaN where it cannot be formed). */
+function termValues(term: string, byName: Map<string, TableColumn>, rows: number, names: string[]): Float64Array {
+  const out = new Float64Array(rows);
+  if (term === INTERCEPT_TERM) return out.fill(1);
+  const direct = byName.get(term);
+  if (direct) {
+    if (direct.kind === "text") {
+      // Text where the term needs numbers: the first offending cell is reported.
+      const i = direct.values.findIndex((v, k) => !direct.missing[k] && v !== "");
+      throw problem("NOT_A_NUMBER", {
+        argument: "rows",
+        row: i + 2,
+        column: names.indexOf(term) + 1,
+        value: direct.values[i],
+      });
+    }
+    for (let i = 0; i < rows; i++) out[i] = direct.missing[i] ? NaN : direct.values[i];
+    return out;
+  }
+  const eq = term.indexOf("=");
+  const source = eq > 0 ? byName.get(term.slice(0, eq)) : undefined;
+  if (!source) throw problem("COLUMN_NOT_FOUND", { name: term, columns: listNames(names, 12) });
+  const level = term.slice(eq + 1);
+  for (let i = 0; i < rows; i++) {
+    if (source.missing[i]) out[i] = NaN;
+    else out[i] = String(source.values[i]) === level ? 1 : 0;
+  }
+  return out;
+}
+
+/**
+ * Probabilities for `rows` from a model read by {@link readCoefficientTable}: one array per output
+ * class (binary: the positive class only), NaN for rows that cannot be scored.
+ */
+export function scoreSheetModel(model: SheetModel, rows: CellValue[][]): { header: string[]; probabilities: Float64Array[] } {
+  const table = readTable(rows, { argument: "rows", headers: "yes" });
+  const byName = new Map<string, TableColumn>();
+  table.columns.forEach((c) => byName.set(c.name, c));
+  const n = table.rows;
+  const x = model.terms.map((t) => termValues(t, byName, n, table.names));
+  // eta[k][i]: linear predictor of equation k for row i.
+  const eta = model.coefficients.map((beta) => {
+    const e = new Float64Array(n);
+    for (let j = 0; j < beta.length; j++) {
+      if (beta[j] === 0) continue; // also keeps a blank cell in an unused term from blocking the row
+      const col = x[j];
+      for (let i = 0; i < n; i++) e[i] += beta[j] * col[i];
+    }
+    return e;
+  });
+  if (model.kind === "binary") {
+    const p = new Float64Array(n);
+    for (let i = 0; i < n; i++) p[i] = Number.isFinite(eta[0][i]) ? sigmoid(eta[0][i]) : NaN;
+    return { header: [`P(${model.classes[0]})`], probabilities: [p] };
+  }
+  const k = model.classes.length;
+  const probabilities = model.classes.map(() => new Float64Array(n));
+  const scratch = new Float64Array(k);
+  for (let i = 0; i < n; i++) {
+    scratch[0] = 0; // the reference class's linear predictor
+    for (let c = 1; c < k; c++) scratch[c] = eta[c - 1][i];
+    if (!scratch.every(Number.isFinite)) {
+      for (let c = 0; c < k; c++) probabilities[c][i] = NaN;
+      continue;
+    }
+    // Softmax with the log-sum-exp shift: no overflow for large linear predictors.
+    const lse = logSumExp(scratch);
+    for (let c = 0; c < k; c++) probabilities[c][i] = Math.exp(scratch[c] - lse);
+  }
+  return { header: model.classes.map((c) => `P(${c})`), probabilities };
+}
+
+/**
+ * The ODDS.SCORE adapter.
+ * @param coefficients - coefficient table with a header row (e.g. the output of ODDS.FIT)
+ * @param rows - rows to score, with a header row naming the terms' columns
+ * @returns header row of class probabilities, then one row per data row ("" where a row cannot be scored)
+ */
+export function scoreCell(coefficients: CellValue[][] | null, rows: CellValue[][] | null): CellValue[][] {
+  if (coefficients === null) throw problem("EMPTY_RANGE", { argument: "coefficients" });
+  if (rows === null) throw problem("EMPTY_RANGE", { argument: "rows" });
+  checkPayload(
+    [
+      { argument: "coefficients", cells: coefficients },
+      { argument: "rows", cells: rows },
+    ],
+    Array.isArray(rows) ? rows.length * 4 : 1,
+  );
+  const model = readCoefficientTable(coefficients);
+  const { header, probabilities } = scoreSheetModel(model, rows);
+  const n = probabilities[0].length;
+  const out: unknown[][] = [header];
+  for (let i = 0; i < n; i++) out.push(probabilities.map((p) => p[i]));
+  return spill(out);
+}
