@@ -22,4 +22,10 @@ export {
   type CalibrationTableOptions,
 } from "./calibrationTable";
 export { hosmerLemeshow, type HosmerLemeshowOptions, type HosmerLemeshowResult } from "./hosmerLemeshow";
+export {
+  calibrationSlope,
+  type CalibrationCoefficient,
+  type CalibrationSlopeOptions,
+  type CalibrationSlopeResult,
+} from "./calibrationSlope";
 export { PROBABILITY_SUM_TOLERANCE } from "./checkMulticlassInputs";
