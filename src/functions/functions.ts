@@ -151,7 +151,7 @@ export function score(coefficients: any[][], rows: any[][]): any[][] {
  * @customfunction BASIS BASIS
  * @helpurl https://localhost:3000/help.html#basis
  * @param data Columns to transform, with a header row.
- * @param recipe The transforms as text, e.g. "poly(age, 2); ns(income, 4)".
+ * @param recipe The transforms as text, e.g. "age: ns(4); income: log + z; region: levels".
  * @param [training_data] Columns the recipe was fitted on (knots, centres, scales); leave out to fit on data.
  * @returns Basis columns with a header row.
  */

@@ -20,7 +20,7 @@ import { aucCell } from "./aucCell";
 import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
-import { basisCellAdapter } from "./basisAdapter";
+import { basisCellGuarded } from "./basisCells";
 
 /** A range argument as Excel passes it (row-major), or null for an omitted optional argument. */
 export type CellRange = CellValue[][];
@@ -86,7 +86,7 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("SCORE", "scoring rows from a coefficient table", [req("coefficients"), req("rows")], (c, r) => scoreCell(c, r)),
   spec("BASIS", "building basis columns", [req("data"), req("recipe"), opt("training_data")], (d, r, t) =>
-    basisCellAdapter(d, r, t ?? null),
+    basisCellGuarded(d, r, t ?? null),
   ),
 ];
 

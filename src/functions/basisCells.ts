@@ -1,0 +1,26 @@
+/**
+ * Registry entry of ODDS.BASIS: the payload guard, then src/functions/basisCell.ts (the basis
+ * engineer's adapter, which owns the recipe handling).
+ */
+import type { CellValue } from "../engine/types";
+import { basisCell } from "./basisCell";
+import { checkPayload } from "./payload";
+import { required } from "./required";
+
+/** Output cells of a basis call, roughly: each data row gets a handful of new columns. */
+const BASIS_COLUMNS_ESTIMATE = 8;
+
+/** The ODDS.BASIS adapter as the registry calls it. */
+export function basisCellGuarded(data: CellValue[][] | null, recipe: CellValue[][] | null, training: CellValue[][] | null): CellValue[][] {
+  const d = required(data, "data");
+  const r = required(recipe, "recipe");
+  checkPayload(
+    [
+      { argument: "data", cells: d },
+      { argument: "recipe", cells: r },
+      ...(training ? [{ argument: "training_data", cells: training }] : []),
+    ],
+    d.length * BASIS_COLUMNS_ESTIMATE,
+  );
+  return basisCell(d, r, training);
+}
