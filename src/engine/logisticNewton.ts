@@ -8,7 +8,8 @@
  * Step: g <- g + I_pen^{-1} U, I_pen = Z'WZ + diag(pen), W_i = w_i t_i mu_i (1 - mu_i), U the
  * (modified) score. The step is halved while F does not decrease (as glm.fit does on divergence).
  * Convergence: |D - D_old| / (0.1 + |D|) < tol with D = 2F (the penalized deviance up to a
- * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations.
+ * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations;
+ * Firth fits additionally need the largest relative step below 1e-9.
  * References: P. McCullagh & J. A. Nelder, Generalized Linear Models, 2nd ed. (1989), §2.5 (IRLS);
  * Firth (1993) and Heinze & Schemper (2002) for the modified score (see firth.ts).
  */
@@ -63,7 +64,12 @@ export interface NewtonResult {
   singular: boolean;
   /** Coefficients after each accepted iteration (only with keepHistory). */
   history: Float64Array[];
+  /** Total number of step halvings taken (0 when every full Newton step improved F). */
+  halvings: number;
 }
+
+/** Firth fits also need the largest relative step below this (see the loop). */
+const FIRTH_STEP_TOLERANCE = 1e-9;
 
 /** Halvings tried before a step is declared unable to improve the objective. */
 const MAX_HALVINGS = 30;
@@ -167,6 +173,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
 
   let iterations = 0;
+  let halvings = 0;
   let converged = false;
   let lastChange = NaN;
   while (!singular && iterations < p.maxIterations) {
@@ -215,6 +222,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
         break;
       }
       scale *= 0.5;
+      halvings++;
     }
     if (!accepted) {
       // No decrease along the Newton direction: at the optimum up to rounding when the predicted
@@ -241,7 +249,11 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
         break;
       }
     }
-    if (lastChange < p.tolerance) {
+    // Firth's iteration uses I (not the Hessian of the penalized objective), so it converges only
+    // linearly: a small change of the objective is not enough, the step must be negligible too.
+    let stepMax = 0;
+    for (let j = 0; j < k; j++) stepMax = Math.max(stepMax, Math.abs(scale * step[j]) / (1 + Math.abs(g[j])));
+    if (lastChange < p.tolerance && (!p.firth || stepMax < FIRTH_STEP_TOLERANCE)) {
       converged = true;
       break;
     }
@@ -262,6 +274,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
     lastChange,
     singular,
     history,
+    halvings,
   };
 }
 

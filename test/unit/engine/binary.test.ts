@@ -8,6 +8,9 @@ import { design, expectClose, expectScalarClose, loadFixture } from "./binaryHel
 const R_TOL = 1e-8;
 /** Stata 11 held the Spector data in single precision (float GPA): agreement is ~1e-7, not better. */
 const STATA_TOL = 2e-6;
+/** The aliased-column reference ran with R's default glm.control (epsilon 1e-8), because glm.fit
+ * derives its QR rank tolerance from epsilon; R stops earlier there, so agreement is ~1e-7. */
+const R_DEFAULT_TOL = 1e-6;
 /** Exact identities (row order, duplication vs weights) hold to rounding of the sums. */
 const IDENTITY_TOL = 1e-9;
 
@@ -79,5 +82,295 @@ describe("Spector & Mazzeo (1980) grades data, GRADE ~ GPA + TUCE + PSI", () => 
       expect(r.ratioLower).toBeCloseTo(Math.exp(r.lower), 12);
       expect(r.ratioUpper).toBeCloseTo(Math.exp(r.upper), 12);
     }
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+const bw = ref.budworm;
+const bwX = design({ sexM: bw.data.map((r: any) => r.sexM), ldose: bw.data.map((r: any) => r.ldose) });
+const bwDead = Float64Array.from(bw.data.map((r: any) => r.numdead));
+const bwTrials = new Float64Array(12).fill(20);
+
+describe("grouped binomial: budworm (Venables & Ripley 2002, §7.2), dead of 20 ~ sex + ldose", () => {
+  const fit = fitBinaryModel(bwX, bwDead, { trials: bwTrials });
+
+  test("coefficients, standard errors, deviance, null deviance and AIC match R glm(cbind(dead, alive) ~ ...)", () => {
+    expectClose(col(fit, "estimate"), bw.coefficients, R_TOL, "coef");
+    expectClose(col(fit, "standardError"), bw.standardErrors, R_TOL, "se");
+    expectScalarClose(fit.deviance, bw.deviance, R_TOL, "deviance");
+    expectScalarClose(fit.nullDeviance, bw.nullDeviance, R_TOL, "null deviance");
+    // R's binomial AIC includes log C(20, dead): the log-likelihood convention is R's.
+    expectScalarClose(fit.aic, bw.aic, R_TOL, "AIC");
+    expectScalarClose(fit.logLikelihood, bw.logLik, R_TOL, "logLik");
+  });
+
+  test("observations count groups (sum of case weights), so BIC matches R's BIC with nobs = 12", () => {
+    expect(fit.observations).toBe(12);
+    expect(bw.nobs).toBe(12);
+    expectScalarClose(fit.bic, bw.bic, R_TOL, "BIC");
+  });
+
+  test("expanding each group into 0/1 rows gives the same coefficients and standard errors", () => {
+    const sexM: number[] = [];
+    const ldose: number[] = [];
+    const y: number[] = [];
+    bw.data.forEach((r: any) => {
+      for (let i = 0; i < 20; i++) {
+        sexM.push(r.sexM);
+        ldose.push(r.ldose);
+        y.push(i < r.numdead ? 1 : 0);
+      }
+    });
+    const rows = fitBinaryModel(design({ sexM, ldose }), Float64Array.from(y));
+    expectClose(col(rows, "estimate"), col(fit, "estimate"), IDENTITY_TOL, "coef");
+    expectClose(col(rows, "standardError"), col(fit, "standardError"), IDENTITY_TOL, "se");
+    // The log-likelihoods differ exactly by the binomial coefficients sum log C(20, dead).
+    let logBinom = 0;
+    for (const d of bwDead) for (let i = 1; i <= d; i++) logBinom += Math.log((20 - d + i) / i);
+    expectScalarClose(fit.logLikelihood - rows.logLikelihood, logBinom, IDENTITY_TOL, "log C terms");
+    expect(rows.observations).toBe(240);
+  });
+
+  test("successes outside [0, trials] are refused with BAD_TRIALS naming the row", () => {
+    const bad = Float64Array.from(bwDead);
+    bad[4] = 21;
+    expect(() => fitBinaryModel(bwX, bad, { trials: bwTrials })).toThrow(/Row 5 has 21 successes out of 20 trials/);
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+const wd = ref.weighted.data;
+const wdX = design({ x1: wd.map((r: any) => r.x1), x2: wd.map((r: any) => r.x2) });
+const wdY = Float64Array.from(wd.map((r: any) => r.y));
+const wdW = Float64Array.from(wd.map((r: any) => r.w));
+
+describe("case weights, offset and no-intercept fits vs R glm (simulated data, seed 20261201)", () => {
+  test("integer case weights match R glm(weights = w)", () => {
+    const fit = fitBinaryModel(wdX, wdY, { weights: wdW });
+    const r = ref.weighted.weights;
+    expectClose(col(fit, "estimate"), r.coefficients, R_TOL, "coef");
+    expectClose(col(fit, "standardError"), r.standardErrors, R_TOL, "se");
+    expectScalarClose(fit.deviance, r.deviance, R_TOL, "deviance");
+    expectScalarClose(fit.nullDeviance, r.nullDeviance, R_TOL, "null deviance");
+    expectScalarClose(fit.aic, r.aic, R_TOL, "AIC");
+  });
+
+  test("weight 2 is the same as the row twice (vs our fit and R's on duplicated rows)", () => {
+    const fit = fitBinaryModel(wdX, wdY, { weights: wdW });
+    const idx: number[] = [];
+    wd.forEach((r: any, i: number) => {
+      for (let k = 0; k < r.w; k++) idx.push(i);
+    });
+    const dupX = design({ x1: idx.map((i) => wdX.columns[0][i]), x2: idx.map((i) => wdX.columns[1][i]) });
+    const dup = fitBinaryModel(dupX, Float64Array.from(idx.map((i) => wdY[i])));
+    expectClose(col(dup, "estimate"), col(fit, "estimate"), IDENTITY_TOL, "coef");
+    expectClose(col(dup, "standardError"), col(fit, "standardError"), IDENTITY_TOL, "se");
+    expectScalarClose(dup.logLikelihood, fit.logLikelihood, IDENTITY_TOL, "logLik");
+    expectScalarClose(dup.bic, fit.bic, IDENTITY_TOL, "BIC (n = sum of weights)");
+    expectClose(col(dup, "estimate"), ref.weighted.duplicated.coefficients, R_TOL, "coef vs R duplicated");
+  });
+
+  test("a zero-weight row is left out of the fit (same as deleting it)", () => {
+    const w = new Float64Array(wdY.length).fill(1);
+    w[3] = 0;
+    const zero = fitBinaryModel(wdX, wdY, { weights: w });
+    const keep = [...Array(wdY.length).keys()].filter((i) => i !== 3);
+    const del = fitBinaryModel(
+      design({ x1: keep.map((i) => wdX.columns[0][i]), x2: keep.map((i) => wdX.columns[1][i]) }),
+      Float64Array.from(keep.map((i) => wdY[i])),
+    );
+    expectClose(col(zero, "estimate"), col(del, "estimate"), IDENTITY_TOL, "coef");
+    expect(zero.rowsUsed).toBe(wdY.length - 1);
+  });
+
+  test("an offset matches R glm(offset = o), including the null deviance of the offset-only-plus-intercept model", () => {
+    const o = Float64Array.from(wd.map((r: any) => r.o));
+    const fit = fitBinaryModel(wdX, wdY, { offset: o });
+    const r = ref.weighted.offset;
+    expectClose(col(fit, "estimate"), r.coefficients, R_TOL, "coef");
+    expectClose(col(fit, "standardError"), r.standardErrors, R_TOL, "se");
+    expectScalarClose(fit.deviance, r.deviance, R_TOL, "deviance");
+    expectScalarClose(fit.nullDeviance, r.nullDeviance, R_TOL, "null deviance");
+  });
+
+  test("without an intercept, coefficients match R glm(y ~ 0 + ...) and the null model is eta = 0", () => {
+    const fit = fitBinaryModel(wdX, wdY, { intercept: false });
+    const r = ref.weighted.noIntercept;
+    expect(fit.terms).toEqual(["x1", "x2"]);
+    expectClose(col(fit, "estimate"), r.coefficients, R_TOL, "coef");
+    expectClose(col(fit, "standardError"), r.standardErrors, R_TOL, "se");
+    expectScalarClose(fit.nullDeviance, r.nullDeviance, R_TOL, "null deviance (2n log 2)");
+    expect(fit.lrTest.df).toBe(2);
+  });
+
+  test("negative or infinite weights are refused with BAD_WEIGHT naming the 1-based row", () => {
+    const w = Float64Array.from(wdW);
+    w[9] = -1;
+    expect(() => fitBinaryModel(wdX, wdY, { weights: w })).toThrow(/The weight in row 10 is -1/);
+    w[9] = Infinity;
+    expect(() => fitBinaryModel(wdX, wdY, { weights: w })).toThrow(OddsmithError);
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+describe("aliased columns", () => {
+  const x3 = wd.map((r: any) => r.x1 + 2 * r.x2);
+  const X = design({ x1: wdX.columns[0], x2: wdX.columns[1], x3 });
+  const fit = fitBinaryModel(X, wdY);
+
+  test("x3 = x1 + 2 x2 is reported not estimable like R's NA, and the rest matches R", () => {
+    const r = ref.weighted.aliased;
+    expect(r.coefficients[3]).toBeNull();
+    expect(fit.aliased).toEqual([false, false, false, true]);
+    expect(fit.table[3].estimable).toBe(false);
+    expect(fit.table[3].estimate).toBeNaN();
+    expect(fit.table[3].standardError).toBeNaN();
+    expectClose(col(fit, "estimate").slice(0, 3), r.coefficients.slice(0, 3), R_DEFAULT_TOL, "coef");
+    expectClose(col(fit, "standardError").slice(0, 3), r.standardErrors.slice(0, 3), R_DEFAULT_TOL, "se");
+    expectScalarClose(fit.deviance, r.deviance, R_DEFAULT_TOL, "deviance");
+    expectScalarClose(fit.aic, r.aic, R_DEFAULT_TOL, "AIC (3 parameters)");
+    expect(fit.parameters).toBe(3);
+  });
+
+  test("the ALIASED_COLUMNS warning names the dropped column", () => {
+    const d = fit.diagnostics.find((x) => x.code === "ALIASED_COLUMNS")!;
+    expect(d.severity).toBe("warning");
+    expect(d.columns).toEqual(["x3"]);
+    expect(d.message).toContain('"x3"');
+  });
+
+  test("a constant column is aliased with the intercept", () => {
+    const c = fitBinaryModel(design({ x1: wdX.columns[0], k: new Array(wdY.length).fill(5) }), wdY);
+    expect(c.aliased).toEqual([false, false, true]);
+  });
+
+  test("the covariance has NaN rows and columns for the aliased term", () => {
+    expect(fit.covariance![3 * 4 + 3]).toBeNaN();
+    expect(fit.covariance![1 * 4 + 3]).toBeNaN();
+    expect(fit.covariance![1 * 4 + 1]).toBeGreaterThan(0);
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+describe("invariants", () => {
+  const base = fitBinaryModel(spX, spY);
+
+  test("shuffling the rows changes nothing", () => {
+    const perm = [...Array(32).keys()].map((i) => (i * 7 + 3) % 32); // 7 is coprime with 32
+    const X = design({
+      GPA: perm.map((i) => spX.columns[0][i]),
+      TUCE: perm.map((i) => spX.columns[1][i]),
+      PSI: perm.map((i) => spX.columns[2][i]),
+    });
+    const f = fitBinaryModel(X, Float64Array.from(perm.map((i) => spY[i])));
+    expectClose(col(f, "estimate"), col(base, "estimate"), IDENTITY_TOL, "coef");
+    expectClose(col(f, "standardError"), col(base, "standardError"), IDENTITY_TOL, "se");
+    expectScalarClose(f.logLikelihood, base.logLikelihood, IDENTITY_TOL, "logLik");
+  });
+
+  test("multiplying a column by c divides its coefficient and standard error by c", () => {
+    const c = 1000;
+    const X = design({ GPA: spX.columns[0].map((v) => v * c), TUCE: spX.columns[1], PSI: spX.columns[2] });
+    const f = fitBinaryModel(X, spY);
+    expectScalarClose(f.table[1].estimate * c, base.table[1].estimate, IDENTITY_TOL, "GPA coef");
+    expectScalarClose(f.table[1].standardError * c, base.table[1].standardError, IDENTITY_TOL, "GPA se");
+    expectScalarClose(f.table[0].estimate, base.table[0].estimate, IDENTITY_TOL, "intercept");
+    expectScalarClose(f.table[1].z, base.table[1].z, IDENTITY_TOL, "z unchanged");
+  });
+
+  test("shifting a column by a constant moves only the intercept", () => {
+    const X = design({ GPA: spX.columns[0].map((v) => v + 100), TUCE: spX.columns[1], PSI: spX.columns[2] });
+    const f = fitBinaryModel(X, spY);
+    expectScalarClose(f.table[1].estimate, base.table[1].estimate, IDENTITY_TOL, "GPA");
+    expectScalarClose(f.table[0].estimate, base.table[0].estimate - 100 * base.table[1].estimate, 1e-8, "intercept");
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+describe("convergence rule and options", () => {
+  test("a looser tolerance stops no later than a tighter one and still agrees to about sqrt(tol)", () => {
+    const tight = fitBinaryModel(spX, spY, { tolerance: 1e-12 });
+    const loose = fitBinaryModel(spX, spY, { tolerance: 1e-4 });
+    expect(loose.iterations).toBeLessThanOrEqual(tight.iterations);
+    expectClose(col(loose, "estimate"), col(tight, "estimate"), 1e-2, "loose vs tight");
+  });
+
+  test("hitting the iteration cap gives a NOT_CONVERGED warning with the numbers", () => {
+    const f = fitBinaryModel(spX, spY, { maxIterations: 2 });
+    expect(f.converged).toBe(false);
+    expect(f.iterations).toBe(2);
+    const d = f.diagnostics.find((x) => x.code === "NOT_CONVERGED")!;
+    expect(d.severity).toBe("warning");
+    expect(d.message).toContain("2 iterations");
+  });
+
+  test("the level sets the Wald interval width (90% vs R's qnorm(0.95) = 1.644853626951472)", () => {
+    const f = fitBinaryModel(spX, spY, { level: 0.9 });
+    for (const r of f.table) expectScalarClose((r.upper - r.estimate) / r.standardError, 1.644853626951472, 1e-12, "z90");
+  });
+
+  test.each([
+    ["penalty", { penalty: -1 }],
+    ["level", { level: 1.5 }],
+    ["maxIterations", { maxIterations: 0 }],
+    ["tolerance", { tolerance: 0 }],
+    ["penaltyScale", { penaltyScale: "log" as any }],
+    ["intervalMethod", { intervalMethod: "bootstrap" as any }],
+  ])("an invalid %s is refused with BAD_OPTION_VALUE", (name, o) => {
+    expect(() => fitBinaryModel(spX, spY, o)).toThrow(new RegExp(`option ${name}`));
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+describe("data problems reported in the result", () => {
+  test("a response other than 0/1 is refused with BAD_RESPONSE naming the row", () => {
+    const y = Float64Array.from(spY);
+    y[2] = 2;
+    expect(() => fitBinaryModel(spX, y)).toThrow(/The response in row 3 is 2/);
+  });
+
+  test("rows with a missing value are skipped and counted in a ROWS_SKIPPED warning", () => {
+    const X = design({ GPA: spX.columns[0].map((v, i) => (i === 0 ? NaN : v)), TUCE: spX.columns[1], PSI: spX.columns[2] });
+    const y = Float64Array.from(spY);
+    y[5] = NaN;
+    const f = fitBinaryModel(X, y);
+    expect(f.rowsUsed).toBe(30);
+    const d = f.diagnostics.find((x) => x.code === "ROWS_SKIPPED")!;
+    expect(d.severity).toBe("warning");
+    expect(d.message).toContain("2 rows were skipped");
+    expect(d.message).toContain("GPA: 1");
+    expect(d.message).toContain("response: 1");
+  });
+
+  test("one class only gives an ONE_CLASS_ONLY error with NaN estimates", () => {
+    const f = fitBinaryModel(spX, new Float64Array(32), {}, ["fail", "pass"]);
+    const d = f.diagnostics.find((x) => x.code === "ONE_CLASS_ONLY")!;
+    expect(d.severity).toBe("error");
+    expect(d.message).toContain('"fail"');
+    expect(f.table.every((r) => Number.isNaN(r.estimate))).toBe(true);
+    expect(f.covariance).toBeNull();
+  });
+
+  test("fewer usable rows than parameters gives a TOO_FEW_ROWS error", () => {
+    const X = design({ a: [1, 2, 3], b: [3, 1, 2], c: [0, 1, 1] });
+    const f = fitBinaryModel(X, Float64Array.of(0, 1, 0));
+    const d = f.diagnostics.find((x) => x.code === "TOO_FEW_ROWS")!;
+    expect(d.severity).toBe("error");
+    expect(d.message).toBe("Only 3 usable rows for 4 parameters. Add rows, remove predictors, or set a penalty.");
+    expect(f.table[1].estimate).toBeNaN();
+  });
+
+  test("no usable rows gives a NO_USABLE_ROWS error", () => {
+    const f = fitBinaryModel(design({ a: [NaN, NaN] }), Float64Array.of(0, 1));
+    expect(f.diagnostics.map((d) => d.code)).toContain("NO_USABLE_ROWS");
+    expect(f.diagnostics.find((d) => d.code === "NO_USABLE_ROWS")!.severity).toBe("error");
+  });
+
+  test("an infinite predictor value is refused with NOT_FINITE_VALUE", () => {
+    expect(() => fitBinaryModel(design({ a: [1, Infinity, 2] }), Float64Array.of(0, 1, 0))).toThrow(/row 2, column a is Infinity/);
+  });
+
+  test("arrays of different lengths are refused with RANGE_SHAPE_MISMATCH", () => {
+    expect(() => fitBinaryModel(spX, new Float64Array(5))).toThrow(/response range has 5 rows/);
   });
 });
