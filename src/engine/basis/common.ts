@@ -26,6 +26,8 @@ export interface RowNote {
   column: string;
   code: MessageCode;
   message: string;
+  /** The catalogue parameters of `message` (row 1-based), so an adapter can re-word the row position. */
+  params: Record<string, unknown>;
 }
 
 /** What applying one transform state produces. */
@@ -45,7 +47,8 @@ export interface FitNote {
 
 /** Make a RowNote with its message filled from the catalogue (row shown 1-based). */
 export function rowNote(row: number, column: string, code: MessageCode, params: Record<string, unknown>): RowNote {
-  return { row, column, code, message: formatMessage(code, { row: row + 1, column: `"${column}"`, ...params }) };
+  const all = { row: row + 1, column: `"${column}"`, ...params };
+  return { row, column, code, message: formatMessage(code, all), params: all };
 }
 
 /**

@@ -1,0 +1,91 @@
+/**
+ * Adapter behind ODDS.BASIS(data, recipe, [training_data]): builds basis columns from a range with a
+ * header row, following a recipe (src/engine/basis/recipe.ts, docs/basis-recipes.md).
+ *
+ * Policy (one line each):
+ * - `data` must start with a header row: the recipe names columns by their headers (headers="yes").
+ * - `recipe` is text; a range of several cells is read as one recipe, item per non-blank cell,
+ *   joined with ";" (row by row), so long recipes can be laid out one item per cell.
+ * - Without `training_data` the transforms are fitted on `data` itself; with it they are fitted on
+ *   `training_data` (same headers) and applied to `data`, so new rows get the training knots, means,
+ *   levels and centres.
+ * - Output: a header row of generated column names, then one row per data row, aligned with the
+ *   input (trailing blank rows of the range are not echoed, as the shared range parser drops them).
+ * - A row with a problem (blank, value outside a transform's domain, unseen category) shows "" in
+ *   the columns it affects; the other cells of the row and the other rows are computed.
+ * - Only when no data row yields any value is an error thrown: the first row's reason (its catalogue
+ *   code and cell error), with the row counted as in the range (header = row 1).
+ */
+import type { BasisColumn, RowNote } from "../engine/basis/common";
+import { applyRecipe, fitRecipe, parseRecipe } from "../engine/basis/recipe";
+import { problem } from "../engine/messages";
+import { rangeRow, readTable, type Table } from "../engine/table";
+import type { CellValue } from "../engine/types";
+import { spill } from "./cellOutput";
+
+/** The columns of a parsed table in the form the basis transforms read (blank = null). */
+export function tableToBasisColumns(table: Table): BasisColumn[] {
+  return table.columns.map((c) => {
+    const values: (number | string | null)[] = new Array(table.rows);
+    for (let i = 0; i < table.rows; i++) values[i] = c.missing[i] ? null : c.values[i];
+    return { name: c.name, values };
+  });
+}
+
+/** The recipe text from a cell value or a range of cells (non-blank cells joined with "; "). */
+export function recipeText(recipe: string | CellValue | CellValue[][]): string {
+  if (Array.isArray(recipe)) {
+    return recipe
+      .flat()
+      .map((v) => (v === null || v === undefined ? "" : String(v).trim()))
+      .filter((s) => s !== "")
+      .join("; ");
+  }
+  return recipe === null || recipe === undefined ? "" : String(recipe);
+}
+
+/**
+ * Build basis columns for ODDS.BASIS.
+ * @param data - range with a header row; the rows to transform
+ * @param recipe - recipe text (or a range holding it)
+ * @param training - optional range with the same headers to fit the transforms on (null: fit on data)
+ * @returns header row of generated names, then one row per data row ("" where a row had a problem)
+ * @throws OddsmithError for a bad recipe, a missing column, or when no row can be computed
+ * @example basisCell([["age"], [30], [40], [50]], "age: z", null) // [["z(age)"], [-1], [0], [1]]
+ */
+export function basisCell(
+  data: CellValue[][],
+  recipe: string | CellValue | CellValue[][],
+  training: CellValue[][] | null,
+): (number | string)[][] {
+  const plan = parseRecipe(recipeText(recipe));
+  if (data === null || data === undefined) throw problem("EMPTY_RANGE", { argument: "data" });
+  const table = readTable(data, { argument: "data", headers: "yes" });
+  const rows = tableToBasisColumns(table);
+  let fitColumns = rows;
+  let fitArgument = "data";
+  if (training !== null && training !== undefined) {
+    fitColumns = tableToBasisColumns(readTable(training, { argument: "training_data", headers: "yes" }));
+    fitArgument = "training_data";
+  }
+  const state = fitRecipe(plan, fitColumns, fitArgument);
+  const block = applyRecipe(state, rows, "data");
+
+  const n = table.rows;
+  const out: unknown[][] = [block.names];
+  let anyValue = false;
+  for (let i = 0; i < n; i++) {
+    const row = block.columns.map((c) => c[i]);
+    if (row.some((v) => Number.isFinite(v))) anyValue = true;
+    out.push(row);
+  }
+  if (!anyValue && block.columns.length > 0) throw firstRowProblem(block.notes, table);
+  return spill(out) as (number | string)[][];
+}
+
+/** The first row note as a thrown catalogue error, with the row counted as in the range. */
+function firstRowProblem(notes: readonly RowNote[], table: Table) {
+  const note = notes[0];
+  if (!note) return problem("INTERNAL", { doing: "building basis columns (every value was out of range)" });
+  return problem(note.code, { ...note.params, row: rangeRow(table, note.row) });
+}
