@@ -341,3 +341,23 @@ function readColumn(rows: CellValue[][], start: number, j: number, name: string,
 export function rangeRow(table: Pick<Table, "firstRow">, i: number): number {
   return table.firstRow + i;
 }
+
+/**
+ * Extend a table to `rows` data rows with missing values (rows past a range's last non-blank row
+ * are blank, so a range trimmed shorter than its neighbours still lines up with them).
+ */
+export function padTable(table: Table, rows: number): Table {
+  if (rows <= table.rows) return table;
+  const columns = table.columns.map((c): TableColumn => {
+    const missing = new Uint8Array(rows).fill(1);
+    missing.set(c.missing);
+    if (c.kind === "text") {
+      const values = c.values.concat(new Array<string>(rows - c.values.length).fill(""));
+      return { name: c.name, kind: "text", values, missing };
+    }
+    const values = new Float64Array(rows).fill(NaN);
+    values.set(c.values);
+    return { name: c.name, kind: c.kind, values, missing };
+  });
+  return { ...table, columns, rows, trimmedRows: Math.max(0, table.trimmedRows - (rows - table.rows)) };
+}

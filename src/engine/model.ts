@@ -1,0 +1,558 @@
+/**
+ * The model facade: worksheet ranges in, a trained model or per-row scores out. Cell functions, the
+ * task pane and the benchmark all train and score through `trainModel` and `scoreRows`, so ranges,
+ * labels, categories and skipped rows are handled the same way everywhere.
+ *
+ * Policy (each rule is repeated in one line above the code that applies it):
+ * - Every range (labels, predictors, weights, offset, trials) is read by the shared range parser.
+ *   Under headers = "auto" they share one decision: when the ranges disagree, the range with the
+ *   stronger evidence decides for all (predictors win a tie), so a labels column of words and a
+ *   predictors block of numbers cannot end up shifted by one row.
+ * - Ranges are aligned row by row. Trailing blank rows are trimmed per range, and a range that ends
+ *   earlier than the others is taken as blank below its end; ranges whose selected row counts differ
+ *   (after the header) are RANGE_SHAPE_MISMATCH.
+ * - Labels, weights, offset and trials are single columns (SINGLE_COLUMN_NEEDED); weights, offset and
+ *   trials must be numbers (NOT_A_NUMBER), weights >= 0 (BAD_WEIGHT), 0 <= successes <= trials
+ *   (BAD_TRIALS).
+ * - A row missing any used value (label, a predictor, weight, offset, trials) is skipped; the skip
+ *   is counted per column in a ROWS_SKIPPED warning added to the fit's diagnostics. Diagnostic row
+ *   indices are mapped back to the caller's data rows (0-based, header excluded).
+ * - Two classes give a binary fit, more give a multi-class fit. With trials, the labels column holds
+ *   success counts and the classes are named "failure" and "success".
+ * - Scoring: outputs have one entry per data row of the scored range (the training rows when no
+ *   range is given, including rows skipped for a missing label: those can still be scored). A row
+ *   that cannot be scored keeps its place with NaN numbers and a per-row problem.
+ */
+import { fitBinaryModel } from "./binary";
+import { buildDesign, encodeRows, skippedDetail, type DesignEncoding, type EncodedRows, type RowProblem, type SkippedRows } from "./design";
+import { readLabels, type LabelInfo } from "./labels";
+import { formatMessage, problem } from "./messages";
+import { fitMulticlassModel } from "./multiclass";
+import { logSumExp } from "./numerics";
+import { predictBinary } from "./predictBinary";
+import { detectHeader, normalizeRange, padTable, rangeRow, readTable, type HeaderEvidence, type NumericColumn, type Table } from "./table";
+import type { CellValue, DesignMatrix, Diagnostic, ModelFit, Prediction } from "./types";
+
+/** Class names of a grouped (successes out of trials) binary fit. */
+export const GROUPED_CLASSES = ["failure", "success"] as const;
+
+/** Everything trainModel accepts besides the two main ranges. Defaults in brackets. */
+export interface ModelOptions {
+  /** Whether the first row of each range holds names ["auto"]. */
+  headers?: "auto" | "yes" | "no";
+  /** Positive class of a binary problem [1, TRUE, yes, or the second in sorted order]. */
+  positive?: string | null;
+  /** Reference class of a multi-class problem [first in sorted order]. */
+  reference?: string | null;
+  /** Fit an intercept [true]. */
+  intercept?: boolean;
+  /** L2 penalty lambda >= 0 [0]. */
+  penalty?: number;
+  /** ["standardized"] */
+  penaltyScale?: "standardized" | "original";
+  /** Firth bias reduction [false]. */
+  firth?: boolean;
+  /** Interval level [0.95]. */
+  level?: number;
+  /** ["wald"] */
+  intervalMethod?: "wald" | "profile";
+  /** Default decision threshold stored with the model for scoring [0.5]. */
+  threshold?: number;
+  /** Case weights column [none]. */
+  weights?: CellValue[][] | null;
+  /** Offset column (binary) [none]. */
+  offset?: CellValue[][] | null;
+  /** Trials column: labels are then success counts (binary) [none]. */
+  trials?: CellValue[][] | null;
+  /** Reference category per text predictor column name [first in sorted order]. */
+  referenceLevels?: Record<string, string> | null;
+  /** Pool categories seen in fewer fitted rows than this into "(other)" [0 = never]. */
+  minLevelCount?: number;
+  /** Multi-class form ["reference"]. */
+  form?: "reference" | "symmetric";
+  maxIterations?: number;
+  tolerance?: number;
+}
+
+/** Class information stored with a trained model. */
+export interface ModelLabels {
+  /** Name of the label column (its header, or "labels"). */
+  name: string;
+  classes: string[];
+  positiveClass?: string;
+  referenceClass?: string;
+  /** Rows per class among the fitted rows (grouped: total failures and successes). */
+  counts: number[];
+  grouped: boolean;
+}
+
+/** A trained model: the fit plus everything needed to score new rows the same way. */
+export interface TrainedModel {
+  kind: "binary" | "multiclass";
+  fit: ModelFit;
+  /** Predictor encoding (plain, serializable). */
+  encoding: DesignEncoding;
+  labels: ModelLabels;
+  /** Per training data row: its row in the fitted design, or -1 when skipped. */
+  rowMap: Int32Array;
+  /** Training data rows (after the header). */
+  rows: number;
+  /** True when the training ranges had a header row. */
+  header: boolean;
+  /** 1-based range row of training data row 0. */
+  firstRow: number;
+  skipped: SkippedRows;
+  /** The fitted design (used rows only). */
+  design: DesignMatrix;
+  /** Training predictors encoded for scoring (every data row, problems per row). */
+  trainingRows: EncodedRows;
+  /** Offset per training data row (NaN where missing), or null without an offset. */
+  trainingOffset: Float64Array | null;
+  /** True when the model was fitted with an offset (scoring new rows then needs one). */
+  usesOffset: boolean;
+  /** Default threshold for scoring. */
+  threshold: number;
+}
+
+/** Per-row scores, aligned with the scored range's data rows. */
+export interface RowScores {
+  rows: number;
+  /** True when the scored range's first row was taken as names. */
+  header: boolean;
+  /** 1-based range row of data row 0. */
+  firstRow: number;
+  classes: string[];
+  positiveClass?: string;
+  threshold: number;
+  /** Full-length prediction; unscored rows hold NaN and predicted -1. */
+  prediction: Prediction;
+  /** Predicted class name per row, or null when the row could not be scored. */
+  predictedClass: (string | null)[];
+  /** 1 for scored rows. */
+  scored: Uint8Array;
+  /** Why rows could not be scored (first problem per row), sorted by row. */
+  problems: RowProblem[];
+}
+
+type RangeArg = { argument: string; cells: CellValue[][] };
+
+const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, weak: 1, none: 0 };
+
+/**
+ * Read several aligned ranges with one header decision and one row count.
+ * The first range is the reference for shape messages ("labels").
+ */
+function readAligned(ranges: RangeArg[], headers: "auto" | "yes" | "no", names: string[]): Table[] {
+  let decision: boolean | null = headers === "yes" ? true : headers === "no" ? false : null;
+  if (decision === null) {
+    // Under auto, the range with the strongest evidence decides for all (predictors win a tie).
+    const detected = ranges.map((r) => {
+      const { rows } = normalizeRange(r.cells, r.argument);
+      return detectHeader(rows);
+    });
+    let best = 1 < ranges.length ? 1 : 0;
+    detected.forEach((d, k) => {
+      if (EVIDENCE_RANK[d.evidence] > EVIDENCE_RANK[detected[best].evidence]) best = k;
+    });
+    decision = detected[best].header;
+  }
+  const forced = decision ? "yes" : "no";
+  const tables = ranges.map((r, k) => {
+    const t = readTable(r.cells, { argument: r.argument, headers: forced, namePrefix: k === 1 ? "x" : r.argument });
+    // A single-column range without a header is named after its argument ("labels", "weights").
+    if (!t.header && k !== 1) t.columns[0].name = t.names[0] = names[k];
+    return t;
+  });
+  // Ranges are aligned by selected rows: compare the row counts before trimming.
+  const selected = ranges.map((r, k) => tables[k].rows + tables[k].trimmedRows);
+  const n = Math.max(...tables.map((t) => t.rows));
+  for (let k = 1; k < ranges.length; k++) {
+    if (selected[k] !== selected[0] && !(selected[k] >= n && selected[0] >= n)) {
+      throw problem("RANGE_SHAPE_MISMATCH", {
+        argument: ranges[k].argument,
+        got: selected[k],
+        expectedArgument: ranges[0].argument,
+        expected: selected[0],
+      });
+    }
+  }
+  // A range that ends earlier than the others is blank below its end.
+  return tables.map((t) => padTable(t, n));
+}
+
+function singleColumn(t: Table): void {
+  if (t.columns.length !== 1) throw problem("SINGLE_COLUMN_NEEDED", { argument: t.argument, columns: t.columns.length });
+}
+
+/** A numeric single column (weights, offset, trials, successes); text is NOT_A_NUMBER at its cell. */
+function numericColumn(t: Table): NumericColumn {
+  singleColumn(t);
+  const c = t.columns[0];
+  if (c.kind === "text") {
+    const i = c.missing.findIndex((m) => m === 0);
+    throw problem("NOT_A_NUMBER", { argument: t.argument, row: rangeRow(t, i), column: 1, value: c.values[i] });
+  }
+  return c;
+}
+
+/** Resolved options with defaults, for the fitters. */
+function fitOptions(o: ModelOptions) {
+  return {
+    intercept: o.intercept ?? true,
+    penalty: o.penalty ?? 0,
+    penaltyScale: o.penaltyScale ?? "standardized",
+    biasReduction: o.firth ?? false,
+    level: o.level ?? 0.95,
+    intervalMethod: o.intervalMethod ?? "wald",
+    ...(o.maxIterations !== undefined ? { maxIterations: o.maxIterations } : {}),
+    ...(o.tolerance !== undefined ? { tolerance: o.tolerance } : {}),
+  } as const;
+}
+
+/** Gather used rows of a per-input-row array into design-row order. */
+function gather(values: Float64Array, inputRows: Int32Array): Float64Array {
+  const out = new Float64Array(inputRows.length);
+  for (let r = 0; r < inputRows.length; r++) out[r] = values[inputRows[r]];
+  return out;
+}
+
+/**
+ * Train a classifier from worksheet ranges: parse, encode categories, skip incomplete rows, fit.
+ * Two classes give a binary logistic fit (fitBinaryModel), more a multinomial (softmax) fit
+ * (fitMulticlassModel); see those for the methods and their references.
+ *
+ * @param labels one column of class labels (or success counts with `options.trials`).
+ * @param predictors one column per predictor; text columns become indicator terms.
+ * @throws OddsmithError for input the user must correct (shapes, labels, options); estimation
+ *   problems are diagnostics in `fit.diagnostics`.
+ * @example
+ * const m = trainModel([["bought"], ["yes"], ["no"], ...], [["visits", "region"], [3, "North"], ...], {});
+ * m.fit.positiveClass // "yes"; m.fit.terms // ["(intercept)", "visits", "region=South", ...]
+ */
+export function trainModel(labels: CellValue[][], predictors: CellValue[][], options: ModelOptions = {}): TrainedModel {
+  const headers = options.headers ?? "auto";
+  const ranges: RangeArg[] = [
+    { argument: "labels", cells: labels },
+    { argument: "predictors", cells: predictors },
+  ];
+  const names = ["labels", "predictors"];
+  const extras: ("weights" | "offset" | "trials")[] = [];
+  for (const key of ["weights", "offset", "trials"] as const) {
+    const cells = options[key];
+    if (cells != null) {
+      ranges.push({ argument: key, cells });
+      names.push(key);
+      extras.push(key);
+    }
+  }
+  const tables = readAligned(ranges, headers, names);
+  const [labelTable, predTable] = tables;
+  singleColumn(labelTable);
+  const labelColumn = labelTable.columns[0];
+  const byName = new Map<string, NumericColumn>();
+  extras.forEach((key, k) => byName.set(key, numericColumn(tables[2 + k])));
+  const weights = byName.get("weights") ?? null;
+  const offset = byName.get("offset") ?? null;
+  const trials = byName.get("trials") ?? null;
+  const n = predTable.rows;
+
+  // Weights must be finite and >= 0.
+  if (weights) {
+    for (let i = 0; i < n; i++) {
+      if (!weights.missing[i] && !(weights.values[i] >= 0)) {
+        throw problem("BAD_WEIGHT", { row: rangeRow(predTable, i), value: weights.values[i] });
+      }
+    }
+  }
+  let successes: NumericColumn | null = null;
+  if (trials) {
+    successes = numericColumn(labelTable);
+    // Grouped counts need 0 <= successes <= trials.
+    for (let i = 0; i < n; i++) {
+      if (successes.missing[i] || trials.missing[i]) continue;
+      const y = successes.values[i];
+      const t = trials.values[i];
+      if (!(t >= 0) || !(y >= 0) || y > t) {
+        throw problem("BAD_TRIALS", { row: rangeRow(predTable, i), successes: y, trials: t });
+      }
+    }
+  }
+
+  // A row missing any used value is skipped, counted per column (label and extras first).
+  const extra = [{ name: labelColumn.name, missing: labelColumn.missing }];
+  for (const key of extras) {
+    const c = byName.get(key) as NumericColumn;
+    extra.push({ name: c.name, missing: c.missing });
+  }
+  const built = buildDesign(predTable, {
+    extra,
+    referenceLevels: options.referenceLevels ?? null,
+    minLevelCount: options.minLevelCount ?? 0,
+  });
+  const { design, inputRows } = built;
+  const common = fitOptions(options);
+  const w = weights ? gather(weights.values, inputRows) : null;
+
+  let fit: ModelFit;
+  let info: ModelLabels;
+  if (trials && successes) {
+    const y = gather(successes.values, inputRows);
+    const t = gather(trials.values, inputRows);
+    let s = 0;
+    let total = 0;
+    for (let r = 0; r < y.length; r++) {
+      const wr = w ? w[r] : 1;
+      s += wr * y[r];
+      total += wr * t[r];
+    }
+    // Two classes are still needed: all successes or all failures cannot be classified.
+    if (s === 0 || s === total) {
+      throw problem("ONE_CLASS_ONLY", { label: s === 0 ? GROUPED_CLASSES[0] : GROUPED_CLASSES[1] });
+    }
+    fit = fitBinaryModel(design, y, {
+      ...common,
+      weights: w,
+      offset: offset ? gather(offset.values, inputRows) : null,
+      trials: t,
+    }, [GROUPED_CLASSES[0], GROUPED_CLASSES[1]]);
+    info = { name: labelColumn.name, classes: [...GROUPED_CLASSES], positiveClass: GROUPED_CLASSES[1], counts: [total - s, s], grouped: true };
+  } else {
+    const classes: LabelInfo = readLabels(labelColumn, {
+      positive: options.positive ?? null,
+      reference: options.reference ?? null,
+      use: built.used,
+    });
+    const codes = new Int32Array(inputRows.length);
+    for (let r = 0; r < inputRows.length; r++) codes[r] = classes.codes[inputRows[r]];
+    if (classes.kind === "binary") {
+      const y = new Float64Array(codes.length);
+      for (let r = 0; r < codes.length; r++) y[r] = codes[r];
+      fit = fitBinaryModel(design, y, {
+        ...common,
+        weights: w,
+        offset: offset ? gather(offset.values, inputRows) : null,
+      }, [classes.classes[0], classes.classes[1]]);
+    } else {
+      fit = fitMulticlassModel(design, codes, classes.classes, {
+        ...common,
+        weights: w,
+        reference: classes.referenceIndex,
+        form: options.form ?? "reference",
+      });
+    }
+    info = {
+      name: labelColumn.name,
+      classes: classes.classes,
+      positiveClass: classes.positiveClass,
+      referenceClass: classes.referenceClass,
+      counts: classes.counts,
+      grouped: false,
+    };
+  }
+
+  // Diagnostic rows from the fitter index design rows: map them back to the caller's data rows.
+  for (const d of fit.diagnostics) if (d.rows) d.rows = d.rows.map((r) => (r >= 0 && r < inputRows.length ? inputRows[r] : r));
+  const added: Diagnostic[] = [...built.notes];
+  if (built.skipped.total > 0) {
+    // Skipped rows are a warning carried in the result, counted per column.
+    added.push({
+      code: "ROWS_SKIPPED",
+      severity: "warning",
+      message: formatMessage("ROWS_SKIPPED", { count: built.skipped.total, detail: skippedDetail(built.skipped) }),
+      columns: built.skipped.perColumn.map((c) => c.column),
+      rows: built.skipped.rows.slice(),
+    });
+  }
+  fit.diagnostics.push(...added);
+
+  const trainingRows = encodeRows(built.encoding, predictors, { argument: "predictors", headers: predTable.header ? "yes" : "no" });
+  return {
+    kind: fit.kind,
+    fit,
+    encoding: built.encoding,
+    labels: info,
+    rowMap: built.rowMap,
+    rows: n,
+    header: predTable.header,
+    firstRow: predTable.firstRow,
+    skipped: built.skipped,
+    design,
+    trainingRows: padEncoded(trainingRows, n),
+    trainingOffset: offset ? offset.values : null,
+    usesOffset: offset !== null,
+    threshold: options.threshold ?? 0.5,
+  };
+}
+
+/** Training predictors may be trimmed shorter than the labels: rows past their end are missing. */
+function padEncoded(e: EncodedRows, n: number): EncodedRows {
+  if (e.design.rows >= n) return e;
+  const ok = new Uint8Array(n);
+  ok.set(e.ok);
+  const columns = e.design.columns.map((c) => {
+    const out = new Float64Array(n).fill(NaN);
+    out.set(c);
+    return out;
+  });
+  const problems = e.problems.slice();
+  for (let i = e.design.rows; i < n; i++) {
+    problems.push({
+      index: i,
+      code: "MISSING_FOR_SCORING",
+      column: "predictors",
+      message: formatMessage("MISSING_FOR_SCORING", { row: e.firstRow + i, column: "predictors" }),
+    });
+  }
+  return { ...e, design: { rows: n, columns, names: e.design.names }, ok, problems };
+}
+
+/**
+ * Score rows with a trained model: class probabilities, predicted class, margins (and for binary
+ * models the linear predictor with its standard error and a probability interval on the logit
+ * scale), one entry per data row of `predictors`, or of the training rows when `predictors` is null.
+ * Rows that cannot be scored (missing value, unseen category) keep their place with NaN and a
+ * per-row problem. Methods: predictBinary / predictMulticlass.
+ *
+ * @param options.threshold decision threshold for binary models [the model's].
+ * @param options.offset offset column for new rows of a model fitted with an offset.
+ * @throws OddsmithError only for whole-range problems (EMPTY_RANGE, RAGGED_RANGE, COLUMN_COUNT_MISMATCH).
+ */
+export function scoreRows(
+  model: TrainedModel,
+  predictors: CellValue[][] | null,
+  options: { threshold?: number; offset?: CellValue[][] | null; headers?: "auto" | "yes" | "no" } = {},
+): RowScores {
+  const threshold = options.threshold ?? model.threshold;
+  const encoded = predictors === null ? model.trainingRows : encodeRows(model.encoding, predictors, { headers: options.headers ?? "auto" });
+  const n = encoded.design.rows;
+  const ok = encoded.ok.slice();
+  const problems = encoded.problems.slice();
+  let offsetAll: Float64Array | null = null;
+  if (model.usesOffset) {
+    if (predictors === null) offsetAll = model.trainingOffset;
+    else if (options.offset != null) {
+      const t = padTable(readTable(options.offset, { argument: "offset", headers: encoded.header ? "yes" : "no" }), n);
+      offsetAll = numericColumn(t).values;
+    }
+    // A model fitted with an offset needs one per scored row.
+    for (let i = 0; i < n; i++) {
+      if (ok[i] && !(offsetAll && Number.isFinite(offsetAll[i]))) {
+        ok[i] = 0;
+        problems.push({
+          index: i,
+          code: "MISSING_FOR_SCORING",
+          column: "offset",
+          message: formatMessage("MISSING_FOR_SCORING", { row: encoded.firstRow + i, column: "offset" }),
+        });
+      }
+    }
+    problems.sort((a, b) => a.index - b.index);
+  }
+  const good: number[] = [];
+  for (let i = 0; i < n; i++) if (ok[i]) good.push(i);
+  const X: DesignMatrix = {
+    rows: good.length,
+    names: encoded.design.names,
+    columns: encoded.design.columns.map((c) => Float64Array.from(good, (i) => c[i])),
+  };
+  const part =
+    model.kind === "binary"
+      ? predictBinary(model.fit, X, {
+          threshold,
+          offset: offsetAll ? Float64Array.from(good, (i) => (offsetAll as Float64Array)[i]) : undefined,
+        })
+      : scoreMulticlass(model.fit, X);
+  const prediction = expand(part, good, n);
+  const classes = model.fit.classes;
+  const predictedClass = Array.from(prediction.predicted, (k) => (k >= 0 ? classes[k] : null));
+  return {
+    rows: n,
+    header: encoded.header,
+    firstRow: encoded.firstRow,
+    classes,
+    positiveClass: model.fit.positiveClass,
+    threshold,
+    prediction,
+    predictedClass,
+    scored: ok,
+    problems,
+  };
+}
+
+/** Spread a prediction of the good rows back to all rows (NaN / -1 elsewhere). */
+function expand(p: Prediction, good: number[], n: number): Prediction {
+  const spread = (a: Float64Array | undefined) => {
+    if (!a) return undefined;
+    const out = new Float64Array(n).fill(NaN);
+    for (let r = 0; r < good.length; r++) out[good[r]] = a[r];
+    return out;
+  };
+  const predicted = new Int32Array(n).fill(-1);
+  for (let r = 0; r < good.length; r++) predicted[good[r]] = p.predicted[r];
+  const out: Prediction = {
+    probabilities: p.probabilities.map((a) => spread(a) as Float64Array),
+    predicted,
+    margin: spread(p.margin) as Float64Array,
+  };
+  if (p.linearPredictor) out.linearPredictor = spread(p.linearPredictor);
+  if (p.linearPredictorSE) out.linearPredictorSE = spread(p.linearPredictorSE);
+  if (p.lower) out.lower = spread(p.lower);
+  if (p.upper) out.upper = spread(p.upper);
+  if (p.linkMargin) out.linkMargin = spread(p.linkMargin);
+  return out;
+}
+
+/**
+ * Class probabilities of a multi-class fit: softmax of the equations' linear predictors, the
+ * reference class (reference form) having eta = 0; computed through log-sum-exp so no exponential
+ * overflows. Aliased terms contribute nothing. Predicted class = the most probable; margin = gap
+ * between the two largest probabilities. A row with a non-finite value, or a fit without usable
+ * estimates, gives NaN and predicted -1.
+ * Reference: Agresti, Categorical Data Analysis, 3rd ed. (2013), §8.1 (baseline-category logits).
+ * Used until src/engine/predictMulticlass.ts is available.
+ */
+function scoreMulticlass(fit: ModelFit, X: DesignMatrix): Prediction {
+  const K = fit.classes.length;
+  const n = X.rows;
+  const off = fit.intercept ? 1 : 0;
+  const eqOf = fit.equationClasses.map((c) => fit.classes.indexOf(c));
+  const probabilities = fit.classes.map(() => new Float64Array(n));
+  const predicted = new Int32Array(n);
+  const margin = new Float64Array(n);
+  const eta = new Float64Array(K);
+  for (let i = 0; i < n; i++) {
+    eta.fill(0);
+    let finite = true;
+    fit.coefficients.forEach((b, e) => {
+      let v = fit.intercept ? b[0] : 0;
+      for (let j = 0; j < X.columns.length; j++) {
+        if (fit.aliased[off + j]) continue;
+        v += b[off + j] * X.columns[j][i];
+      }
+      if (!Number.isFinite(v)) finite = false;
+      eta[eqOf[e]] = v;
+    });
+    if (!finite) {
+      for (let k = 0; k < K; k++) probabilities[k][i] = NaN;
+      predicted[i] = -1;
+      margin[i] = NaN;
+      continue;
+    }
+    const lse = logSumExp(eta);
+    let best = 0;
+    let first = -Infinity;
+    let second = -Infinity;
+    for (let k = 0; k < K; k++) {
+      const pk = Math.exp(eta[k] - lse);
+      probabilities[k][i] = pk;
+      if (pk > first) {
+        second = first;
+        first = pk;
+        best = k;
+      } else if (pk > second) second = pk;
+    }
+    predicted[i] = best;
+    margin[i] = first - second;
+  }
+  return { probabilities, predicted, margin };
+}
