@@ -53,8 +53,10 @@ const SMALL_EXPECTED = 5;
  * @throws OddsmithError as calibrationTable, plus BAD_OPTION_VALUE (sample) and
  *   TOO_FEW_CALIBRATION_GROUPS when fewer groups form than df >= 1 needs
  * @example
- * // 500 rows of a fitted logistic model, deciles: statistic 10.22 on 8 df, p = 0.25 (see test fixtures)
- * hosmerLemeshow(labels, fitted).p
+ * const y = Float64Array.of(0, 0, 1, 0, 1, 1, 0, 1, 1, 1);
+ * const p = Float64Array.of(0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.85, 0.9);
+ * const r = hosmerLemeshow(y, p, { groups: 5, sample: "external" });
+ * // five groups of two rows; r.statistic 3.1395, r.df 5, r.p 0.6785 (R by hand: 3.139488, 0.6784909)
  */
 export function hosmerLemeshow(
   labels: Float64Array,

@@ -5,9 +5,11 @@
 import {
   accuracy,
   brierScore,
+  calibrationSlope,
   calibrationTable,
   confusionCounts,
   confusionMatrix,
+  hosmerLemeshow,
   logLoss,
   multiclassAccuracy,
   multiclassBrierScore,
@@ -79,6 +81,34 @@ test("calibrationTable example: two groups split at the median", () => {
   expectClose(t.groups[0].expected, 0.4, HAND_REL_TOL, "expected 1");
   expectClose(t.groups[1].expected, 1.5, HAND_REL_TOL, "expected 2");
   expectClose(t.groups[1].meanPredicted, 0.75, HAND_REL_TOL, "mean predicted");
+});
+
+/** Values printed by R 4.2.2 with 7 significant digits (see the JSDoc examples). */
+const R_PRINTED_7_DIGITS = 5e-7;
+const exampleY = Float64Array.of(0, 0, 1, 0, 1, 1, 0, 1, 1, 1);
+const exampleP = Float64Array.of(0.1, 0.2, 0.3, 0.4, 0.5, 0.6, 0.7, 0.8, 0.85, 0.9);
+
+test("hosmerLemeshow example: five groups of two, statistic 3.139488 on 5 df, p 0.6784909 as computed by hand in R", () => {
+  const r = hosmerLemeshow(exampleY, exampleP, { groups: 5, sample: "external" });
+  expect(r.groups.map((g) => [g.lower, g.upper, g.rows, g.observed])).toEqual([
+    [0.1, 0.2, 2, 0],
+    [0.3, 0.4, 2, 1],
+    [0.5, 0.6, 2, 2],
+    [0.7, 0.8, 2, 1],
+    [0.85, 0.9, 2, 2],
+  ]);
+  expect(r.df).toBe(5);
+  expectClose(r.statistic, 3.139488, R_PRINTED_7_DIGITS, "statistic");
+  expectClose(r.p, 0.6784909, R_PRINTED_7_DIGITS, "p");
+  // 10 rows cannot give expected counts of 5: the test says its p-value is doubtful
+  expect(r.diagnostics.map((d) => d.code)).toEqual(["SMALL_EXPECTED_COUNTS"]);
+});
+
+test("calibrationSlope example: slope 1.192001 and calibration-in-the-large 0.370633 as R's glm", () => {
+  const r = calibrationSlope(exampleY, exampleP);
+  expectClose(r.slope.estimate, 1.192001, R_PRINTED_7_DIGITS, "slope");
+  expectClose(r.interceptWithSlope.estimate, 0.385281, R_PRINTED_7_DIGITS, "intercept of slope model");
+  expectClose(r.intercept.estimate, 0.370633, R_PRINTED_7_DIGITS, "calibration-in-the-large");
 });
 
 describe("binary and multi-class forms agree for K = 2", () => {
