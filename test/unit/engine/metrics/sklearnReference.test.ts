@@ -43,6 +43,13 @@ describe.each(regimes)("binary metrics match scikit-learn 1.2.1 — %s", (_name,
     expectAllClose(c.falsePositiveRate, r.roc_curve.fpr, SAME_FORMULA_REL_TOL, "FPR");
   });
 
+  test("weighted ROC curve points equal sklearn's (both leave rows of weight 0 out)", () => {
+    const c = rocCurve(y, p, { weights: w });
+    expectAllClose(c.thresholds.subarray(1), r.roc_curve_weighted.thresholds, 0, "thresholds");
+    expectAllClose(c.truePositiveRate, r.roc_curve_weighted.tpr, SAME_FORMULA_REL_TOL, "TPR");
+    expectAllClose(c.falsePositiveRate, r.roc_curve_weighted.fpr, SAME_FORMULA_REL_TOL, "FPR");
+  });
+
   test.each([0.5, 0.3])("confusion counts, accuracy, precision, recall and F1 at threshold %s equal sklearn's", (t) => {
     const key = String(t) as "0.5" | "0.3";
     const rr = r as unknown as Record<string, number & number[][]>;
