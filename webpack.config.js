@@ -38,6 +38,14 @@ const PRODUCTION_URL = process.env.ODDSMITH_PUBLIC_URL || "https://oddsmith-host
 const PORT = 3000;
 const CERT_DIR = path.join(os.homedir(), ".office-addin-dev-certs");
 
+/**
+ * The shared-runtime page used while src/taskpane/taskpane.html does not exist. Whatever template
+ * replaces it must load office.js (from our own folder) BEFORE the bundles, as this one does.
+ */
+const FALLBACK_PAGE = `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><title>Oddsmith</title>
+<script src="office-js/office.js"></script></head><body></body></html>`;
+
 const src = (...parts) => path.resolve(__dirname, "src", ...parts);
 const exists = (file) => fs.existsSync(file);
 
@@ -91,8 +99,8 @@ module.exports = (env, argv) => {
   const pages = [
     new HtmlWebpackPlugin({
       filename: "taskpane.html",
-      // Until src/taskpane/taskpane.html exists, HtmlWebpackPlugin's default page carries the bundles.
-      ...(exists(src("taskpane", "taskpane.html")) ? { template: src("taskpane", "taskpane.html") } : { title: "Oddsmith" }),
+      // Until src/taskpane/taskpane.html exists, a minimal page carries office.js and the bundles.
+      ...(exists(src("taskpane", "taskpane.html")) ? { template: src("taskpane", "taskpane.html") } : { templateContent: FALLBACK_PAGE }),
       chunks: ["functions", "taskpane"].filter((name) => name in entry),
       chunksSortMode: "manual",
     }),

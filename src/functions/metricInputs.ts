@@ -106,14 +106,14 @@ export function readMetricInputs(
     throw problem("SINGLE_COLUMN_NEEDED", { argument: "labels", columns: labelTable.columns.length });
   }
   const probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column " });
-  const labelRows = dataHeight(labelTable) + (labelTable.header ? 1 : 0);
-  const probRows = dataHeight(probTable) + (probTable.header ? 1 : 0);
-  if (labelRows !== probRows || labelTable.header !== probTable.header) {
+  // Both ranges must cover the same rows: same header decision, same number of data rows (counted
+  // as selected, before trailing blank rows are trimmed).
+  if (dataHeight(labelTable) !== dataHeight(probTable) || labelTable.header !== probTable.header) {
     throw problem("RANGE_SHAPE_MISMATCH", {
       argument: "probabilities",
-      got: probRows,
+      got: dataHeight(probTable),
       expectedArgument: "labels",
-      expected: labelRows,
+      expected: dataHeight(labelTable),
     });
   }
   const columns = probTable.columns.map((_, j) => numericColumnValues(probTable, j));
