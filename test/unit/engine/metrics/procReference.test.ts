@@ -1,8 +1,8 @@
 /**
  * ROC AUC, DeLong variance and interval, and ROC points against pROC 1.18.0 on its aSAH data
  * (fixture test/fixtures/metrics/roc-asah.json, written by roc-asah.R next to it).
- * Published source: pROC's documentation example gives auc(aSAH$outcome, aSAH$s100b) = 0.7314
- * (Robin et al. 2011, BMC Bioinformatics 12:77).
+ * Published source: pROC's help page "coords_transpose" (installed with Debian r-cran-proc 1.18.0)
+ * prints sensitivity and specificity of the s100b curve at thresholds 0.05, 0.2 and 0.5.
  */
 import fixture from "../../../fixtures/metrics/roc-asah.json";
 import { rocAuc, rocCurve } from "../../../../src/engine/metrics";
@@ -12,14 +12,23 @@ import { expectClose, f64 } from "./close";
 const JSON_DIGITS_REL_TOL = 1e-12;
 /** Interval ends also go through the normal quantile (ours vs R's qnorm, both near machine precision). */
 const INTERVAL_REL_TOL = 1e-10;
-/** The value printed in pROC's documentation, 4 decimals. */
-const PRINTED_4_DECIMALS = 5e-5;
+/** Values printed in pROC's help page with 7 significant digits. */
+const PRINTED_7_DIGITS = 1e-7;
 
 const labels = f64(fixture.label);
 const markerValues: Record<string, number[]> = { s100b: fixture.s100b, ndka: fixture.ndka };
 
-test("the s100b AUC is the 0.7314 printed in pROC's documentation", () => {
-  expectClose(rocAuc(labels, f64(fixture.s100b)).auc, 0.7314, PRINTED_4_DECIMALS, "AUC s100b");
+test.each([
+  [0.05, 0.97560976, 0.06944444],
+  [0.2, 0.6341463, 0.8055556],
+  [0.5, 0.2926829, 0.9722222],
+])("s100b at threshold %s: sensitivity %s and specificity %s as printed in pROC's help page coords_transpose", (t, sens, spec) => {
+  // pROC counts a case as positive when s100b >= t; our point for t is the one at the smallest score >= t
+  const c = rocCurve(labels, f64(fixture.s100b));
+  let i = 0;
+  while (i + 1 < c.thresholds.length && c.thresholds[i + 1] >= t) i++;
+  expectClose(c.truePositiveRate[i], sens, PRINTED_7_DIGITS, "sensitivity");
+  expectClose(1 - c.falsePositiveRate[i], spec, PRINTED_7_DIGITS, "specificity");
 });
 
 describe.each(fixture.markers.map((m) => [m.marker, m] as const))("aSAH marker %s", (name, ref) => {
