@@ -25,8 +25,10 @@
  * - Firth fits (biasReduction): estimates maximize l(b) + (1/2) log det I(b); standard errors from
  *   I(b*)^{-1} at the estimate with Wald z, p and intervals (as brglm2's summary for "AS_mean").
  *   logLikelihood is the ordinary log-likelihood at the Firth estimate; nullLogLikelihood the
- *   ordinary intercept-only maximum; lrTest uses the penalized log-likelihoods of the full and the
- *   intercept-only Firth fits (Heinze & Schemper 2002, §2.2).
+ *   ordinary intercept-only maximum; lrTest is the penalized-likelihood ratio of the fit against the
+ *   same penalized likelihood maximized with every non-intercept coefficient held at 0 (the
+ *   penalty still computed from the full design, so the statistic does not depend on units),
+ *   as Heinze & Schemper (2002, §2.2) define it.
  * - Separation (unpenalized, non-Firth fits): when certified, the fit has no usable estimate: the
  *   coefficients, covariance and table numbers are NaN and an error diagnostic names the columns
  *   and rows; logLikelihood and deviance keep the supremum the iterations approached.
@@ -47,8 +49,6 @@ import {
 import { congruence, invertSymmetric, rankRevealingCholesky, weightedCrossProduct } from "./linalg";
 import { newtonLogistic, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { formatMessage, listNames, problem, type MessageCode } from "./messages";
-import { logDetFromCholesky } from "./firth";
-import { cholesky } from "./linalg";
 import { logGamma } from "./numerics";
 import { profileIntervals } from "./profile";
 import { separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
@@ -479,7 +479,7 @@ export function fitBinaryModel(
 
   // ---- likelihood summaries ----------------------------------------------------------------
   const logLikelihood = fit.logLikelihood + logBinom;
-  const nullFit = nullModel(data, opt.intercept, opt.maxIterations, false);
+  const nullFit = nullModel(data, opt.intercept, opt.maxIterations);
   const nullLogLikelihood = nullFit.logLikelihood + logBinom;
   const deviance = 2 * (saturated - fit.logLikelihood);
   const nullDeviance = 2 * (saturated - nullFit.logLikelihood);
@@ -487,14 +487,13 @@ export function fitBinaryModel(
   const df = k - (interceptIndex === 0 ? 1 : 0);
   let lrTest = likelihoodRatioTest(logLikelihood, nullLogLikelihood, df);
   if (opt.biasReduction) {
-    // Penalized log-likelihoods l + (1/2) log det I on the original scale (invariant to scaling):
-    // log det I_orig = log det I_fit + 2 sum_j log s_j over the kept non-intercept columns.
-    let logScale = 0;
-    for (const j of kept) if (!(opt.intercept && j === 0)) logScale += Math.log(scale[j - off0]);
-    const c = cholesky(fit.information, k);
-    const penFull = fit.logLikelihood + (c.ok ? 0.5 * logDetFromCholesky(c.factor, k) : NaN) + logScale;
-    const nullFirth = nullModel(data, opt.intercept, opt.maxIterations, true);
-    const statistic = 2 * (penFull - nullFirth.penalizedLogLikelihood);
+    // Penalized likelihood ratio test (Heinze & Schemper 2002, §2.2): the null model holds every
+    // non-intercept coefficient at 0 but keeps the full design in the penalty (1/2) log det I, so
+    // the Jacobian of the parametrization cancels and the statistic does not depend on units.
+    const free = new Uint8Array(k);
+    if (interceptIndex === 0) free[0] = 1;
+    const nullFirth = newtonLogistic({ ...problemK, keepHistory: false, free, start: null });
+    const statistic = 2 * (nullFirth.objective - fit.objective);
     lrTest = { statistic, df, p: df > 0 ? chiSquareSurvival(Math.max(statistic, 0), df) : NaN };
   }
   if (penalized) {
@@ -577,9 +576,9 @@ export function fitBinaryModel(
 
 /**
  * Intercept-only model with the same weights, trials and offset (or the offset alone without an
- * intercept). Returns the kernel log-likelihood and, for Firth, the penalized one.
+ * intercept). Returns the kernel log-likelihood.
  */
-function nullModel(d: FitData, intercept: boolean, maxIterations: number, firth: boolean): { logLikelihood: number; penalizedLogLikelihood: number } {
+function nullModel(d: FitData, intercept: boolean, maxIterations: number): { logLikelihood: number } {
   const n = d.rows;
   if (!intercept) {
     const r = newtonLogistic({
@@ -594,7 +593,7 @@ function nullModel(d: FitData, intercept: boolean, maxIterations: number, firth:
       maxIterations: 1,
       tolerance: 1e-12,
     });
-    return { logLikelihood: r.logLikelihood, penalizedLogLikelihood: r.logLikelihood };
+    return { logLikelihood: r.logLikelihood };
   }
   const r: NewtonResult = newtonLogistic({
     rows: n,
@@ -604,11 +603,11 @@ function nullModel(d: FitData, intercept: boolean, maxIterations: number, firth:
     weights: d.weights,
     offset: d.offset,
     penalty: new Float64Array(1),
-    firth,
+    firth: false,
     maxIterations,
     tolerance: 1e-13,
   });
-  return { logLikelihood: r.logLikelihood, penalizedLogLikelihood: -r.objective };
+  return { logLikelihood: r.logLikelihood };
 }
 
 

@@ -9,13 +9,13 @@
  * (modified) score. The step is halved while F does not decrease (as glm.fit does on divergence).
  * Convergence: |D - D_old| / (0.1 + |D|) < tol with D = 2F (the penalized deviance up to a
  * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations;
- * Firth fits additionally need the largest relative step below 1e-9.
+ * Firth fits additionally need the largest relative step below 1e-11.
  * References: P. McCullagh & J. A. Nelder, Generalized Linear Models, 2nd ed. (1989), §2.5 (IRLS);
  * Firth (1993) and Heinze & Schemper (2002) for the modified score (see firth.ts).
  */
 
 import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
-import { cholesky, choleskySolve, type SquareMatrix } from "./linalg";
+import { cholesky, choleskySolve, subMatrix, type SquareMatrix } from "./linalg";
 import { logSigmoid, sigmoid } from "./numerics";
 
 /** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
@@ -40,6 +40,12 @@ export interface NewtonProblem {
   start?: Float64Array | null;
   /** Keep every iterate (used by the separation check). */
   keepHistory?: boolean;
+  /**
+   * Which coefficients are estimated (1) or held at their start value (0) [all free]. The
+   * information (and Firth's penalty) still uses every column: this is how a Firth model with some
+   * coefficients fixed at 0 is fitted (Heinze & Schemper 2002, penalized LR tests).
+   */
+  free?: Uint8Array | null;
 }
 
 /** What the Newton core returns. */
@@ -69,7 +75,7 @@ export interface NewtonResult {
 }
 
 /** Firth fits also need the largest relative step below this (see the loop). */
-const FIRTH_STEP_TOLERANCE = 1e-9;
+const FIRTH_STEP_TOLERANCE = 1e-11;
 
 /** Halvings tried before a step is declared unable to improve the objective. */
 const MAX_HALVINGS = 30;
@@ -151,10 +157,11 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   const gTry = new Float64Array(k);
   const history: Float64Array[] = [];
 
+  const freeIdx = p.free ? Array.from({ length: k }, (_, j) => j).filter((j) => p.free![j]) : null;
   const g = new Float64Array(k);
   if (p.start) {
     g.set(p.start);
-  } else if (k > 0 && isInterceptColumn(p.columns[0], n)) {
+  } else if (k > 0 && isInterceptColumn(p.columns[0], n) && (!p.free || p.free[0])) {
     let sy = 0;
     let st = 0;
     for (let i = 0; i < n; i++) {
@@ -192,12 +199,27 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
     }
     infoPen.set(info);
     for (let j = 0; j < k; j++) infoPen[j * k + j] += p.penalty[j];
-    const c = cholesky(infoPen, k);
-    if (!c.ok) {
-      singular = true;
-      break;
+    if (freeIdx) {
+      // Newton step on the free coordinates only; the held ones do not move.
+      const m = freeIdx.length;
+      const sub = subMatrix(infoPen, k, freeIdx);
+      const c = cholesky(sub, m);
+      if (!c.ok) {
+        singular = true;
+        break;
+      }
+      const rhs = Float64Array.from(freeIdx, (j) => score[j]);
+      const s = choleskySolve(c.factor, m, rhs);
+      step.fill(0);
+      for (let t = 0; t < m; t++) step[freeIdx[t]] = s[t];
+    } else {
+      const c = cholesky(infoPen, k);
+      if (!c.ok) {
+        singular = true;
+        break;
+      }
+      choleskySolve(c.factor, k, score, step);
     }
-    choleskySolve(c.factor, k, score, step);
     // Newton decrement: U' I^{-1} U ~ twice the predicted decrease of F.
     let decrement = 0;
     for (let j = 0; j < k; j++) decrement += score[j] * step[j];

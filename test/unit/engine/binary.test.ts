@@ -374,3 +374,75 @@ describe("data problems reported in the result", () => {
     expect(() => fitBinaryModel(spX, new Float64Array(5))).toThrow(/response range has 5 rows/);
   });
 });
+
+// ---------------------------------------------------------------------------------------------
+const ridge = loadFixture("ridge.json");
+const rX = design({ x1: ridge.data.x1, x2: ridge.data.x2, x3: ridge.data.x3, x4: ridge.data.x4 });
+const rY = Float64Array.from(ridge.data.y);
+const rW = Float64Array.from(ridge.data.w);
+/** scikit-learn's newton-cg stopped with gradient norms up to 2e-7 (stored per case), so its
+ * coefficients are good to ~1e-7 relative here (observed agreement: 3e-8 or better). */
+const SKLEARN_TOL = 1e-7;
+
+describe("L2 (ridge) penalty vs scikit-learn LogisticRegression(C = 1/lambda)", () => {
+  test.each(ridge.cases.map((c: any) => [c.penalty, c.penaltyScale, c.weighted, c]) as [number, string, boolean, any][])(
+    "lambda = %p on the %s scale (weighted: %p) gives scikit-learn's coefficients",
+    (penalty, penaltyScale, weighted, c) => {
+      const f = fitBinaryModel(rX, rY, { penalty, penaltyScale: penaltyScale as any, weights: weighted ? rW : null });
+      expect(f.converged).toBe(true);
+      expectClose(f.coefficients[0], c.coefficients, SKLEARN_TOL, "ridge coef");
+    },
+  );
+
+  test("the estimate zeroes the penalized score: X'(y - p) = lambda * s_j^2 * b_j, intercept unpenalized", () => {
+    const lambda = 2;
+    const f = fitBinaryModel(rX, rY, { penalty: lambda });
+    const b = f.coefficients[0];
+    const n = rX.rows;
+    const resid = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      let e = b[0];
+      for (let j = 0; j < 4; j++) e += b[j + 1] * rX.columns[j][i];
+      resid[i] = rY[i] - 1 / (1 + Math.exp(-e));
+    }
+    expect(Math.abs(resid.reduce((s, v) => s + v, 0))).toBeLessThan(1e-9);
+    for (let j = 0; j < 4; j++) {
+      const x = rX.columns[j];
+      const m = x.reduce((s, v) => s + v, 0) / n;
+      const v = x.reduce((s, xi) => s + (xi - m) ** 2, 0) / n; // population variance
+      const score = x.reduce((s, xi, i) => s + xi * resid[i], 0);
+      expectScalarClose(score, lambda * v * b[j + 1], 1e-7, `score ${j}`, 1e-6);
+    }
+  });
+
+  test("a penalized fit reports no covariance, no p-values or intervals, and the PENALIZED_NO_P_VALUES note", () => {
+    const f = fitBinaryModel(rX, rY, { penalty: 1 });
+    expect(f.penalized).toBe(true);
+    expect(f.covariance).toBeNull();
+    for (const r of f.table) {
+      expect(Number.isFinite(r.estimate)).toBe(true);
+      expect(r.ratio).toBeCloseTo(Math.exp(r.estimate), 12);
+      for (const v of [r.standardError, r.z, r.p, r.lower, r.upper, r.ratioLower, r.ratioUpper]) expect(v).toBeNaN();
+    }
+    expect(f.lrTest.p).toBeNaN();
+    const note = f.diagnostics.find((d) => d.code === "PENALIZED_NO_P_VALUES")!;
+    expect(note.severity).toBe("note");
+    expect(note.message).toContain("penalty=1");
+  });
+
+  test("a penalty keeps estimates finite under complete separation (with a note, not an error)", () => {
+    const X = design({ x: [1, 2, 3, 4, 5, 6] });
+    const f = fitBinaryModel(X, Float64Array.of(0, 0, 0, 1, 1, 1), { penalty: 0.1 });
+    expect(f.converged).toBe(true);
+    expect(Number.isFinite(f.table[1].estimate)).toBe(true);
+    expect(f.diagnostics.find((d) => d.code === "SEPARATION_HANDLED")!.severity).toBe("note");
+    expect(f.diagnostics.some((d) => d.severity === "error")).toBe(false);
+  });
+
+  test("with a penalty, fewer rows than parameters is allowed", () => {
+    const X = design({ a: [1, 2, 3], b: [3, 1, 2], c: [0, 1, 1] });
+    const f = fitBinaryModel(X, Float64Array.of(0, 1, 0), { penalty: 1 });
+    expect(f.diagnostics.some((d) => d.code === "TOO_FEW_ROWS")).toBe(false);
+    expect(f.table.every((r) => Number.isFinite(r.estimate))).toBe(true);
+  });
+});
