@@ -695,14 +695,23 @@ function evaluateTargets(r: RunRecord): Target[] {
   } else t.push({ name: "Cell-function overhead", goal: "parsing + formatting <= 25% of the whole call", measured: cell?.error ?? "not run", status: "not measured" });
   const b = r.boundary;
   if (b && b.ok) {
+    // Judged on the borderline-row computation itself (nearBoundaryRows on a ready prediction);
+    // scoring the rows first is reported beside it, and is a target of its own when it misses.
     const both = b.predictAndSelect!.median;
     t.push({
       name: `Borderline rows at ${b.rows.toLocaleString("en-US")} rows`,
-      goal: "< 200 ms",
-      measured: `selection ${fmtS(b.select!.median)}; scoring + selection ${fmtS(both)}`,
-      status: both < 0.2 ? "met" : b.select!.median < 0.2 ? "met" : "not met",
+      goal: "< 200 ms (nearBoundaryRows on a ready prediction)",
+      measured: `selection ${fmtS(b.select!.median)}; for information, scoring the rows first + selection ${fmtS(both)}${both < 0.2 ? "" : " (over 200 ms)"}`,
+      status: b.select!.median < 0.2 ? "met" : "not met",
     });
   } else t.push({ name: "Borderline rows at 1,000,000 rows", goal: "< 200 ms", measured: b?.error ?? "not run", status: "not measured" });
+  // A quick run measures smaller data than the targets name: report, but judge nothing.
+  if (r.quick) {
+    for (const x of t) {
+      if (x.status !== "not measured") x.measured = `quick run on smaller data: ${x.measured}`;
+      x.status = "not measured";
+    }
+  }
   return t;
 }
 
