@@ -18,7 +18,8 @@
  *   is counted per column in a ROWS_SKIPPED warning added to the fit's diagnostics. Diagnostic row
  *   indices are mapped back to the caller's data rows (0-based, header excluded).
  * - Two classes give a binary fit, more give a multi-class fit. With trials, the labels column holds
- *   success counts and the classes are named "failure" and "success".
+ *   success counts and the classes are named "failure" and "success". Two-class-only options
+ *   (firth, the profile interval, an offset) with multi-class labels are BAD_OPTION_VALUE.
  * - Scoring: outputs have one entry per data row of the scored range (the training rows when no
  *   range is given, including rows skipped for a missing label: those can still be scored). A row
  *   that cannot be scored keeps its place with NaN numbers and a per-row problem.
@@ -26,7 +27,7 @@
 import { fitBinaryModel } from "./binary";
 import { buildDesign, encodeRows, skippedDetail, type DesignEncoding, type EncodedRows, type RowProblem, type SkippedRows } from "./design";
 import { readLabels, type LabelInfo } from "./labels";
-import { formatMessage, problem } from "./messages";
+import { formatMessage, listNames, problem } from "./messages";
 import { fitMulticlassModel } from "./multiclass";
 import { logSumExp } from "./numerics";
 import { predictBinary } from "./predictBinary";
@@ -333,6 +334,17 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
         offset: offset ? gather(offset.values, inputRows) : null,
       }, [classes.classes[0], classes.classes[1]]);
     } else {
+      // Two-class-only options are refused for multi-class labels, named as the user wrote them.
+      const k = classes.classes.length;
+      const twoClassOnly = (name: string, value: string, what: string) =>
+        problem("BAD_OPTION_VALUE", {
+          name,
+          value,
+          expected: `${what} is available for two-class labels only, and the label column has ${k} classes (${listNames(classes.classes)}).`,
+        });
+      if (options.firth) throw twoClassOnly("firth", "TRUE", "Bias reduction");
+      if (options.intervalMethod === "profile") throw twoClassOnly("interval", "profile", "The profile-likelihood interval");
+      if (offset) throw twoClassOnly("offset", "a column", "An offset");
       fit = fitMulticlassModel(design, codes, classes.classes, {
         ...common,
         weights: w,
@@ -350,8 +362,19 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     };
   }
 
-  // Diagnostic rows from the fitter index design rows: map them back to the caller's data rows.
-  for (const d of fit.diagnostics) if (d.rows) d.rows = d.rows.map((r) => (r >= 0 && r < inputRows.length ? inputRows[r] : r));
+  // Diagnostic rows from the fitter index design rows: map them back to the caller's data rows,
+  // and the 1-based example rows in its message (e.g. "rows 1, 2, 5") to rows of the user's range.
+  for (const d of fit.diagnostics) {
+    if (!d.rows || d.rows.length === 0) continue;
+    const fitted = d.rows;
+    d.rows = fitted.map((r) => (r >= 0 && r < inputRows.length ? inputRows[r] : r));
+    const example = fitted.slice(0, 5).map((r) => r + 1).join(", ");
+    const shown = (d.rows as number[]).slice(0, 5).map((r) => rangeRow(predTable, r)).join(", ");
+    const at = d.message.indexOf(`rows ${example}`);
+    if (at >= 0 && d.message.indexOf(`rows ${example}`, at + 1) < 0) {
+      d.message = d.message.slice(0, at) + `rows ${shown}` + d.message.slice(at + 5 + example.length);
+    }
+  }
   const added: Diagnostic[] = [...built.notes];
   if (built.skipped.total > 0) {
     // Skipped rows are a warning carried in the result, counted per column.

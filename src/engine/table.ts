@@ -112,11 +112,17 @@ export function isBlankCell(v: CellValue): boolean {
 }
 
 function classify(v: CellValue): number {
-  if (isBlankCell(v)) return BLANK;
+  if (v === null || v === undefined) return BLANK;
   if (typeof v === "number") return NUM;
   if (typeof v === "boolean") return BOOL;
-  // Numbers stored as text follow the locale-free rule.
-  if (typeof v === "string") return NUMERIC_TEXT.test(v.trim()) ? NUM : TEXT;
+  // Numbers stored as text follow the locale-free rule (the regex runs only on a plausible start).
+  if (typeof v === "string") {
+    const t = v.trim();
+    const c = t.charCodeAt(0);
+    if (t === "") return BLANK;
+    const plausible = (c >= 48 && c <= 57) || c === 43 || c === 45 || c === 46;
+    return plausible && NUMERIC_TEXT.test(t) ? NUM : TEXT;
+  }
   return TEXT;
 }
 

@@ -182,6 +182,17 @@ describe("encodeRows", () => {
     expect(e.ok[0]).toBe(1);
   });
 
+  test("a non-finite number when scoring is NOT_FINITE_VALUE for that row only", () => {
+    const e = encodeRows(encoding, [
+      [Infinity, "East", true],
+      [4, "North", false],
+    ]);
+    expect(Array.from(e.ok)).toEqual([0, 1]);
+    expect(e.problems[0].message).toBe(
+      "The predictors value in row 1, column 1 is Infinity, which is not a finite number. Enter a finite number or clear the cell.",
+    );
+  });
+
   test("columns are matched by name when the first row repeats the training names, in any order", () => {
     const e = encodeRows(encoding, [
       ["member", "note", "region", "visits"],

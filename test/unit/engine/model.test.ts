@@ -262,6 +262,9 @@ describe("trainModel: ranges and options", () => {
   test("grouped counts with no success at all are ONE_CLASS_ONLY", () => {
     const e = caught(() => trainModel([["dead"], [0], [0]], [["dose"], [1], [2]], { trials: [["n"], [20], [20]] }));
     expect(e.code).toBe("ONE_CLASS_ONLY");
+    expect(e.message).toBe(
+      'Every usable row has the label "failure". A classifier needs at least two classes in the label column.',
+    );
   });
 
   test("an offset enters the fit and is required to score new rows", () => {
@@ -276,6 +279,35 @@ describe("trainModel: ranges and options", () => {
     const s2 = scoreRows(m, [["visits"], [3]], { offset: [["o"], [0.4]] });
     const b = m.fit.coefficients[0];
     expect(s2.prediction.linearPredictor?.[0]).toBeCloseTo(0.4 + b[0] + 3 * b[1], 12);
+  });
+
+  test("rows named by a fit diagnostic are the caller's data rows, and range rows in its message", () => {
+    // Quasi-complete separation by x (both classes only at x = 3); data row 0 is skipped (no label).
+    const m = trainModel(
+      [["y"], [null], [0], [0], [0], [1], [0], [1], [1], [1]],
+      [["x"], [9], [1], [2], [3], [3], [2], [4], [5], [6]],
+      {},
+    );
+    const d = m.fit.diagnostics.find((x) => x.code === "SEPARATION_QUASI");
+    expect(d).toBeDefined();
+    const rows = d?.rows as number[];
+    expect(rows.length).toBeGreaterThan(0);
+    expect(rows).not.toContain(0);
+    // Data row r sits in range row r + 2 (header in row 1).
+    expect(d?.message).toContain(`for example rows ${rows.slice(0, 5).map((r) => r + 2).join(", ")})`);
+  });
+
+  test("weights of two columns are SINGLE_COLUMN_NEEDED", () => {
+    const w: CellValue[][] = preds.map(() => [1, 1]);
+    const e = caught(() => trainModel(labels, preds, { weights: w }));
+    expect(e.message).toBe("The weights range has 2 columns. Select a single column.");
+  });
+
+  test("headers=yes takes the first row of every range as names, even over numbers", () => {
+    const m = trainModel([[1], [0], [1], [0], [1], [0], [0], [1]], [[2], [1], [3], [1], [3], [2], [1], [2]], { headers: "yes" });
+    expect(m.rows).toBe(7);
+    expect(m.labels.name).toBe("1");
+    expect(m.fit.terms).toEqual(["(intercept)", "2"]);
   });
 
   test("a named positive class that does not occur is CLASS_NOT_FOUND", () => {
@@ -316,6 +348,18 @@ describe("trainModel: multi-class against nnet::multinom on the orchard survey",
     });
     expect(s.scored[4]).toBe(0);
     expect(s.predictedClass[4]).toBeNull();
+  });
+
+  test.each([
+    [{ firth: true }, "firth", "TRUE", "Bias reduction"],
+    [{ intervalMethod: "profile" as const }, "interval", "profile", "The profile-likelihood interval"],
+    [{ offset: orchard.labelsGrade.map((r, i) => [i === 0 ? "o" : 0.1]) as CellValue[][] }, "offset", "a column", "An offset"],
+  ])("a two-class-only option (%p) with three classes is BAD_OPTION_VALUE naming the option", (opts, name, value, what) => {
+    const e = caught(() => trainModel(orchard.labelsGrade as CellValue[][], PREDICTORS, opts));
+    expect(e.code).toBe("BAD_OPTION_VALUE");
+    expect(e.message).toBe(
+      `The option ${name} cannot be "${value}". ${what} is available for two-class labels only, and the label column has 3 classes ("high", "low" and "medium").`,
+    );
   });
 
   test("a named reference class is used", () => {
