@@ -339,6 +339,12 @@ export const MESSAGES = {
     template:
       "The recipe makes {columns} columns for {rows} rows ({ratio} rows per column). With fewer than {rule} rows per column a fit tends to overfit or separate: use fewer or smaller transforms, or more rows.",
   },
+  BASIS_NEEDS_HEADER: {
+    cellError: "#VALUE!",
+    title: "Basis columns need a header row",
+    template:
+      "The block {address} does not seem to start with a header row, and recipes name columns by their headers. Select the block including its header row, or say that the first row holds headers.",
+  },
   BASIS_TARGET_NOT_EMPTY: {
     cellError: "#VALUE!",
     title: "Cells in the way",
@@ -427,6 +433,12 @@ export const MESSAGES = {
     title: "Small expected counts",
     template:
       "{count} of {groups} groups have an expected count below {minimum} (first: group {group}), so the chi-square p-value of the Hosmer-Lemeshow test may be unreliable. Use fewer groups or more rows.",
+  },
+  CALIBRATION_SLOPE_UNBOUNDED: {
+    cellError: "#N/A",
+    title: "Calibration slope unbounded",
+    template:
+      "The probabilities separate the labels (no negative row has a higher probability than a positive row), so the calibration slope runs off to infinity and is not given. Judge calibration from the observed-vs-expected table instead.",
   },
   // ---- catch-all (#VALUE!) ---------------------------------------------------------------------
   INTERNAL: {
