@@ -59,8 +59,9 @@ function coefficient(fit: ModelFit, index: number): CalibrationCoefficient {
  * log-loss; a clipped row sits at logit +/-34.5 and carries much leverage, so a warning says how many
  * rows were clipped). If every row with positive weight has the same probability the slope is not
  * estimable (CONSTANT_PROBABILITIES, slope NaN) while the calibration-in-the-large is still given.
- * Diagnostics of the fits (non-convergence, separation when the probabilities order the labels
- * perfectly) are passed on and their numbers are NaN, never huge.
+ * Other diagnostics of the fits (for example non-convergence) are passed on. When the probabilities separate the
+ * labels (no negative row above a positive one) the slope is unbounded: it is NaN, never a huge
+ * number, with a CALIBRATION_SLOPE_UNBOUNDED error.
  *
  * References: Cox (1958), "Two further applications of a model for binary regression", Biometrika
  * 45:562-565; Van Calster et al. (2019), "Calibration: the Achilles heel of predictive analytics",
@@ -124,7 +125,13 @@ export function calibrationSlope(
     diagnostics.push(makeDiagnostic("CONSTANT_PROBABILITIES", "error", { value: first, measure: "the calibration slope" }));
   } else {
     const slopeFit = fitBinaryModel({ rows: n, columns: [logits], names: ["logit(p)"] }, labels, fitOptions);
-    diagnostics.push(...slopeFit.diagnostics);
+    // Separation here means the probabilities rank the labels perfectly: say that in calibration
+    // terms instead of passing on the fitter's advice about predictor columns.
+    for (const d of slopeFit.diagnostics) {
+      if (d.code === "SEPARATION_COMPLETE" || d.code === "SEPARATION_QUASI") {
+        diagnostics.push(makeDiagnostic("CALIBRATION_SLOPE_UNBOUNDED", "error", {}, d.rows));
+      } else diagnostics.push(d);
+    }
     interceptWithSlope = coefficient(slopeFit, 0);
     slope = coefficient(slopeFit, 1);
   }

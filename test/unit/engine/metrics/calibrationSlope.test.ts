@@ -72,6 +72,21 @@ test("probabilities exactly 0 and 1 are clipped before the logit, with a warning
   expect(Number.isFinite(r.intercept.estimate)).toBe(true);
 });
 
+test("probabilities that rank the labels perfectly: slope NaN (unbounded) with CALIBRATION_SLOPE_UNBOUNDED, never a huge number", () => {
+  const r = calibrationSlope(f64([0, 0, 0, 1, 1, 1]), f64([0.1, 0.2, 0.3, 0.6, 0.7, 0.8]));
+  expect(r.slope.estimate).toBeNaN();
+  expect(r.slope.standardError).toBeNaN();
+  expect(r.diagnostics.map((d) => [d.code, d.severity])).toEqual([["CALIBRATION_SLOPE_UNBOUNDED", "error"]]);
+  // calibration-in-the-large is still defined: sum of p = 2.7 vs 3 positives, so a > 0
+  expect(r.intercept.estimate).toBeGreaterThan(0);
+});
+
+test("a tie between the highest negative and the lowest positive (quasi-separation) is unbounded too", () => {
+  const r = calibrationSlope(f64([0, 0, 0, 1, 1, 1]), f64([0.1, 0.2, 0.5, 0.5, 0.7, 0.8]));
+  expect(r.slope.estimate).toBeNaN();
+  expect(r.diagnostics.map((d) => d.code)).toEqual(["CALIBRATION_SLOPE_UNBOUNDED"]);
+});
+
 test("all rows in one class: METRIC_NEEDS_BOTH_CLASSES", () => {
   expectProblem(() => calibrationSlope(f64([1, 1]), f64([0.2, 0.6])), "METRIC_NEEDS_BOTH_CLASSES");
 });
