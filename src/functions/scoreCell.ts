@@ -11,6 +11,7 @@
  * - One distinct class (or no class column): a binary model; the output is the probability of that
  *   class (header "P(class)"). Several classes: a reference-class softmax; the reference class is
  *   read from the class header "class (reference: A)" (else it is called "reference") and comes first.
+ *   A class header "class (symmetric)" marks the symmetric form: one equation per class, no reference.
  * - Terms: "(intercept)" is 1; a term naming a column of `rows` takes that column's numbers; a term
  *   "column=level" with no column of that name is the indicator of `column` equal to `level`.
  * - A row with a blank in a used column cannot be scored: its output cells are "" (the other rows are
@@ -27,9 +28,11 @@ import { checkPayload } from "./payload";
 
 /** A model read back from a coefficient table. */
 export interface SheetModel {
-  /** Class names: binary [positive]; multi-class [reference, ...equation classes]. */
+  /** Class names: binary [positive]; reference form [reference, ...equation classes]; symmetric form the equation classes. */
   classes: string[];
   kind: "binary" | "multiclass";
+  /** Multi-class parameterization (binary: "reference"). */
+  form: "reference" | "symmetric";
   terms: string[];
   /** One coefficient vector per equation, parallel to `terms` (0 where a class lacks a term). */
   coefficients: Float64Array[];
@@ -54,6 +57,7 @@ export function readCoefficientTable(cells: CellValue[][]): SheetModel {
     throw problem("COEFFICIENT_TABLE_HEADER", { found: found.length ? listNames(found, 6) : "nothing" });
   }
   const referenceMatch = classCol >= 0 ? REFERENCE_IN_HEADER.exec(String(cells[0][classCol])) : null;
+  const symmetric = classCol >= 0 && /symmetric/i.test(String(cells[0][classCol]));
 
   const outcomes: string[] = [];
   const terms: string[] = [];
@@ -90,10 +94,11 @@ export function readCoefficientTable(cells: CellValue[][]): SheetModel {
   const coefficients = outcomes.map(() => new Float64Array(terms.length));
   for (const e of entries) coefficients[e.outcome][e.term] = e.value;
   if (outcomes.length === 1) {
-    return { kind: "binary", classes: [outcomes[0] || "positive"], terms, coefficients };
+    return { kind: "binary", form: "reference", classes: [outcomes[0] || "positive"], terms, coefficients };
   }
+  if (symmetric) return { kind: "multiclass", form: "symmetric", classes: outcomes, terms, coefficients };
   const reference = referenceMatch ? referenceMatch[1].replace(/^"|"$/g, "") : "reference";
-  return { kind: "multiclass", classes: [reference, ...outcomes], terms, coefficients };
+  return { kind: "multiclass", form: "reference", classes: [reference, ...outcomes], terms, coefficients };
 }
 
 /** Value of `term` for every row of `columns` (NaN where it cannot be formed). */
@@ -154,9 +159,11 @@ export function scoreSheetModel(model: SheetModel, rows: CellValue[][]): { heade
   const k = model.classes.length;
   const probabilities = model.classes.map(() => new Float64Array(n));
   const scratch = new Float64Array(k);
+  // Reference form: the reference class (first) has linear predictor 0; symmetric: one per class.
+  const shift = model.form === "symmetric" ? 0 : 1;
   for (let i = 0; i < n; i++) {
-    scratch[0] = 0; // the reference class's linear predictor
-    for (let c = 1; c < k; c++) scratch[c] = eta[c - 1][i];
+    if (shift === 1) scratch[0] = 0;
+    for (let c = shift; c < k; c++) scratch[c] = eta[c - shift][i];
     if (!scratch.every(Number.isFinite)) {
       for (let c = 0; c < k; c++) probabilities[c][i] = NaN;
       continue;
