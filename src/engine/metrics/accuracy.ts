@@ -10,7 +10,8 @@ import type { MeanScore } from "./brierScore";
  * exactly at the threshold counts as predicted positive.
  *
  * Reference: Fawcett (2006), Pattern Recognition Letters 27:861-874, Fig. 1
- * (https://doi.org/10.1016/j.patrec.2005.10.010).
+ * (https://doi.org/10.1016/j.patrec.2005.10.010); free: scikit-learn user guide, "Accuracy score"
+ * (https://scikit-learn.org/stable/modules/model_evaluation.html#accuracy-score).
  *
  * @param labels - 1 for the positive class, 0 for the negative class
  * @param probabilities - probability of the positive class per row, in [0, 1]

@@ -59,7 +59,8 @@ const CUT_RELATIVE_SLACK = 1e-12;
  *
  * Reference: Hosmer, Lemeshow & Sturdivant, Applied Logistic Regression, 3rd ed. (2013), section
  * 5.2.2; Hyndman & Fan (1996), "Sample quantiles in statistical packages", The American Statistician
- * 50:361-365, definition 1 (https://doi.org/10.2307/2684934).
+ * 50:361-365, definition 1 (https://doi.org/10.2307/2684934); free: R documentation of
+ * stats::quantile, type 1 (https://stat.ethz.ch/R-manual/R-devel/library/stats/html/quantile.html).
  *
  * @param labels - 1 for the positive class, 0 for the negative class
  * @param probabilities - probability of the positive class per row, in [0, 1]

@@ -44,7 +44,9 @@ export interface ConfusionCounts {
  * A rate whose denominator is zero is NaN (shown empty) with a RATE_UNDEFINED note, never 0.
  *
  * Reference: Fawcett (2006), "An introduction to ROC analysis", Pattern Recognition Letters
- * 27:861-874, section 2 and Fig. 1 (https://doi.org/10.1016/j.patrec.2005.10.010).
+ * 27:861-874, section 2 and Fig. 1 (https://doi.org/10.1016/j.patrec.2005.10.010); free: scikit-learn user
+ * guide, "Confusion matrix" and "Precision, recall and F-measures"
+ * (https://scikit-learn.org/stable/modules/model_evaluation.html).
  *
  * @param labels - 1 for the positive class, 0 for the negative class
  * @param probabilities - probability of the positive class per row, in [0, 1]

@@ -27,7 +27,8 @@ export interface ConfusionMatrix {
  * libraries print it).
  *
  * Reference: Fawcett (2006), "An introduction to ROC analysis", Pattern Recognition Letters
- * 27:861-874, section 9 (https://doi.org/10.1016/j.patrec.2005.10.010).
+ * 27:861-874, section 9 (https://doi.org/10.1016/j.patrec.2005.10.010); free: scikit-learn user guide,
+ * "Confusion matrix" (https://scikit-learn.org/stable/modules/model_evaluation.html#confusion-matrix).
  *
  * @param classes - observed class of each row, 0..K-1
  * @param probabilities - K columns, column k = probability of class k per row

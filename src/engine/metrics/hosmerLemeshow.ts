@@ -45,7 +45,8 @@ const SMALL_EXPECTED = 5;
  *
  * References: Hosmer & Lemeshow (1980), "Goodness of fit tests for the multiple logistic regression
  * model", Communications in Statistics A9:1043-1069; Hosmer, Lemeshow & Sturdivant, Applied Logistic
- * Regression, 3rd ed. (2013), section 5.2.2 (grouping by deciles of risk; df for external samples).
+ * Regression, 3rd ed. (2013), section 5.2.2 (grouping by deciles of risk; df for external samples);
+ * free summary: https://en.wikipedia.org/wiki/Hosmer%E2%80%93Lemeshow_test.
  *
  * @param labels - 1 for the positive class, 0 for the negative class
  * @param probabilities - probability of the positive class per row, in [0, 1]

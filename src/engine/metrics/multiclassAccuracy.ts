@@ -10,7 +10,8 @@ import { predictedClass } from "./predictedClass";
  * Formula: A = sum_i w_i [argmax_k p_ik = y_i] / sum_i w_i.
  *
  * Reference: Fawcett (2006), Pattern Recognition Letters 27:861-874, section 9
- * (https://doi.org/10.1016/j.patrec.2005.10.010).
+ * (https://doi.org/10.1016/j.patrec.2005.10.010); free: scikit-learn user guide, "Accuracy score"
+ * (https://scikit-learn.org/stable/modules/model_evaluation.html#accuracy-score).
  *
  * @param classes - observed class of each row, 0..K-1
  * @param probabilities - K columns, column k = probability of class k per row

@@ -51,7 +51,8 @@ export interface RocAucResult {
  * Hanley & McNeil (1982), Radiology 143:29-36 (AUC as the Mann-Whitney probability,
  * https://doi.org/10.1148/radiology.143.1.7063747); Sun & Xu (2014), IEEE Signal Processing Letters
  * 21:1389-1393 (placements via ranks, https://doi.org/10.1109/LSP.2014.2337313); Robin et al. (2011),
- * pROC, BMC Bioinformatics 12:77 (https://doi.org/10.1186/1471-2105-12-77).
+ * pROC, BMC Bioinformatics 12:77, open access, which describes the DeLong computation used here
+ * (https://doi.org/10.1186/1471-2105-12-77).
  *
  * @param labels - 1 for the positive class, 0 for the negative class
  * @param scores - any ranking score (probability, linear predictor, marker value); NaN not allowed

@@ -29,7 +29,8 @@ export interface RocCurve {
  * Formula: TPR(t) = sum_{y=1, s>=t} w / W1, FPR(t) = sum_{y=0, s>=t} w / W0.
  *
  * Reference: Fawcett (2006), "An introduction to ROC analysis", Pattern Recognition Letters
- * 27:861-874, Algorithm 1 (https://doi.org/10.1016/j.patrec.2005.10.010).
+ * 27:861-874, Algorithm 1 (https://doi.org/10.1016/j.patrec.2005.10.010); free: Robin et al. (2011),
+ * pROC, BMC Bioinformatics 12:77, open access (https://doi.org/10.1186/1471-2105-12-77).
  *
  * @param labels - 1 for the positive class, 0 for the negative class
  * @param scores - any ranking score; NaN not allowed
