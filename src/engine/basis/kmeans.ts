@@ -21,15 +21,6 @@ export interface KMeansResult {
   converged: boolean;
 }
 
-function dist2(a: ArrayLike<number>, b: ArrayLike<number>): number {
-  let s = 0;
-  for (let j = 0; j < a.length; j++) {
-    const d = a[j] - b[j];
-    s += d * d;
-  }
-  return s;
-}
-
 /**
  * Cluster `points` (rows, no NaN) into at most k groups.
  * @example kMeans([[0], [0.1], [10], [10.2]], 2, 1).centres // [[0.05], [10.1]] in some order
@@ -37,14 +28,29 @@ function dist2(a: ArrayLike<number>, b: ArrayLike<number>): number {
 export function kMeans(points: readonly number[][], k: number, seed: number, maxIterations = 100): KMeansResult {
   const n = points.length;
   const u = seededUniform(seed);
-  const centres: number[][] = [];
-  if (n === 0) return { centres, assignment: new Int32Array(0), iterations: 0, converged: true };
+  if (n === 0) return { centres: [], assignment: new Int32Array(0), iterations: 0, converged: true };
+  const dim = points[0].length;
+  // Flat storage: point i occupies x[i*dim .. i*dim+dim-1]; the hot loops below stay allocation-free.
+  const x = new Float64Array(n * dim);
+  points.forEach((p, i) => x.set(p, i * dim));
+  const c = new Float64Array(k * dim);
+  const d2p = (i: number, j: number) => {
+    let s = 0;
+    for (let t = 0; t < dim; t++) {
+      const d = x[i * dim + t] - c[j * dim + t];
+      s += d * d;
+    }
+    return s;
+  };
   // k-means++: first centre uniform; each next one with probability proportional to D(x)^2.
-  centres.push([...points[Math.min(n - 1, Math.floor(u() * n))]]);
-  const d2 = points.map((p) => dist2(p, centres[0]));
-  while (centres.length < k) {
+  let m = 1;
+  const first = Math.min(n - 1, Math.floor(u() * n));
+  c.set(x.subarray(first * dim, first * dim + dim), 0);
+  const d2 = new Float64Array(n);
+  for (let i = 0; i < n; i++) d2[i] = d2p(i, 0);
+  while (m < k) {
     let total = 0;
-    for (const v of d2) total += v;
+    for (let i = 0; i < n; i++) total += d2[i];
     if (!(total > 0)) break;
     let r = u() * total;
     let pick = n - 1;
@@ -59,11 +65,13 @@ export function kMeans(points: readonly number[][], k: number, seed: number, max
       // Rounding left r >= 0 at the end: take the last point not already at a centre.
       for (let i = n - 1; i >= 0; i--) if (d2[i] > 0) { pick = i; break; }
     }
-    const c = [...points[pick]];
-    centres.push(c);
-    for (let i = 0; i < n; i++) d2[i] = Math.min(d2[i], dist2(points[i], c));
+    c.set(x.subarray(pick * dim, pick * dim + dim), m * dim);
+    for (let i = 0; i < n; i++) d2[i] = Math.min(d2[i], d2p(i, m));
+    m++;
   }
   const assignment = new Int32Array(n).fill(-1);
+  const sums = new Float64Array(m * dim);
+  const counts = new Int32Array(m);
   let iterations = 0;
   let converged = false;
   while (iterations < maxIterations) {
@@ -72,13 +80,13 @@ export function kMeans(points: readonly number[][], k: number, seed: number, max
     for (let i = 0; i < n; i++) {
       let best = 0;
       let bestD = Infinity;
-      centres.forEach((c, j) => {
-        const d = dist2(points[i], c);
+      for (let j = 0; j < m; j++) {
+        const d = d2p(i, j);
         if (d < bestD) {
           bestD = d;
           best = j;
         }
-      });
+      }
       if (assignment[i] !== best) {
         assignment[i] = best;
         changed = true;
@@ -88,16 +96,15 @@ export function kMeans(points: readonly number[][], k: number, seed: number, max
       converged = true;
       break;
     }
-    const dim = points[0].length;
-    const sums = centres.map(() => new Array<number>(dim).fill(0));
-    const counts = new Array<number>(centres.length).fill(0);
+    sums.fill(0);
+    counts.fill(0);
     for (let i = 0; i < n; i++) {
-      counts[assignment[i]]++;
-      for (let j = 0; j < dim; j++) sums[assignment[i]][j] += points[i][j];
+      const a = assignment[i];
+      counts[a]++;
+      for (let t = 0; t < dim; t++) sums[a * dim + t] += x[i * dim + t];
     }
-    centres.forEach((c, j) => {
-      if (counts[j] > 0) for (let t = 0; t < dim; t++) c[t] = sums[j][t] / counts[j];
-    });
+    for (let j = 0; j < m; j++) if (counts[j] > 0) for (let t = 0; t < dim; t++) c[j * dim + t] = sums[j * dim + t] / counts[j];
   }
+  const centres = Array.from({ length: m }, (_, j) => Array.from(c.subarray(j * dim, j * dim + dim)));
   return { centres, assignment, iterations, converged };
 }

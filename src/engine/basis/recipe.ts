@@ -38,8 +38,8 @@
  */
 import { listNames, problem } from "../messages";
 import { fitBins, MAX_BINS } from "./bins";
-import { type BasisBlock, type BasisColumn, type FitNote, type RowNote } from "./common";
-import { applyBasisState, type BasisState } from "./index";
+import { type BasisBlock, type BasisColumn, type FitNote, type RowNote, rowNote } from "./common";
+import { applyBasisState, sourcesOf, type BasisState } from "./index";
 import { fitLevels, type LevelsOptions } from "./levels";
 import { fitMinmax } from "./minmax";
 import { fitNs, MAX_NS_DF } from "./ns";
@@ -572,6 +572,24 @@ export function applyRecipe(state: RecipeState, columns: readonly BasisColumn[],
   const seen = new Set<string>();
   for (const s of state.states) {
     const block = applyBasisState(s, (name) => findColumn(columns, name, argument));
+    // Overflow policy: a result too large for a double (x^10 of a large x, a product of large
+    // values) is a per-row problem like a domain error, never an Infinity passed on.
+    const sources = sourcesOf(s);
+    block.columns.forEach((col, k) => {
+      for (let i = 0; i < col.length; i++) {
+        if (col[i] === Infinity || col[i] === -Infinity) {
+          col[i] = NaN;
+          const first = findColumn(columns, sources[0], argument);
+          block.notes.push(
+            rowNote(i, sources.join(", "), "OUT_OF_DOMAIN", {
+              transform: block.names[k],
+              value: String(first.values[i]),
+              hint: "The result is too large to hold as a number: standardize the column first (z) or use a lower degree.",
+            }),
+          );
+        }
+      }
+    });
     out.names.push(...block.names);
     out.columns.push(...block.columns);
     for (const note of block.notes) {

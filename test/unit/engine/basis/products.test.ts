@@ -36,7 +36,29 @@ describe("products of columns", () => {
     expect(out.notes).toEqual([expect.objectContaining({ row: 2, column: "b", code: "MISSING_FOR_SCORING" })]);
   });
 
-  test("a text column is refused when fitting", () => {
-    expect(() => fitProducts([a, { name: "t", values: ["x", "y", "z"] }], { mode: "product" })).toThrow(/product needs numbers/);
+  test("a text column in a product is coded as indicators first: one product per non-reference level", () => {
+    const dose = { name: "dose", values: [1, 2, 3, 4] };
+    const sex = { name: "sex", values: ["F", "M", "F", "F"] };
+    const s = fitProducts([dose, sex], { mode: "product" });
+    expect(s.names).toEqual(["dose*sex=M"]);
+    expect(Array.from(applyProducts(s, [dose, sex]).columns[0])).toEqual([0, 2, 0, 0]);
+  });
+
+  test("pairs with a text column expand each pair that uses it", () => {
+    const g = { name: "g", values: ["x", "y", "z", "x"] };
+    expect(fitProducts([a, c, { ...g, values: g.values.slice(0, 3) }], { mode: "pairs" }).names).toEqual(["a*c", "a*g=y", "a*g=z", "c*g=y", "c*g=z"]);
+  });
+
+  test("an unseen level in a product gives NaN for that row and an UNSEEN_LEVEL note", () => {
+    const sex = { name: "sex", values: ["F", "M", "F"] };
+    const s = fitProducts([a, sex], { mode: "product" });
+    const out = applyProducts(s, [{ name: "a", values: [5, 6] }, { name: "sex", values: ["M", "X"] }]);
+    expect(out.columns[0][0]).toBe(5);
+    expect(Number.isNaN(out.columns[0][1])).toBe(true);
+    expect(out.notes[0]).toMatchObject({ row: 1, code: "UNSEEN_LEVEL" });
+  });
+
+  test("a text column in a polynomial of several columns is refused", () => {
+    expect(() => fitProducts([a, { name: "t", values: ["x", "y", "z"] }], { mode: "polynomial", degree: 2 })).toThrow(/poly needs numbers, but the column "t" holds text/);
   });
 });

@@ -213,3 +213,20 @@ describe("fitting and applying a recipe", () => {
     expect(s.fitNotes.map((n) => n.code)).toEqual(["BASIS_REDUCED"]);
   });
 });
+
+describe("recipe: overflow and categorical products", () => {
+  test("a result too large for a number (1e200^2) is a per-row problem with a note, not an Infinity", () => {
+    const { block } = buildBasis("x: poly(2)", [{ name: "x", values: [2, 1e200, 3] }]);
+    expect(Number.isNaN(block.columns[1][1])).toBe(true);
+    expect(block.columns[1][0]).toBe(4);
+    expect(block.notes[0]).toMatchObject({ row: 1, code: "OUT_OF_DOMAIN" });
+    expect(block.notes[0].message).toContain("x^2 is not defined for 1e+200");
+  });
+
+  test("'age*region' multiplies age with each region indicator", () => {
+    const { block } = buildBasis("age*region", data);
+    expect(block.names).toEqual(["age*region=South", "age*region=East", "age*region=West"]);
+    expect(block.columns[0][1]).toBe(35); // row 2 is South, age 35
+    expect(block.columns[0][0]).toBe(0);
+  });
+});
