@@ -94,6 +94,9 @@ module.exports = (env, argv) => {
   const entry = { functions: src("functions", "functions.ts") };
   // The task pane is written in src/taskpane/ (its own owner); it joins the shared-runtime page.
   if (exists(src("taskpane", "taskpane.ts"))) entry.taskpane = src("taskpane", "taskpane.ts");
+  // The pane's background fit (a Web Worker script) and the preview workbench (src/preview/).
+  if (exists(src("taskpane", "fitWorker.ts"))) entry.fitworker = src("taskpane", "fitWorker.ts");
+  if (exists(src("preview", "preview.ts"))) entry.preview = src("preview", "preview.ts");
 
   // ---- pages --------------------------------------------------------------------------------------
   const pages = [
@@ -104,12 +107,18 @@ module.exports = (env, argv) => {
       chunks: ["functions", "taskpane"].filter((name) => name in entry),
       chunksSortMode: "manual",
     }),
-    // Further task-pane pages (e.g. the preview workbench) are added here.
+    // The preview workbench: the pane beside an in-memory workbook (no Excel needed).
+    ...(entry.preview
+      ? [new HtmlWebpackPlugin({ filename: "preview.html", template: src("preview", "preview.html"), chunks: ["preview"] })]
+      : []),
   ];
 
   // ---- copied files -------------------------------------------------------------------------------
   const copies = [
     { from: "assets/*.png", to: "assets/[name][ext]" },
+    // Style sheets of the pane and the workbench (plain files: no CSS loader needed).
+    { from: "src/taskpane/taskpane.css", to: "taskpane.css", noErrorOnMissing: true },
+    { from: "src/preview/preview.css", to: "preview.css", noErrorOnMissing: true },
     {
       from: "manifest/manifest.xml",
       to: "manifest.xml",

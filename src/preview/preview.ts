@@ -1,0 +1,42 @@
+/**
+ * The preview workbench: an in-memory workbook holding the invented demo data, shown in a plain
+ * sheet view, with =ODDS.* formulas computed by the cell-function registry, and the real task pane
+ * beside it working through the in-memory port.
+ *
+ * URL options: ?runner=worker|inline (force where the pane fits; default picks by size).
+ */
+import { mountPane } from "../taskpane/pane";
+import { MemoryPort, MemoryWorkbook } from "../taskpane/memoryPort";
+import demo from "./demoWorkbook.json";
+import { evaluateFormula } from "./formulas";
+import { SheetView } from "./sheetView";
+import type { CellValue } from "../engine/types";
+
+/** Load the demo workbook's sheets. */
+export function loadDemo(workbook: MemoryWorkbook): void {
+  for (const sheet of demo.sheets) {
+    const name = workbook.addSheet(sheet.name);
+    workbook.setValues(name, sheet.top, sheet.left, sheet.values as CellValue[][]);
+  }
+}
+
+function start(): void {
+  const left = document.getElementById("workbook");
+  const right = document.getElementById("pane");
+  if (!left || !right) return;
+  const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
+  loadDemo(workbook);
+  const first = workbook.sheetNames()[0];
+  // Start with the data table's first cell picked, so "Use selection" takes the whole table.
+  workbook.select(first, { top: 1, left: 1, bottom: 1, right: 1 });
+  new SheetView(left, workbook);
+  const runner = new URLSearchParams(location.search).get("runner");
+  const { controller } = mountPane(right, new MemoryPort(workbook), {
+    workerUrl: "fitworker.js",
+    runner: runner === "worker" || runner === "inline" ? runner : "auto",
+  });
+  // Handles for the browser tests (read-only use).
+  (window as unknown as Record<string, unknown>).oddsmithWorkbench = { workbook, controller };
+}
+
+start();

@@ -1,0 +1,165 @@
+/**
+ * Running a fit without freezing the pane.
+ *
+ * A fit is one synchronous computation in the engine, so it cannot be cut into slices from outside.
+ * Two runners:
+ * - WorkerFitRunner: the fit and the scoring run in a Web Worker (dist/fitworker.js). The pane stays
+ *   responsive whatever the size, and Cancel ends the worker at once.
+ * - InlineFitRunner: the fit runs on the pane's own thread after yielding to the page, through the
+ *   fit cache shared with the cell functions (so the formulas the pane writes reuse the fit). Used for
+ *   small tables, where a fit takes milliseconds, and where Web Workers are unavailable.
+ * `chooseRunner` picks the worker above INLINE_CELL_LIMIT input cells when workers exist.
+ *
+ * Both report progress in phases and honour an AbortSignal: a cancelled run rejects with FitCancelled
+ * and its result is never used.
+ */
+import { scoreRows, type RowScores, type TrainedModel } from "../engine/model";
+import type { CellValue } from "../engine/types";
+import { fittedModel, type ModelCallOptions } from "../functions/modelCell";
+
+/** Above this many input cells the pane fits in a worker (when the page can start one). */
+export const INLINE_CELL_LIMIT = 50_000;
+
+export interface FitJob {
+  labels: CellValue[][];
+  predictors: CellValue[][];
+  options: ModelCallOptions;
+  threshold: number;
+}
+
+export interface FitOutcome {
+  model: TrainedModel;
+  scores: RowScores;
+  /** Wall time of the fit and scoring, in milliseconds. */
+  elapsedMs: number;
+  /** Which runner did the work. */
+  runner: "inline" | "worker";
+}
+
+export type FitPhase = "fitting" | "scoring" | "done";
+
+export interface FitRunner {
+  readonly kind: "inline" | "worker";
+  run(job: FitJob, onPhase: (phase: FitPhase) => void, signal: AbortSignal): Promise<FitOutcome>;
+}
+
+/** The run was cancelled by the person (or replaced by a newer run). */
+export class FitCancelled extends Error {
+  constructor() {
+    super("The fit was cancelled.");
+    this.name = "FitCancelled";
+  }
+}
+
+/** Let the page paint and handle input before continuing. */
+export function yieldToPage(): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, 0));
+}
+
+function checkAbort(signal: AbortSignal): void {
+  if (signal.aborted) throw new FitCancelled();
+}
+
+/** Fits on the page's thread between yields, through the shared fit cache. */
+export class InlineFitRunner implements FitRunner {
+  readonly kind = "inline" as const;
+
+  async run(job: FitJob, onPhase: (phase: FitPhase) => void, signal: AbortSignal): Promise<FitOutcome> {
+    const start = performance.now();
+    onPhase("fitting");
+    await yieldToPage();
+    checkAbort(signal);
+    const model = fittedModel(job.labels, job.predictors, job.options, 0);
+    onPhase("scoring");
+    await yieldToPage();
+    checkAbort(signal);
+    const scores = scoreRows(model, null, { threshold: job.threshold });
+    onPhase("done");
+    return { model, scores, elapsedMs: performance.now() - start, runner: "inline" };
+  }
+}
+
+/** Messages between the pane and the worker. */
+export type WorkerRequest = { id: number; job: FitJob };
+export type WorkerReply =
+  | { id: number; phase: FitPhase }
+  | { id: number; outcome: { model: TrainedModel; scores: RowScores; elapsedMs: number } }
+  | { id: number; failure: { name: string; message: string; code?: string } };
+
+/** The failure a worker reports: a catalogue problem keeps its message; anything else is generic. */
+export class FitFailed extends Error {
+  constructor(
+    message: string,
+    readonly code?: string,
+  ) {
+    super(message);
+    this.name = "FitFailed";
+  }
+}
+
+/** Fits in a Web Worker started from `url`; one worker per run, ended on completion or cancel. */
+export class WorkerFitRunner implements FitRunner {
+  readonly kind = "worker" as const;
+  private nextId = 1;
+
+  constructor(private readonly url: string) {}
+
+  run(job: FitJob, onPhase: (phase: FitPhase) => void, signal: AbortSignal): Promise<FitOutcome> {
+    return new Promise((resolve, reject) => {
+      if (signal.aborted) {
+        reject(new FitCancelled());
+        return;
+      }
+      const id = this.nextId++;
+      const worker = new Worker(this.url);
+      const end = () => {
+        worker.terminate();
+        signal.removeEventListener("abort", onAbort);
+      };
+      const onAbort = () => {
+        end();
+        reject(new FitCancelled());
+      };
+      signal.addEventListener("abort", onAbort);
+      worker.onmessage = (event: MessageEvent<WorkerReply>) => {
+        const reply = event.data;
+        if (reply.id !== id) return;
+        if ("phase" in reply) onPhase(reply.phase);
+        else if ("outcome" in reply) {
+          end();
+          resolve({ ...reply.outcome, runner: "worker" });
+        } else {
+          end();
+          reject(new FitFailed(reply.failure.message, reply.failure.code));
+        }
+      };
+      worker.onerror = (event) => {
+        event.preventDefault();
+        end();
+        reject(new FitFailed("The background fit stopped unexpectedly."));
+      };
+      onPhase("fitting");
+      worker.postMessage({ id, job } satisfies WorkerRequest);
+    });
+  }
+}
+
+/** Input cells of a job. */
+export function jobCells(job: FitJob): number {
+  let n = 0;
+  for (const r of job.labels) n += r.length;
+  for (const r of job.predictors) n += r.length;
+  return n;
+}
+
+/**
+ * The runner for a job: the worker for large inputs when the page can start workers (or always /
+ * never when `prefer` says so), else inline.
+ */
+export function chooseRunner(job: FitJob, workerUrl: string | null, prefer: "auto" | "worker" | "inline" = "auto"): FitRunner {
+  const workersAvailable = typeof Worker !== "undefined" && workerUrl !== null;
+  if (workersAvailable && (prefer === "worker" || (prefer === "auto" && jobCells(job) > INLINE_CELL_LIMIT))) {
+    return new WorkerFitRunner(workerUrl!);
+  }
+  return new InlineFitRunner();
+}

@@ -1,0 +1,441 @@
+/**
+ * The task pane's logic, free of the DOM: which table it works on, the model set-up, running the
+ * fit (cancellable, with progress), writing the live formulas onto the results sheet, the borderline
+ * review, highlighting and selecting rows, and refreshing when the data changes. paneView.ts renders
+ * its state; tests drive it directly against the in-memory workbook.
+ *
+ * Every workbook access goes through the WorkbookPort. Every failure becomes a status with a
+ * catalogue message (what is wrong, where, what to do); nothing is only logged.
+ */
+import { OddsmithError, problem } from "../engine/messages";
+import { readLabels } from "../engine/labels";
+import { scoreRows, type RowScores } from "../engine/model";
+import type { CellValue, Diagnostic } from "../engine/types";
+import { fitFailure } from "../functions/modelCell";
+import { rectAddress } from "./a1";
+import { type DataTable, describeBlock, keyColumn } from "./dataTable";
+import { chooseRunner, FitCancelled, type FitOutcome, type FitPhase } from "./fitRunner";
+import {
+  DEFAULT_CHOICE,
+  layoutWrites,
+  modelInputs,
+  RESULTS_SHEET,
+  resultsLayout,
+  type ResultsLayout,
+  type SetupChoice,
+} from "./modelSetup";
+import { axisCandidates, buildPlot, type DerivedColumns, type PlotModel } from "./plotGeometry";
+import type { WorkbookPort } from "./port";
+import { borderlineSheetRows, buildReview, DEFAULT_REVIEW, type ReviewResult, type ReviewSettings } from "./review";
+
+export type StatusPhase = "idle" | "reading" | "writing" | "fitting" | "scoring" | "done" | "cancelled" | "failed";
+
+export interface PaneStatus {
+  phase: StatusPhase;
+  /** Plain-language line for the status area. */
+  message: string;
+  /** 0..1 when known (reading in chunks), else null (an indeterminate bar). */
+  progress: number | null;
+  /** True while something runs that Cancel can stop. */
+  busy: boolean;
+}
+
+export type PaneChange = "data" | "choice" | "status" | "fit" | "review" | "highlight";
+
+export interface PaneOptions {
+  port: WorkbookPort;
+  /** URL of the fit worker script, or null where workers cannot run. */
+  workerUrl?: string | null;
+  /** Force the worker or the inline runner; "auto" picks by size. */
+  runner?: "auto" | "worker" | "inline";
+  /** Quiet time after a data change before refitting, in milliseconds. */
+  refreshDelayMs?: number;
+}
+
+/** Default quiet time after an edit: long enough to group a burst of typing, short enough to feel live. */
+export const DEFAULT_REFRESH_DELAY_MS = 400;
+
+/** Guess the label column: the last column with exactly two classes, else the last text column with few. */
+export function guessLabel(data: DataTable): number {
+  const cols = data.columns.filter((c) => !c.allDistinct && c.levels.length >= 2);
+  const two = cols.filter((c) => c.levels.length === 2);
+  if (two.length) return two[two.length - 1].index;
+  const few = cols.filter((c) => c.kind === "text" && c.levels.length <= 10);
+  if (few.length) return few[few.length - 1].index;
+  return data.columns.length - 1;
+}
+
+/** Default predictors: every numeric column except the label. */
+export function guessPredictors(data: DataTable, label: number): number[] {
+  return data.columns.filter((c) => c.index !== label && (c.kind === "number" || c.kind === "boolean")).map((c) => c.index);
+}
+
+export class PaneController {
+  data: DataTable | null = null;
+  choice: SetupChoice | null = null;
+  reviewSettings: ReviewSettings = { ...DEFAULT_REVIEW };
+  outcome: FitOutcome | null = null;
+  review: ReviewResult | null = null;
+  layout: ResultsLayout | null = null;
+  /** Sheet rows currently highlighted by the pane. */
+  highlighted: number[] = [];
+  /** Generated columns known in this session (from the basis builder), for the plot. */
+  derived: DerivedColumns[] = [];
+  status: PaneStatus = { phase: "idle", message: "Select the data table in the sheet, then press Use selection.", progress: null, busy: false };
+  /** Diagnostics of the last fit (warnings and notes), shown under the status. */
+  diagnostics: Diagnostic[] = [];
+
+  private readonly port: WorkbookPort;
+  private readonly options: Required<Omit<PaneOptions, "port">>;
+  private readonly listeners = new Set<(change: PaneChange) => void>();
+  private abort: AbortController | null = null;
+  private stopListening: (() => void) | null = null;
+  private refreshTimer: ReturnType<typeof setTimeout> | null = null;
+  /** The formulas on the results sheet match this set-up (no rewrite needed on refresh). */
+  private writtenFor: string | null = null;
+
+  constructor(options: PaneOptions) {
+    this.port = options.port;
+    this.options = {
+      workerUrl: options.workerUrl ?? null,
+      runner: options.runner ?? "auto",
+      refreshDelayMs: options.refreshDelayMs ?? DEFAULT_REFRESH_DELAY_MS,
+    };
+  }
+
+  subscribe(listener: (change: PaneChange) => void): () => void {
+    this.listeners.add(listener);
+    return () => this.listeners.delete(listener);
+  }
+
+  private emit(change: PaneChange): void {
+    for (const l of [...this.listeners]) l(change);
+  }
+
+  private setStatus(status: Partial<PaneStatus> & { phase: StatusPhase; message: string }): void {
+    this.status = { progress: null, busy: false, ...status };
+    this.emit("status");
+  }
+
+  /** A failure as a status: catalogue problems keep their text; anything else is INTERNAL. */
+  private fail(e: unknown, doing: string): void {
+    const message = e instanceof OddsmithError ? e.message : problem("INTERNAL", { doing }).message;
+    this.setStatus({ phase: "failed", message });
+  }
+
+  /** Progress of a chunked read or write by the port (Excel reads large tables in pieces). */
+  transferProgress(p: { task: "read" | "write"; done: number; total: number }): void {
+    if (p.total <= 0) return;
+    const pct = Math.round((100 * p.done) / p.total);
+    this.setStatus({
+      phase: p.task === "read" ? "reading" : "writing",
+      message: `${p.task === "read" ? "Reading" : "Writing"} ${p.done.toLocaleString("en-US")} of ${p.total.toLocaleString("en-US")} cells (${pct}%)...`,
+      progress: p.done / p.total,
+      busy: true,
+    });
+  }
+
+  // ---- the table ---------------------------------------------------------------------------
+
+  /** Read the selected table (or the table around the active cell) and propose a set-up. */
+  async useSelection(): Promise<void> {
+    try {
+      this.setStatus({ phase: "reading", message: "Reading the selected table...", busy: true });
+      const block = await this.port.selectedBlock();
+      await this.adoptBlock(describeBlock(block), { listen: true, keepChoice: false });
+    } catch (e) {
+      this.fail(e, "reading the selected table");
+    }
+  }
+
+  /**
+   * Read a table by sheet and address. `keepChoice` keeps the set-up (matched by column name), as
+   * when the table grows by generated basis columns.
+   */
+  async useTable(sheet: string, address: string, keepChoice = false): Promise<void> {
+    try {
+      this.setStatus({ phase: "reading", message: `Reading ${sheet}!${address}...`, busy: true });
+      const block = await this.port.readBlock(sheet, address);
+      await this.adoptBlock(describeBlock(block), { listen: true, keepChoice });
+    } catch (e) {
+      this.fail(e, "reading the table");
+    }
+  }
+
+  private async adoptBlock(data: DataTable, how: { listen: boolean; keepChoice: boolean }): Promise<void> {
+    const previous = this.data;
+    this.data = data;
+    if (!how.keepChoice || !this.choice || !previous) {
+      const label = guessLabel(data);
+      this.choice = { ...DEFAULT_CHOICE, label, predictors: guessPredictors(data, label) };
+      this.outcome = null;
+      this.review = null;
+      this.writtenFor = null;
+    } else {
+      // Same table re-read after an edit: keep the choice by column name.
+      const map = (i: number) => data.columns.findIndex((c) => c.name === previous.columns[i]?.name);
+      const label = map(this.choice.label);
+      const predictors = this.choice.predictors.map(map).filter((i) => i >= 0);
+      this.choice = { ...this.choice, label: label >= 0 ? label : this.choice.label, predictors };
+    }
+    if (how.listen) {
+      this.stopListening?.();
+      this.stopListening = await this.port.onChanged(data.sheet, () => this.scheduleRefresh());
+      this.setStatus({
+        phase: "idle",
+        message: `Using ${data.sheet}!${data.block.address}: ${data.table.rows.toLocaleString("en-US")} rows, ${data.columns.length} columns. Check the set-up, then press Fit.`,
+      });
+    }
+    this.emit("data");
+    this.emit("choice");
+  }
+
+  /** Classes found in the chosen label column (for the class picker), or [] when unreadable. */
+  labelClasses(): string[] {
+    if (!this.data || !this.choice) return [];
+    try {
+      return readLabels(this.data.table.columns[this.choice.label]).classes;
+    } catch {
+      return [];
+    }
+  }
+
+  setChoice(patch: Partial<SetupChoice>): void {
+    if (!this.choice) return;
+    const next = { ...this.choice, ...patch };
+    if (patch.label !== undefined && patch.label !== this.choice.label) {
+      next.predictors = next.predictors.filter((p) => p !== patch.label);
+      next.focusClass = null;
+    }
+    this.choice = next;
+    if (patch.threshold !== undefined) this.reviewSettings = { ...this.reviewSettings, threshold: patch.threshold };
+    this.emit("choice");
+  }
+
+  // ---- fitting -----------------------------------------------------------------------------
+
+  /** Stop a running fit. */
+  cancel(): void {
+    if (this.abort) {
+      this.abort.abort();
+      this.abort = null;
+    }
+  }
+
+  /**
+   * Fit the chosen model, write (or keep) the live formulas on the results sheet, then build the
+   * borderline review. `write` false refits without touching the workbook (data refresh).
+   */
+  async fit(write = true): Promise<void> {
+    if (!this.data || !this.choice) {
+      this.setStatus({ phase: "failed", message: "No table yet: select the data in the sheet and press Use selection." });
+      return;
+    }
+    this.cancel();
+    const abort = new AbortController();
+    this.abort = abort;
+    const data = this.data;
+    const choice = this.choice;
+    try {
+      const classCount = Math.max(2, this.labelClasses().length);
+      const inputs = modelInputs(data, choice, classCount);
+      const job = { labels: inputs.labels, predictors: inputs.predictors, options: inputs.options, threshold: choice.threshold };
+      const runner = chooseRunner(job, this.options.workerUrl, this.options.runner);
+      const onPhase = (phase: FitPhase) => {
+        if (abort.signal.aborted || phase === "done") return;
+        this.setStatus({
+          phase,
+          message: phase === "fitting" ? `Fitting the model on ${data.table.rows.toLocaleString("en-US")} rows...` : "Scoring the rows...",
+          busy: true,
+        });
+      };
+      const outcome = await runner.run(job, onPhase, abort.signal);
+      if (abort.signal.aborted) throw new FitCancelled();
+      const failure = fitFailure(outcome.model);
+      this.outcome = outcome;
+      this.diagnostics = outcome.model.fit.diagnostics;
+      if (failure) {
+        this.review = null;
+        this.emit("fit");
+        this.emit("review");
+        this.setStatus({ phase: "failed", message: failure.message });
+        return;
+      }
+      const key = JSON.stringify([data.sheet, data.block.address, choice, classCount]);
+      if (write && this.writtenFor !== key) {
+        this.setStatus({ phase: "writing", message: "Writing the formulas onto the results sheet...", busy: true });
+        await this.writeResults(data, choice, outcome.model.fit.classes.length);
+        this.writtenFor = key;
+      }
+      this.reviewSettings = { ...this.reviewSettings, threshold: choice.threshold };
+      this.refreshReview();
+      this.emit("fit");
+      const seconds = (outcome.elapsedMs / 1000).toFixed(outcome.elapsedMs < 1000 ? 2 : 1);
+      const where = this.layout ? ` Live formulas are on the sheet "${this.layout.sheet}".` : "";
+      this.setStatus({
+        phase: "done",
+        message: `Fitted on ${outcome.model.fit.rowsUsed.toLocaleString("en-US")} rows in ${seconds} s.${where}`,
+      });
+    } catch (e) {
+      if (e instanceof FitCancelled) {
+        this.setStatus({ phase: "cancelled", message: "Fit cancelled. Nothing was written; press Fit to start again." });
+        return;
+      }
+      this.fail(e, "fitting the model");
+    } finally {
+      if (this.abort === abort) this.abort = null;
+    }
+  }
+
+  private async writeResults(data: DataTable, choice: SetupChoice, classCount: number): Promise<void> {
+    let sheet = this.layout?.sheet;
+    const sheets = await this.port.sheetNames();
+    if (!sheet || !sheets.includes(sheet)) sheet = await this.port.addSheet(RESULTS_SHEET);
+    if (this.layout && this.layout.sheet === sheet) {
+      // Remove the previous set-up's formulas (their spills go with them).
+      for (const a of this.layout.anchors) await this.port.clear(sheet, a.at);
+    }
+    const layout = resultsLayout(data, choice, classCount, sheet);
+    for (const w of layoutWrites(layout)) await this.port.write(w);
+    this.layout = layout;
+  }
+
+  // ---- review ------------------------------------------------------------------------------
+
+  /** Key columns shown in the list: the identifier column (if any) and the first two numeric predictors. */
+  keyColumns(): number[] {
+    if (!this.data || !this.choice) return [];
+    const keys: number[] = [];
+    const id = keyColumn(this.data);
+    if (id !== null) keys.push(id);
+    for (const p of this.choice.predictors) {
+      if (keys.length >= 3) break;
+      const k = this.data.columns[p].kind;
+      if ((k === "number" || k === "boolean") && !keys.includes(p)) keys.push(p);
+    }
+    return keys;
+  }
+
+  private refreshReview(): void {
+    if (!this.data || !this.outcome || !this.choice) return;
+    this.review = buildReview(this.data, this.outcome.scores, this.reviewSettings, this.keyColumns(), this.choice.level);
+    this.emit("review");
+  }
+
+  /** Change threshold, band or the undecided test; the list refreshes at once (no refit needed). */
+  async setReview(patch: Partial<ReviewSettings>): Promise<void> {
+    const check = { ...this.reviewSettings, ...patch };
+    if (!(check.band >= 0 && check.band <= 1) || !(check.threshold > 0 && check.threshold < 1)) {
+      this.setStatus({
+        phase: "failed",
+        message: problem("BAD_OPTION_VALUE", {
+          name: !(check.band >= 0 && check.band <= 1) ? "band" : "threshold",
+          value: !(check.band >= 0 && check.band <= 1) ? check.band : check.threshold,
+          expected: "The band lies between 0 and 1; the threshold strictly between 0 and 1.",
+        }).message,
+      });
+      return;
+    }
+    this.reviewSettings = check;
+    if (patch.threshold !== undefined && this.choice) this.choice = { ...this.choice, threshold: patch.threshold };
+    if (this.outcome && this.choice) {
+      // Probabilities do not depend on the threshold; only the predicted classes do.
+      this.outcome = { ...this.outcome, scores: scoreRows(this.outcome.model, null, { threshold: check.threshold }) };
+    }
+    this.refreshReview();
+    if (this.highlighted.length) await this.highlightAll();
+  }
+
+  /** Select a listed row in the sheet. */
+  async selectRow(sheetRow: number): Promise<void> {
+    if (!this.data) return;
+    try {
+      await this.port.selectRow(this.data.sheet, this.data.block.address, sheetRow);
+    } catch (e) {
+      this.fail(e, "selecting the row");
+    }
+  }
+
+  /** Highlight every borderline row (not only the listed ones) in the data table. */
+  async highlightAll(): Promise<void> {
+    if (!this.data || !this.outcome) return;
+    try {
+      const rows = borderlineSheetRows(this.data, this.outcome.scores, this.reviewSettings);
+      const stale = this.highlighted.filter((r) => !rows.includes(r));
+      if (stale.length) await this.port.highlightRows(this.data.sheet, this.data.block.address, stale, false);
+      await this.port.highlightRows(this.data.sheet, this.data.block.address, rows, true);
+      this.highlighted = rows;
+      this.emit("highlight");
+    } catch (e) {
+      this.fail(e, "highlighting rows");
+    }
+  }
+
+  /** Remove the pane's highlight (only from the rows the pane highlighted). */
+  async removeHighlight(): Promise<void> {
+    if (!this.data || this.highlighted.length === 0) return;
+    try {
+      await this.port.highlightRows(this.data.sheet, this.data.block.address, this.highlighted, false);
+      this.highlighted = [];
+      this.emit("highlight");
+    } catch (e) {
+      this.fail(e, "removing the highlight");
+    }
+  }
+
+  // ---- plot --------------------------------------------------------------------------------
+
+  axisCandidates(): number[] {
+    if (!this.data || !this.choice) return [];
+    return axisCandidates(this.data, this.choice, this.derived);
+  }
+
+  /** The plot of two columns, or null without a usable fit. */
+  plot(x: number, y: number): PlotModel | null {
+    if (!this.data || !this.choice || !this.outcome || fitFailure(this.outcome.model)) return null;
+    const model = this.outcome.model;
+    const threshold = this.reviewSettings.threshold;
+    return buildPlot(
+      this.data,
+      this.choice,
+      this.outcome.scores,
+      this.reviewSettings,
+      x,
+      y,
+      this.derived,
+      (cells: CellValue[][]) => scoreRows(model, cells, { threshold, headers: "yes" }),
+    );
+  }
+
+  // ---- refresh on change -------------------------------------------------------------------
+
+  private scheduleRefresh(): void {
+    if (this.refreshTimer) clearTimeout(this.refreshTimer);
+    this.refreshTimer = setTimeout(() => {
+      this.refreshTimer = null;
+      void this.refresh();
+    }, this.options.refreshDelayMs);
+  }
+
+  /** Re-read the table after an edit and refit (keeping the formulas, which recalculate themselves). */
+  async refresh(): Promise<void> {
+    if (!this.data) return;
+    try {
+      const block = await this.port.readBlock(this.data.sheet, rectAddress(this.data.rect));
+      await this.adoptBlock(describeBlock(block), { listen: false, keepChoice: true });
+      if (this.outcome) {
+        await this.fit(false);
+        if (this.highlighted.length) await this.highlightAll();
+      }
+    } catch (e) {
+      this.fail(e, "refreshing after a change");
+    }
+  }
+
+  dispose(): void {
+    this.cancel();
+    this.stopListening?.();
+    if (this.refreshTimer) clearTimeout(this.refreshTimer);
+    this.listeners.clear();
+  }
+}

@@ -1,0 +1,608 @@
+/**
+ * The task pane's screen: builds the sections in a container and keeps them in step with a
+ * PaneController. Plain DOM, no framework. Every piece of workbook text (column names, class names,
+ * cell values, messages) is put in with textContent or as an input's value, never as markup.
+ *
+ * Sections (top to bottom): cautions; 1 Data and model; 2 Basis columns; 3 Borderline rows;
+ * 4 Boundary plot.
+ */
+import { fitRecipe, parseRecipe } from "../engine/basis/recipe";
+import { sourcesOf } from "../engine/basis";
+import type { CellValue } from "../engine/types";
+import { basisCell } from "../functions/basisCell";
+import { parseAddress, rectAddress } from "./a1";
+import {
+  type BasisSource,
+  executeWrite,
+  planWrite,
+  previewBasis,
+  readBasisSource,
+  undoWrite,
+  type UndoPlan,
+} from "./basisBuilder";
+import { CAUTIONS, CAUTIONS_TITLE } from "./cautions";
+import type { PaneController, PaneChange } from "./paneController";
+import { renderPlot } from "./plot";
+import type { DerivedColumns } from "./plotGeometry";
+import type { WorkbookPort } from "./port";
+
+type Attrs = Record<string, string>;
+
+function h<K extends keyof HTMLElementTagNameMap>(tag: K, attrs: Attrs = {}, ...children: (Node | string)[]): HTMLElementTagNameMap[K] {
+  const e = document.createElement(tag);
+  for (const [k, v] of Object.entries(attrs)) {
+    if (k === "class") e.className = v;
+    else e.setAttribute(k, v);
+  }
+  for (const c of children) e.append(typeof c === "string" ? document.createTextNode(c) : c);
+  return e;
+}
+
+function fmtNumber(v: number, digits = 3): string {
+  if (!Number.isFinite(v)) return "";
+  return v.toFixed(digits);
+}
+
+function cellText(v: CellValue): string {
+  if (v === null || v === undefined) return "";
+  if (typeof v === "number") return Number.isInteger(v) ? String(v) : String(Number(v.toPrecision(5)));
+  if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
+  return String(v);
+}
+
+function numberInput(id: string, value: number, attrs: Attrs = {}): HTMLInputElement {
+  const input = h("input", { id, type: "number", step: "any", ...attrs });
+  input.value = String(value);
+  return input;
+}
+
+/** Per-column transforms offered by the basis section, with their main setting. */
+const BASIS_CHOICES: { value: string; label: string; setting: string | null; initial: number }[] = [
+  { value: "", label: "as is", setting: null, initial: 0 },
+  { value: "ns", label: "natural spline", setting: "df", initial: 3 },
+  { value: "poly", label: "polynomial", setting: "degree", initial: 2 },
+  { value: "log", label: "log", setting: null, initial: 0 },
+  { value: "z", label: "standardize", setting: null, initial: 0 },
+  { value: "bins", label: "quantile bins", setting: "k", initial: 4 },
+];
+
+export class PaneView {
+  readonly root: HTMLElement;
+  private readonly el: Record<string, HTMLElement> = {};
+  private plotAxes: { x: number; y: number } | null = null;
+  private basisSource: BasisSource | null = null;
+  private basisUndo: UndoPlan | null = null;
+
+  constructor(
+    container: HTMLElement,
+    private readonly controller: PaneController,
+    private readonly port: WorkbookPort,
+  ) {
+    this.root = h("div", { class: "osm-pane" });
+    this.root.append(this.header(), this.cautions(), this.setupSection(), this.basisSection(), this.reviewSection(), this.plotSection());
+    container.append(this.root);
+    controller.subscribe((change) => this.update(change));
+    this.renderStatus();
+  }
+
+  private byId<T extends HTMLElement>(id: string): T {
+    return this.el[id] as T;
+  }
+
+  private keep<T extends HTMLElement>(id: string, e: T): T {
+    this.el[id] = e;
+    return e;
+  }
+
+  // ---- building ----------------------------------------------------------------------------
+
+  private header(): HTMLElement {
+    return h("header", { class: "osm-head" }, h("h1", {}, "Oddsmith"), h("p", { class: "osm-tagline" }, "Classifier fits, borderline rows and the decision boundary"));
+  }
+
+  private cautions(): HTMLElement {
+    return h(
+      "aside",
+      { class: "osm-cautions", id: "osm-cautions", "aria-label": CAUTIONS_TITLE },
+      h("h2", {}, CAUTIONS_TITLE),
+      h("ul", {}, ...CAUTIONS.map((c) => h("li", {}, c))),
+    );
+  }
+
+  private section(id: string, step: string, title: string, ...children: Node[]): HTMLElement {
+    return h("section", { class: "osm-section", id }, h("h2", {}, h("span", { class: "osm-step" }, step), title), ...children);
+  }
+
+  private setupSection(): HTMLElement {
+    const use = this.keep("use", h("button", { id: "osm-use", type: "button", class: "osm-primary" }, "Use selection"));
+    use.addEventListener("click", () => void this.controller.useSelection());
+    const info = this.keep("tableInfo", h("p", { id: "osm-table-info", class: "osm-note" }, "No table chosen yet."));
+    const label = this.keep("label", h("select", { id: "osm-label" }));
+    label.addEventListener("change", () => this.controller.setChoice({ label: Number((label as HTMLSelectElement).value) }));
+    const focus = this.keep("focus", h("select", { id: "osm-focus" }));
+    focus.addEventListener("change", () => {
+      const v = (focus as HTMLSelectElement).value;
+      this.controller.setChoice({ focusClass: v === "" ? null : v });
+    });
+    const predictors = this.keep("predictors", h("div", { id: "osm-predictors", class: "osm-checks", role: "group", "aria-label": "Predictor columns" }));
+    const penalty = this.keep("penalty", numberInput("osm-penalty", 0, { min: "0" }));
+    const level = this.keep("level", numberInput("osm-level", 0.95, { min: "0.5", max: "0.999" }));
+    const threshold = this.keep("threshold", numberInput("osm-threshold", 0.5, { min: "0.01", max: "0.99" }));
+    const firth = this.keep("firth", h("input", { id: "osm-firth", type: "checkbox" }));
+    const readOptions = () =>
+      this.controller.setChoice({
+        penalty: Number((penalty as HTMLInputElement).value),
+        level: Number((level as HTMLInputElement).value),
+        threshold: Number((threshold as HTMLInputElement).value),
+        firth: (firth as HTMLInputElement).checked,
+      });
+    for (const i of [penalty, level, threshold, firth]) i.addEventListener("change", readOptions);
+    const fit = this.keep("fit", h("button", { id: "osm-fit", type: "button", class: "osm-primary" }, "Fit and write formulas"));
+    fit.addEventListener("click", () => void this.controller.fit(true));
+    const cancel = this.keep("cancel", h("button", { id: "osm-cancel", type: "button" }, "Cancel"));
+    cancel.addEventListener("click", () => this.controller.cancel());
+    const progress = this.keep("progress", h("progress", { id: "osm-progress", max: "1" }));
+    const status = this.keep("status", h("p", { id: "osm-status", role: "status", "aria-live": "polite" }));
+    const diagnostics = this.keep("diagnostics", h("ul", { id: "osm-diagnostics", class: "osm-diagnostics" }));
+    return this.section(
+      "osm-setup",
+      "1",
+      "Data and model",
+      h("div", { class: "osm-row" }, use),
+      info,
+      h("label", { class: "osm-field" }, h("span", {}, "Label column (the classes)"), label),
+      h("label", { class: "osm-field" }, h("span", { id: "osm-focus-caption" }, "Class of interest"), focus),
+      h("div", { class: "osm-field" }, h("span", {}, "Predictor columns"), predictors),
+      h(
+        "div",
+        { class: "osm-grid3" },
+        h("label", { class: "osm-field" }, h("span", {}, "Penalty (0 = none)"), penalty),
+        h("label", { class: "osm-field" }, h("span", {}, "Interval level"), level),
+        h("label", { class: "osm-field" }, h("span", {}, "Threshold"), threshold),
+      ),
+      h("label", { class: "osm-inline" }, firth, " Bias-reduced fit (Firth), for separated classes"),
+      h("div", { class: "osm-row" }, fit, cancel),
+      progress,
+      status,
+      diagnostics,
+    );
+  }
+
+  private basisSection(): HTMLElement {
+    const columns = this.keep("basisColumns", h("div", { id: "osm-basis-columns", class: "osm-basis-columns" }));
+    const recipe = this.keep("recipe", h("input", { id: "osm-recipe", type: "text", spellcheck: "false", placeholder: "firmness: ns(3)" }));
+    recipe.addEventListener("input", () => this.previewRecipe());
+    const preview = this.keep("basisPreview", h("p", { id: "osm-basis-preview", class: "osm-note" }));
+    const write = this.keep("basisWrite", h("button", { id: "osm-basis-write", type: "button" }, "Add beside the data"));
+    write.addEventListener("click", () => void this.writeBasis());
+    const undo = this.keep("basisUndo", h("button", { id: "osm-basis-undo", type: "button" }, "Remove generated columns"));
+    undo.addEventListener("click", () => void this.undoBasis());
+    return this.section(
+      "osm-basis",
+      "2",
+      "Basis columns",
+      h("p", { class: "osm-note" }, "Give a column a curved effect: the new columns are written beside the table as one live formula and ticked as predictors in place of their source."),
+      columns,
+      h("label", { class: "osm-field" }, h("span", {}, "Recipe"), recipe),
+      preview,
+      h("div", { class: "osm-row" }, write, undo),
+    );
+  }
+
+  private reviewSection(): HTMLElement {
+    const threshold = this.keep("reviewThreshold", numberInput("osm-review-threshold", 0.5, { min: "0.01", max: "0.99" }));
+    const band = this.keep("band", numberInput("osm-band", 0.1, { min: "0", max: "1", step: "0.01" }));
+    const undecided = this.keep("undecided", h("input", { id: "osm-undecided", type: "checkbox" }));
+    (undecided as HTMLInputElement).checked = true;
+    const apply = () =>
+      void this.controller.setReview({
+        threshold: Number((threshold as HTMLInputElement).value),
+        band: Number((band as HTMLInputElement).value),
+        undecided: (undecided as HTMLInputElement).checked,
+      });
+    for (const i of [threshold, band, undecided]) i.addEventListener("change", apply);
+    const summary = this.keep("reviewSummary", h("p", { id: "osm-review-summary", class: "osm-note" }, "Fit a model to list the rows near its decision boundary."));
+    const highlight = this.keep("highlight", h("button", { id: "osm-highlight", type: "button" }, "Highlight all in the sheet"));
+    highlight.addEventListener("click", () => void this.controller.highlightAll());
+    const unhighlight = this.keep("unhighlight", h("button", { id: "osm-unhighlight", type: "button" }, "Remove highlight"));
+    unhighlight.addEventListener("click", () => void this.controller.removeHighlight());
+    const table = this.keep("reviewTable", h("table", { id: "osm-review-table", class: "osm-review-table" }));
+    table.addEventListener("click", (e) => {
+      const tr = (e.target as HTMLElement).closest("tr[data-sheet-row]") as HTMLElement | null;
+      if (tr) void this.controller.selectRow(Number(tr.dataset.sheetRow));
+    });
+    table.addEventListener("keydown", (e) => {
+      const tr = (e.target as HTMLElement).closest("tr[data-sheet-row]") as HTMLElement | null;
+      if (tr && (e.key === "Enter" || e.key === " ")) {
+        e.preventDefault();
+        void this.controller.selectRow(Number(tr.dataset.sheetRow));
+      }
+    });
+    return this.section(
+      "osm-review",
+      "3",
+      "Borderline rows",
+      h(
+        "div",
+        { class: "osm-grid3" },
+        h("label", { class: "osm-field" }, h("span", {}, "Threshold"), threshold),
+        h("label", { class: "osm-field" }, h("span", {}, "Band (±)"), band),
+      ),
+      h("label", { class: "osm-inline" }, undecided, " Also rows whose probability interval contains the threshold"),
+      summary,
+      h("div", { class: "osm-row" }, highlight, unhighlight),
+      h("div", { class: "osm-table-wrap" }, table),
+    );
+  }
+
+  private plotSection(): HTMLElement {
+    const x = this.keep("plotX", h("select", { id: "osm-plot-x" }));
+    const y = this.keep("plotY", h("select", { id: "osm-plot-y" }));
+    const change = () => {
+      this.plotAxes = { x: Number((x as HTMLSelectElement).value), y: Number((y as HTMLSelectElement).value) };
+      this.renderPlotArea();
+    };
+    x.addEventListener("change", change);
+    y.addEventListener("change", change);
+    const area = this.keep("plotArea", h("div", { id: "osm-plot-area", class: "osm-plot-area" }));
+    const legend = this.keep("plotLegend", h("ul", { id: "osm-plot-legend", class: "osm-legend" }));
+    const caption = this.keep("plotCaption", h("p", { id: "osm-plot-caption", class: "osm-note" }, "Fit a model to draw its decision boundary."));
+    return this.section(
+      "osm-plot",
+      "4",
+      "Boundary plot",
+      h(
+        "div",
+        { class: "osm-grid3" },
+        h("label", { class: "osm-field" }, h("span", {}, "Across"), x),
+        h("label", { class: "osm-field" }, h("span", {}, "Up"), y),
+      ),
+      area,
+      legend,
+      caption,
+    );
+  }
+
+  // ---- updating ----------------------------------------------------------------------------
+
+  private update(change: PaneChange): void {
+    switch (change) {
+      case "status":
+        this.renderStatus();
+        break;
+      case "data":
+        this.renderTableInfo();
+        void this.loadBasisSource();
+        break;
+      case "choice":
+        this.renderChoice();
+        break;
+      case "fit":
+        this.renderDiagnostics();
+        this.renderAxes();
+        this.renderPlotArea();
+        break;
+      case "review":
+        this.renderReview();
+        this.renderPlotArea();
+        break;
+      case "highlight":
+        this.renderReview();
+        break;
+    }
+  }
+
+  private renderStatus(): void {
+    const s = this.controller.status;
+    const status = this.byId("status");
+    status.textContent = s.message;
+    status.className = `osm-status is-${s.phase}`;
+    const progress = this.byId<HTMLProgressElement>("progress");
+    progress.hidden = !s.busy;
+    if (s.progress === null) progress.removeAttribute("value");
+    else progress.value = s.progress;
+    (this.byId("cancel") as HTMLButtonElement).disabled = !s.busy;
+    (this.byId("fit") as HTMLButtonElement).disabled = s.busy || !this.controller.data;
+  }
+
+  private renderTableInfo(): void {
+    const d = this.controller.data;
+    this.byId("tableInfo").textContent = d
+      ? `${d.sheet}!${d.block.address} · ${d.table.rows.toLocaleString("en-US")} rows · ${d.columns.length} columns${d.table.header ? "" : " (no header row found: columns are named x1, x2, ...)"}`
+      : "No table chosen yet.";
+    this.renderStatus();
+  }
+
+  private renderChoice(): void {
+    const d = this.controller.data;
+    const c = this.controller.choice;
+    if (!d || !c) return;
+    const label = this.byId<HTMLSelectElement>("label");
+    label.replaceChildren(
+      ...d.columns
+        .filter((col) => col.kind !== "empty")
+        .map((col) => {
+          const o = h("option", { value: String(col.index) }, col.name);
+          o.selected = col.index === c.label;
+          return o;
+        }),
+    );
+    const classes = this.controller.labelClasses();
+    const focus = this.byId<HTMLSelectElement>("focus");
+    const caption = this.root.querySelector("#osm-focus-caption");
+    if (caption) caption.textContent = classes.length > 2 ? "Reference class" : "Positive class";
+    const auto = h("option", { value: "" }, "(automatic)");
+    focus.replaceChildren(
+      auto,
+      ...classes.map((k) => {
+        const o = h("option", { value: k }, k);
+        o.selected = k === c.focusClass;
+        return o;
+      }),
+    );
+    auto.selected = c.focusClass === null;
+    const box = this.byId("predictors");
+    box.replaceChildren(
+      ...d.columns
+        .filter((col) => col.index !== c.label && col.kind !== "empty")
+        .map((col) => {
+          const input = h("input", { type: "checkbox", value: String(col.index), "data-name": col.name });
+          input.checked = c.predictors.includes(col.index);
+          input.addEventListener("change", () => {
+            const picked = [...box.querySelectorAll<HTMLInputElement>("input:checked")].map((i) => Number(i.value)).sort((a, b) => a - b);
+            this.controller.setChoice({ predictors: picked });
+          });
+          return h("label", { class: "osm-check" }, input, ` ${col.name}`, h("span", { class: "osm-kind" }, col.kind === "text" ? " (categories)" : ""));
+        }),
+    );
+    (this.byId("penalty") as HTMLInputElement).value = String(c.penalty);
+    (this.byId("level") as HTMLInputElement).value = String(c.level);
+    (this.byId("threshold") as HTMLInputElement).value = String(c.threshold);
+    (this.byId("reviewThreshold") as HTMLInputElement).value = String(this.controller.reviewSettings.threshold);
+    (this.byId("firth") as HTMLInputElement).checked = c.firth;
+    this.renderStatus();
+  }
+
+  private renderDiagnostics(): void {
+    const list = this.byId("diagnostics");
+    list.replaceChildren(
+      ...this.controller.diagnostics.map((d) => h("li", { class: `osm-diag is-${d.severity}` }, h("strong", {}, `${d.severity}: `), d.message)),
+    );
+  }
+
+  private renderReview(): void {
+    const r = this.controller.review;
+    const table = this.byId("reviewTable");
+    const summary = this.byId("reviewSummary");
+    if (!r) {
+      summary.textContent = "Fit a model to list the rows near its decision boundary.";
+      table.replaceChildren();
+      return;
+    }
+    const highlighted = new Set(this.controller.highlighted);
+    summary.textContent = r.summary + (highlighted.size ? ` ${highlighted.size} rows are highlighted in the sheet.` : "");
+    const head = h(
+      "thead",
+      {},
+      h("tr", {}, h("th", { scope: "col" }, "Row"), ...r.keyNames.map((k) => h("th", { scope: "col" }, k)), h("th", { scope: "col" }, r.probabilityLabel), h("th", { scope: "col" }, "Margin"), h("th", { scope: "col" }, "Why listed")),
+    );
+    const body = h("tbody");
+    for (const line of r.lines) {
+      const why = [line.withinBand ? "in band" : "", line.undecided ? "interval spans threshold" : ""].filter(Boolean).join("; ");
+      const tr = h(
+        "tr",
+        { "data-sheet-row": String(line.sheetRow), tabindex: "0", title: `Select row ${line.sheetRow} in the sheet` },
+        h("td", { class: "osm-num" }, String(line.sheetRow)),
+        ...line.keys.map((k) => h("td", {}, cellText(k))),
+        h("td", { class: "osm-num" }, fmtNumber(line.probability)),
+        h("td", { class: "osm-num" }, fmtNumber(line.margin)),
+        h("td", {}, why),
+      );
+      if (highlighted.has(line.sheetRow)) tr.classList.add("is-highlighted");
+      if (line.undecided && !line.withinBand) tr.classList.add("is-undecided");
+      body.append(tr);
+    }
+    table.replaceChildren(head, body);
+  }
+
+  private renderAxes(): void {
+    const d = this.controller.data;
+    const candidates = this.controller.axisCandidates();
+    const x = this.byId<HTMLSelectElement>("plotX");
+    const y = this.byId<HTMLSelectElement>("plotY");
+    if (!d || candidates.length < 2) {
+      x.replaceChildren();
+      y.replaceChildren();
+      this.plotAxes = null;
+      return;
+    }
+    if (!this.plotAxes || !candidates.includes(this.plotAxes.x) || !candidates.includes(this.plotAxes.y)) {
+      this.plotAxes = { x: candidates[0], y: candidates[1] };
+    }
+    const fill = (select: HTMLSelectElement, chosen: number) =>
+      select.replaceChildren(
+        ...candidates.map((i) => {
+          const o = h("option", { value: String(i) }, d.columns[i].name);
+          o.selected = i === chosen;
+          return o;
+        }),
+      );
+    fill(x, this.plotAxes.x);
+    fill(y, this.plotAxes.y);
+  }
+
+  private renderPlotArea(): void {
+    const area = this.byId("plotArea");
+    const caption = this.byId("plotCaption");
+    const legend = this.byId("plotLegend");
+    if (!this.plotAxes || !this.controller.outcome) {
+      area.replaceChildren();
+      legend.replaceChildren();
+      caption.textContent = this.controller.outcome
+        ? "The plot needs two numeric predictor columns."
+        : "Fit a model to draw its decision boundary.";
+      return;
+    }
+    if (this.plotAxes.x === this.plotAxes.y) {
+      area.replaceChildren();
+      caption.textContent = "Choose two different columns.";
+      return;
+    }
+    let model;
+    try {
+      model = this.controller.plot(this.plotAxes.x, this.plotAxes.y);
+    } catch {
+      model = null;
+    }
+    if (!model) {
+      area.replaceChildren();
+      caption.textContent = "The plot could not be drawn for this fit.";
+      return;
+    }
+    renderPlot(area, model);
+    legend.replaceChildren(
+      ...model.classes.map((k, i) => h("li", { class: `osm-legend-item is-class-${i % 6}` }, h("span", { class: "osm-swatch", "aria-hidden": "true" }), k)),
+      h("li", { class: "osm-legend-item is-ring" }, h("span", { class: "osm-swatch", "aria-hidden": "true" }), "borderline row"),
+      h("li", { class: "osm-legend-item is-line" }, h("span", { class: "osm-swatch", "aria-hidden": "true" }), model.kind === "binary" ? `boundary where p = ${this.controller.reviewSettings.threshold}` : "boundaries between the most likely classes"),
+    );
+    const held = model.heldAt.map((hd) => `${hd.name} = ${hd.value} (${hd.rule})`).join(", ");
+    caption.textContent = [
+      `Each point is a row, by its actual class; shaded areas show where the model predicts each class.`,
+      held ? `Other predictors held at: ${held}.` : "",
+      ...model.notes,
+    ]
+      .filter(Boolean)
+      .join(" ");
+  }
+
+  // ---- basis columns -----------------------------------------------------------------------
+
+  private async loadBasisSource(): Promise<void> {
+    const d = this.controller.data;
+    const box = this.byId("basisColumns");
+    if (!d) return;
+    // The source is the original table: the columns left of any generated block we added.
+    try {
+      const rect = parseAddress(d.block.address)!;
+      const right = this.basisUndo ? Math.min(rect.right, parseAddress(this.basisUndo.address)!.left - 2) : rect.right;
+      this.basisSource = await readBasisSource(this.port, { sheet: d.sheet, address: rectAddress({ ...rect, right }) });
+    } catch (e) {
+      this.basisSource = null;
+      box.replaceChildren(h("p", { class: "osm-note" }, e instanceof Error ? e.message : "The table cannot be used for basis columns."));
+      return;
+    }
+    const numeric = this.basisSource.summaries.filter((s) => s.kind === "number");
+    box.replaceChildren(
+      ...numeric.map((s) => {
+        const select = h("select", { "data-column": s.name, "aria-label": `Transform of ${s.name}` });
+        for (const c of BASIS_CHOICES) select.append(h("option", { value: c.value }, c.label));
+        const setting = numberInput("", 3, { "data-setting-for": s.name, min: "1", max: "20", step: "1", "aria-label": `Setting for ${s.name}` });
+        setting.removeAttribute("id");
+        setting.hidden = true;
+        select.addEventListener("change", () => {
+          const c = BASIS_CHOICES.find((b) => b.value === (select as HTMLSelectElement).value)!;
+          setting.hidden = c.setting === null;
+          setting.value = String(c.initial);
+          this.composeRecipe();
+        });
+        setting.addEventListener("change", () => this.composeRecipe());
+        return h("div", { class: "osm-basis-row" }, h("span", { class: "osm-basis-name" }, s.name), select, setting);
+      }),
+    );
+  }
+
+  private composeRecipe(): void {
+    const parts: string[] = [];
+    for (const row of this.byId("basisColumns").querySelectorAll(".osm-basis-row")) {
+      const select = row.querySelector("select") as HTMLSelectElement;
+      const input = row.querySelector("input") as HTMLInputElement;
+      const choice = BASIS_CHOICES.find((b) => b.value === select.value);
+      if (!choice || choice.value === "") continue;
+      const name = select.dataset.column!;
+      const col = /^[A-Za-z_][A-Za-z0-9_ .]*$/.test(name) ? name : `"${name.replace(/"/g, '""')}"`;
+      parts.push(choice.setting ? `${col}: ${choice.value}(${choice.setting}=${Number(input.value)})` : `${col}: ${choice.value}`);
+    }
+    (this.byId("recipe") as HTMLInputElement).value = parts.join("; ");
+    this.previewRecipe();
+  }
+
+  private previewRecipe(): void {
+    const out = this.byId("basisPreview");
+    const recipe = (this.byId("recipe") as HTMLInputElement).value.trim();
+    if (!this.basisSource || recipe === "") {
+      out.textContent = "";
+      return;
+    }
+    const p = previewBasis(this.basisSource, recipe);
+    if (p.error) {
+      out.textContent = p.error.message;
+      out.className = "osm-note is-error";
+      return;
+    }
+    out.className = "osm-note";
+    out.textContent = [`New columns: ${p.names.join(", ")}.`, ...p.warnings.map((w) => w.message)].join(" ");
+  }
+
+  private async writeBasis(): Promise<void> {
+    const out = this.byId("basisPreview");
+    const recipe = (this.byId("recipe") as HTMLInputElement).value.trim();
+    const source = this.basisSource;
+    const d = this.controller.data;
+    if (!source || !d || recipe === "") {
+      out.textContent = "Choose a transform for a column (or type a recipe) first.";
+      return;
+    }
+    try {
+      if (this.basisUndo) await this.undoBasis();
+      const plan = planWrite(source, recipe, { place: "beside", mode: "formula" });
+      const result = await executeWrite(this.port, plan);
+      if (result.status === "blocked") {
+        out.textContent = result.message.message;
+        return;
+      }
+      this.basisUndo = result.undo;
+      // Teach the plot how to recompute the generated columns from their sources.
+      const state = fitRecipe(parseRecipe(recipe), source.columns, "data");
+      const sources = [...new Set(state.states.flatMap((s) => sourcesOf(s)))];
+      const start = source.table.firstRow - 2;
+      const training = source.block.values.slice(start, start + source.table.rows + 1);
+      const derived: DerivedColumns = {
+        outputs: plan.names,
+        sources,
+        compute: (rows) => basisCell(rows, recipe, training),
+      };
+      this.controller.derived = [derived];
+      // Widen the pane's table over the generated block and tick the new columns instead of their sources.
+      const tableRect = parseAddress(d.block.address)!;
+      const genRect = parseAddress(result.address)!;
+      const wide = { ...tableRect, right: Math.max(tableRect.right, genRect.right) };
+      await this.controller.useTable(d.sheet, rectAddress(wide), true);
+      const data = this.controller.data;
+      const choice = this.controller.choice;
+      if (data && choice) {
+        const generated = plan.names.map((n) => data.columns.findIndex((c) => c.name === n)).filter((i) => i >= 0);
+        const sourceIdx = new Set(sources.map((n) => data.columns.findIndex((c) => c.name === n)));
+        const keep = choice.predictors.filter((p) => !sourceIdx.has(p));
+        this.controller.setChoice({ predictors: [...new Set([...keep, ...generated])].sort((a, b) => a - b) });
+      }
+      out.textContent = `Added ${plan.names.length} columns at ${result.sheet}!${result.address}, ticked as predictors in place of ${sources.join(", ")}. Press Fit to refit.`;
+    } catch (e) {
+      out.textContent = e instanceof Error && "code" in e ? e.message : "The basis columns could not be written.";
+    }
+  }
+
+  private async undoBasis(): Promise<void> {
+    const undo = this.basisUndo;
+    if (!undo) return;
+    await undoWrite(this.port, undo);
+    this.basisUndo = null;
+    this.controller.derived = [];
+    const d = this.controller.data;
+    if (d) {
+      const rect = parseAddress(d.block.address)!;
+      const gen = parseAddress(undo.address)!;
+      if (rect.right >= gen.left) await this.controller.useTable(d.sheet, rectAddress({ ...rect, right: gen.left - 2 }), true);
+    }
+    this.byId("basisPreview").textContent = "Generated columns removed.";
+  }
+}
