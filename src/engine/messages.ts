@@ -309,7 +309,7 @@ export const MESSAGES = {
   RECIPE_EMPTY: {
     cellError: "#VALUE!",
     title: "Empty recipe",
-    template: "The recipe is empty. {hint}",
+    template: "The recipe is empty: it names no column and no transform. {hint}",
   },
   RECIPE_BAD_PARAMETER: {
     cellError: "#VALUE!",

@@ -9,6 +9,7 @@
  *   item     = targets ":" steps                 transform the named columns
  *            | column "*" column { "*" column }  the product of numeric columns ("age*income")
  *   targets  = column { "," column } | "*"       "*" = every data column no other item names
+ *                                                 (columns with no value at all are skipped)
  *   steps    = call { "+" call }                 several transforms of the same targets
  *   call     = transform [ "(" [ arg { "," arg } ] ")" ]
  *   arg      = value | setting "=" value         a bare value sets the transform's main setting
@@ -544,7 +545,11 @@ export function fitRecipe(plan: RecipePlan, columns: readonly BasisColumn[], arg
   const madeBy = new Map<string, string>();
   const names: string[] = [];
   for (const step of plan.steps) {
-    const cols = step.targets === "*" ? columns.filter((c) => !named.has(c.name)) : step.targets.map((t) => findColumn(columns, t, argument));
+    // "*" skips columns with no value at all (gaps in a selection), which no transform could use.
+    const cols =
+      step.targets === "*"
+        ? columns.filter((c) => !named.has(c.name) && c.values.some((v) => v !== null))
+        : step.targets.map((t) => findColumn(columns, t, argument));
     if (cols.length === 0) continue;
     if (step.targets === "*" && (step.spec.transform === "pairs" && cols.length < 2)) continue;
     for (const state of fitStep(step, cols)) {

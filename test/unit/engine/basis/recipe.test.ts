@@ -230,3 +230,11 @@ describe("recipe: overflow and categorical products", () => {
     expect(block.columns[0][0]).toBe(0);
   });
 });
+
+test("'*' skips a column with no value at all (a gap in the selection)", () => {
+  const cols: BasisColumn[] = [
+    { name: "a", values: [1, 2, 3] },
+    { name: "x2", values: [null, null, null] },
+  ];
+  expect(buildBasis("*: z", cols).block.names).toEqual(["z(a)"]);
+});
