@@ -132,13 +132,3 @@ export function formatForName(v: number): string {
   const s = Number(v.toPrecision(6));
   return String(s);
 }
-
-/** A column filled with NaN. */
-export function nanColumn(n: number): Float64Array {
-  return new Float64Array(n).fill(NaN);
-}
-
-/** Check that every column passed to `apply` has the same number of rows; returns that number. */
-export function rowCount(columns: readonly BasisColumn[]): number {
-  return columns.length === 0 ? 0 : columns[0].values.length;
-}

@@ -32,14 +32,6 @@ export type ProductsOptions = { mode: "product" } | { mode: "pairs" } | { mode: 
 /** Largest total degree of a multivariate polynomial. */
 export const MAX_TOTAL_DEGREE = 6;
 
-/** Name of one monomial: "a*b", "a^2*b". */
-export function monomialName(sources: readonly string[], powers: readonly number[]): string {
-  return powers
-    .map((p, j) => (p === 0 ? "" : p === 1 ? sources[j] : `${sources[j]}^${p}`))
-    .filter((s) => s !== "")
-    .join("*");
-}
-
 /** All exponent vectors of total degree exactly d over m columns, in combinations-with-repetition order. */
 function monomialsOfDegree(m: number, d: number): number[][] {
   const out: number[][] = [];

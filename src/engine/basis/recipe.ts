@@ -39,7 +39,7 @@
  */
 import { listNames, problem } from "../messages";
 import { fitBins, MAX_BINS } from "./bins";
-import { type BasisBlock, type BasisColumn, type FitNote, type RowNote, rowNote } from "./common";
+import { type BasisBlock, type BasisColumn, type FitNote, rowNote } from "./common";
 import { applyBasisState, sourcesOf, type BasisState } from "./index";
 import { fitLevels, type LevelsOptions } from "./levels";
 import { fitMinmax } from "./minmax";
@@ -618,11 +618,4 @@ export function buildBasis(
 ): { state: RecipeState; block: BasisBlock } {
   const state = fitRecipe(parseRecipe(recipe), training, rows === training ? "data" : "training_data");
   return { state, block: applyRecipe(state, rows) };
-}
-
-/** Notes of a block grouped per row (0-based row -> messages), for adapters that show one reason per row. */
-export function notesByRow(notes: readonly RowNote[]): Map<number, string[]> {
-  const m = new Map<number, string[]>();
-  for (const n of notes) m.set(n.row, [...(m.get(n.row) ?? []), n.message]);
-  return m;
 }
