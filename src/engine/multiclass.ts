@@ -513,10 +513,15 @@ function keepColumns(prep: Prepared, keep: readonly number[]): void {
 // Newton-Raphson
 // ================================================================================================
 
+/** Rows per chunk of the kernel: chunk buffers (CHUNK * (E + pairs + 1) doubles) stay in L1/L2 cache. */
+const CHUNK = 256;
+
 /**
  * The likelihood kernel: for parameters theta (equation-major, q per equation, internal scale),
- * returns the weighted log-likelihood; when `derivs` is given also fills the score X'(w(y - p)) and
- * the packed information blocks. Allocates nothing per row.
+ * returns the weighted log-likelihood; when `derivs` is set also fills the score X'(w(y - p)) and
+ * the packed information blocks. Rows are processed in chunks of {@link CHUNK}: per chunk the
+ * probabilities and the block weights v_ef = w p_e (delta_ef - p_f) are computed once, then every
+ * block entry (a <= b) is a short contiguous dot product over the chunk. Allocates nothing per row.
  */
 class SoftmaxKernel {
   readonly q: number;
@@ -526,9 +531,12 @@ class SoftmaxKernel {
   private readonly eqOfClass: Int32Array;
   private readonly refForm: boolean;
   private readonly eta: Float64Array;
-  private readonly prob: Float64Array;
-  private readonly zrow: Float64Array;
+  private readonly etaBuf: Float64Array;
+  /** Chunk buffers: residuals r_e = w (y_e - p_e) [e * CHUNK + i], block weights [pair * CHUNK + i], products. */
+  private readonly resid: Float64Array;
   private readonly v: Float64Array;
+  private readonly prodBuf: Float64Array;
+  private readonly probRow: Float64Array;
   readonly score: Float64Array;
   /** Information blocks, packed: ((a,b) upper-triangle index) * pairs + pair(e,f), e <= f. */
   readonly blocks: Float64Array;
@@ -546,65 +554,75 @@ class SoftmaxKernel {
     this.eqOfClass = new Int32Array(K).fill(-1);
     equationClassIdx.forEach((k, e) => (this.eqOfClass[k] = e));
     this.eta = new Float64Array(this.E);
-    this.prob = new Float64Array(this.E);
-    this.zrow = new Float64Array(this.q);
-    this.v = new Float64Array(this.pairs);
+    this.etaBuf = new Float64Array(this.E * CHUNK);
+    this.probRow = new Float64Array(this.E);
+    this.resid = new Float64Array(this.E * CHUNK);
+    this.v = new Float64Array(this.pairs * CHUNK);
+    this.prodBuf = new Float64Array(CHUNK);
     this.score = new Float64Array(this.E * this.q);
     this.blocks = new Float64Array(((this.q * (this.q + 1)) / 2) * this.pairs);
   }
 
-  evaluate(theta: Float64Array, derivs: boolean): number {
-    const { q, E, pairs, eta, prob, zrow, v, score, blocks, refForm, eqOfClass } = this;
+  /**
+   * @param mode - what to compute besides the log-likelihood: "value" nothing, "score" the score,
+   *   "information" the score and the information blocks
+   */
+  evaluate(theta: Float64Array, mode: "value" | "score" | "information"): number {
+    const { q, E, pairs, eta, etaBuf, probRow, resid, v, prodBuf, score, blocks, refForm, eqOfClass } = this;
     const { n, z, w, y } = this.prep;
-    if (derivs) {
-      score.fill(0);
-      blocks.fill(0);
-    }
+    const derivs = mode !== "value";
+    const info = mode === "information";
+    if (derivs) score.fill(0);
+    if (info) blocks.fill(0);
     let logLik = 0;
-    for (let i = 0; i < n; i++) {
-      for (let j = 0; j < q; j++) zrow[j] = z[j][i];
-      // Linear predictors; the reference class (reference form) has eta = 0.
-      let max = refForm ? 0 : -Infinity;
-      for (let e = 0; e < E; e++) {
-        let s = 0;
-        const base = e * q;
-        for (let j = 0; j < q; j++) s += theta[base + j] * zrow[j];
-        eta[e] = s;
-        if (s > max) max = s;
-      }
-      // Stable softmax: subtract the row maximum; log-sum-exp for the log-likelihood.
-      let sum = refForm ? Math.exp(-max) : 0;
-      for (let e = 0; e < E; e++) {
-        const t = Math.exp(eta[e] - max);
-        prob[e] = t;
-        sum += t;
-      }
-      const lse = max + Math.log(sum);
-      const ye = eqOfClass[y[i]];
-      const wi = w[i];
-      logLik += wi * ((ye >= 0 ? eta[ye] : 0) - lse);
-      if (!derivs) continue;
-      for (let e = 0; e < E; e++) prob[e] /= sum;
-      for (let e = 0; e < E; e++) {
-        const r = wi * ((e === ye ? 1 : 0) - prob[e]);
-        const base = e * q;
-        for (let j = 0; j < q; j++) score[base + j] += r * zrow[j];
-      }
-      // v_ef = w p_e (delta_ef - p_f), e <= f, in pair order.
-      let pr = 0;
-      for (let e = 0; e < E; e++) {
-        const wp = wi * prob[e];
-        for (let f = e; f < E; f++) v[pr++] = wp * ((e === f ? 1 : 0) - prob[f]);
-      }
-      let idx = 0;
-      for (let a = 0; a < q; a++) {
-        const za = zrow[a];
-        for (let b = a; b < q; b++) {
-          const t = za * zrow[b];
-          for (let k = 0; k < pairs; k++) blocks[idx + k] += v[k] * t;
-          idx += pairs;
+    for (let r0 = 0; r0 < n; r0 += CHUNK) {
+      const L = Math.min(CHUNK, n - r0);
+      // Linear predictors of the chunk, column by column (contiguous); eta_ref = 0 (reference form).
+      linearPredictors(z, theta, r0, L, q, E, etaBuf);
+      for (let i = 0; i < L; i++) {
+        const row = r0 + i;
+        let max = refForm ? 0 : -Infinity;
+        for (let e = 0; e < E; e++) {
+          const s = etaBuf[e * CHUNK + i];
+          eta[e] = s;
+          if (s > max) max = s;
+        }
+        // Stable softmax: subtract the row maximum; log-sum-exp for the log-likelihood.
+        let sum = refForm ? Math.exp(-max) : 0;
+        for (let e = 0; e < E; e++) {
+          const t = Math.exp(eta[e] - max);
+          probRow[e] = t;
+          sum += t;
+        }
+        const ye = eqOfClass[y[row]];
+        const wi = w[row];
+        logLik += wi * ((ye >= 0 ? eta[ye] : 0) - max - Math.log(sum));
+        if (!derivs) continue;
+        for (let e = 0; e < E; e++) probRow[e] /= sum;
+        for (let e = 0; e < E; e++) resid[e * CHUNK + i] = wi * ((e === ye ? 1 : 0) - probRow[e]);
+        if (!info) continue;
+        let pr = 0;
+        for (let e = 0; e < E; e++) {
+          const pe = probRow[e];
+          const wp = wi * pe;
+          v[pr * CHUNK + i] = wp * (1 - pe);
+          pr++;
+          for (let f = e + 1; f < E; f++) v[pr++ * CHUNK + i] = -wp * probRow[f];
         }
       }
+      if (!derivs) continue;
+      // Score: X' r_e, column by column over the chunk.
+      for (let j = 0; j < q; j++) {
+        const zj = z[j];
+        for (let e = 0; e < E; e++) {
+          const off = e * CHUNK;
+          let s = 0;
+          for (let i = 0; i < L; i++) s += resid[off + i] * zj[r0 + i];
+          score[e * q + j] += s;
+        }
+      }
+      if (!info) continue;
+      accumulateBlocks(z, r0, L, q, pairs, v, prodBuf, blocks);
     }
     return logLik;
   }
@@ -633,6 +651,82 @@ class SoftmaxKernel {
   }
 }
 
+/** eta[e * CHUNK + i] = sum_j theta[e * q + j] z_j[r0 + i] for the rows of one chunk. */
+function linearPredictors(
+  z: readonly Float64Array[],
+  theta: Float64Array,
+  r0: number,
+  L: number,
+  q: number,
+  E: number,
+  etaBuf: Float64Array,
+): void {
+  for (let e = 0; e < E; e++) {
+    const off = e * CHUNK;
+    etaBuf.fill(0, off, off + L);
+    for (let j = 0; j < q; j++) {
+      const c = theta[e * q + j];
+      if (c === 0) continue;
+      const zj = z[j];
+      for (let i = 0; i < L; i++) etaBuf[off + i] += c * zj[r0 + i];
+    }
+  }
+}
+
+/**
+ * Add one chunk's contribution to the packed information blocks: for each column pair (a <= b),
+ * t_i = z_ia z_ib over the chunk, then one dot product with each pair's weights v, four pairs per
+ * pass (t_i loaded once for four independent sums). Kept small and monomorphic so it optimizes well.
+ */
+function accumulateBlocks(
+  z: readonly Float64Array[],
+  r0: number,
+  L: number,
+  q: number,
+  pairs: number,
+  v: Float64Array,
+  prodBuf: Float64Array,
+  blocks: Float64Array,
+): void {
+  let idx = 0;
+  for (let a = 0; a < q; a++) {
+    const za = z[a];
+    for (let b = a; b < q; b++) {
+      const zb = z[b];
+      for (let i = 0; i < L; i++) prodBuf[i] = za[r0 + i] * zb[r0 + i];
+      let k = 0;
+      for (; k + 4 <= pairs; k += 4) {
+        const o0 = k * CHUNK;
+        const o1 = o0 + CHUNK;
+        const o2 = o1 + CHUNK;
+        const o3 = o2 + CHUNK;
+        let s0 = 0;
+        let s1 = 0;
+        let s2 = 0;
+        let s3 = 0;
+        for (let i = 0; i < L; i++) {
+          const t = prodBuf[i];
+          s0 += v[o0 + i] * t;
+          s1 += v[o1 + i] * t;
+          s2 += v[o2 + i] * t;
+          s3 += v[o3 + i] * t;
+        }
+        blocks[idx + k] += s0;
+        blocks[idx + k + 1] += s1;
+        blocks[idx + k + 2] += s2;
+        blocks[idx + k + 3] += s3;
+      }
+      for (; k < pairs; k++) {
+        const off = k * CHUNK;
+        let s = 0;
+        for (let i = 0; i < L; i++) s += v[off + i] * prodBuf[i];
+        blocks[idx + k] += s;
+      }
+      idx += pairs;
+    }
+  }
+}
+
 function newtonRaphson(
   prep: Prepared,
   K: number,
@@ -642,14 +736,91 @@ function newtonRaphson(
   total: number,
   opts: ResolvedOptions,
 ): NewtonResult {
+  const q = prep.z.length;
+  const E = equationClassIdx.length;
+  // Start at the null model: intercepts = log class proportions (centred columns make that exact).
+  const start = new Float64Array(E * q);
+  if (opts.intercept) {
+    const logRef = symmetric ? mean(Array.from(classWeight, (v) => Math.log(v / total))) : Math.log(classWeight[opts.reference] / total);
+    equationClassIdx.forEach((k, e) => (start[e * q] = Math.log(classWeight[k] / total) - logRef));
+  }
+  // Large data: warm start from a fit on a systematic subsample (every stride-th row), so the
+  // full-data iterations start close to the optimum. Any trouble there: start from the null model.
+  if (prep.n >= WARM_START_MIN_ROWS) {
+    const stride = Math.floor(prep.n / WARM_START_SUBSAMPLE_ROWS);
+    const sub = subsample(prep, stride);
+    const subTotal = sub.w.reduce((a, b) => a + b, 0);
+    const subOpts = { ...opts, tolerance: Math.max(opts.tolerance, WARM_START_TOLERANCE) };
+    const warm = runNewton(sub, K, equationClassIdx, symmetric, subTotal, subOpts, start, false);
+    if (warm.converged && warm.theta.every(Number.isFinite) && !(warm.finalStep && maxAbs(warm.finalStep) > 1)) {
+      return runNewton(prep, K, equationClassIdx, symmetric, total, opts, warm.theta, true);
+    }
+  }
+  return runNewton(prep, K, equationClassIdx, symmetric, total, opts, start, false);
+}
+
+/** Rows at which the warm start from a subsample begins to pay (below it a full fit is quick). */
+const WARM_START_MIN_ROWS = 40000;
+/** Target size of the warm-start subsample. */
+const WARM_START_SUBSAMPLE_ROWS = 5000;
+/** Convergence tolerance of the warm-start fit (its estimate only needs to be close). */
+const WARM_START_TOLERANCE = 1e-8;
+/**
+ * Once an iteration changes the deviance by less than this (relative), the parameters are close
+ * enough that the information barely changes from step to step: later steps reuse the last
+ * information matrix (simplified Newton, C. T. Kelley, Solving Nonlinear Equations with Newton's
+ * Method, SIAM 2003, §2.3.3), which costs one pass for the score instead of the O(n E^2 p^2)
+ * information. The covariance and the separation check always use the information at the estimate.
+ */
+const REUSE_INFORMATION_BELOW = 1e-6;
+/**
+ * Reuse is only worth it (and only used) when one information pass is expensive: n q^2 E^2 / 2 above
+ * this many multiply-adds. Smaller fits take plain Newton-Raphson steps throughout.
+ */
+const REUSE_MIN_WORK = 2e7;
+
+function maxAbs(a: Float64Array): number {
+  let m = 0;
+  for (const v of a) m = Math.max(m, Math.abs(v));
+  return m;
+}
+
+function subsample(prep: Prepared, stride: number): Prepared {
+  const m = Math.floor((prep.n - 1) / stride) + 1;
+  const pick = (a: Float64Array) => {
+    const out = new Float64Array(m);
+    for (let r = 0; r < m; r++) out[r] = a[r * stride];
+    return out;
+  };
+  const y = new Int32Array(m);
+  const rowIndex = new Int32Array(m);
+  for (let r = 0; r < m; r++) {
+    y[r] = prep.y[r * stride];
+    rowIndex[r] = prep.rowIndex[r * stride];
+  }
+  return { ...prep, n: m, rowIndex, y, w: pick(prep.w), z: prep.z.map(pick) };
+}
+
+function runNewton(
+  prep: Prepared,
+  K: number,
+  equationClassIdx: readonly number[],
+  symmetric: boolean,
+  total: number,
+  opts: ResolvedOptions,
+  start: Float64Array,
+  warmStarted: boolean,
+): NewtonResult {
   const kernel = new SoftmaxKernel(prep, K, equationClassIdx, symmetric);
   const { q, E } = kernel;
+  // Simplified Newton (reuse of the information) only for expensive passes; after a warm start the
+  // information at the start is already close to the one at the optimum.
+  const reuseAllowed = prep.n * q * q * kernel.pairs >= REUSE_MIN_WORK;
   const M = E * q;
   const d = prep.penaltyWeight;
-  const hasIntercept = opts.intercept;
   // Symmetric form: the likelihood is flat along "add c to every intercept"; the side condition
   // sum_k a_k = 0 is imposed through (coupling / 2) (sum_k a_k)^2, zero at the solution.
-  const coupling = symmetric && hasIntercept ? total / K : 0;
+  const coupling = symmetric && opts.intercept ? total / K : 0;
 
   const penaltyOf = (theta: Float64Array): number => {
     let s = 0;
@@ -662,73 +833,78 @@ function newtonRaphson(
   };
   const objectiveOf = (ll: number, theta: Float64Array) => -ll + penaltyOf(theta);
 
-  // Start at the null model: intercepts = log class proportions (centred columns make that exact).
-  const theta = new Float64Array(M);
-  if (hasIntercept) {
-    const logRef = symmetric ? mean(Array.from(classWeight, (v) => Math.log(v / total))) : Math.log(classWeight[opts.reference] / total);
-    equationClassIdx.forEach((k, e) => (theta[e * q] = Math.log(classWeight[k] / total) - logRef));
-  }
-  let logLik = kernel.evaluate(theta, true);
-  let objective = objectiveOf(logLik, theta);
   const info = new Float64Array(M * M);
   const scoreP = new Float64Array(M);
   const trial = new Float64Array(M);
-  let iterations = 0;
-  let converged = false;
-  let lastChange = NaN;
-  let lastStep: Float64Array | null = null;
+  const theta = Float64Array.from(start);
 
-  const penalizedSystem = (th: Float64Array): void => {
-    kernel.information(info);
+  /** Penalized score at th (from the kernel's last score); the information too when `withInfo`. */
+  const penalizedSystem = (th: Float64Array, withInfo: boolean): void => {
+    if (withInfo) kernel.information(info);
     let sumA = 0;
     if (coupling) for (let e = 0; e < E; e++) sumA += th[e * q];
     for (let e = 0; e < E; e++) {
       for (let j = 0; j < q; j++) {
         const r = e * q + j;
-        info[r * M + r] += d[j];
+        if (withInfo) info[r * M + r] += d[j];
         scoreP[r] = kernel.score[r] - d[j] * th[r];
       }
       if (coupling) {
         scoreP[e * q] -= coupling * sumA;
-        for (let f = 0; f < E; f++) info[e * q * M + f * q] += coupling;
+        if (withInfo) for (let f = 0; f < E; f++) info[e * q * M + f * q] += coupling;
       }
     }
   };
 
-  while (iterations < opts.maxIterations) {
-    penalizedSystem(theta);
-    const chol = cholesky(info, M);
-    if (!chol.ok) break;
+  let logLik = kernel.evaluate(theta, "information");
+  let objective = objectiveOf(logLik, theta);
+  penalizedSystem(theta, true);
+  let chol = cholesky(info, M);
+  let iterations = 0;
+  let converged = false;
+  let lastChange = NaN;
+  let lastStep: Float64Array | null = null;
+
+  while (iterations < opts.maxIterations && chol.ok) {
     const delta = choleskySolve(chol.factor, M, scoreP);
     // Step halving: shrink the step until the penalized deviance does not increase.
     let step = 1;
     let newLl = NaN;
     let newObj = NaN;
+    const slack = 1e-12 * (1 + Math.abs(objective));
     for (let h = 0; h <= MAX_HALVINGS; h++) {
       for (let r = 0; r < M; r++) trial[r] = theta[r] + step * delta[r];
-      newLl = kernel.evaluate(trial, false);
+      // The score comes along cheaply; it is the one needed next when the information is reused.
+      newLl = kernel.evaluate(trial, reuseAllowed ? "score" : "value");
       newObj = objectiveOf(newLl, trial);
-      if (Number.isFinite(newObj) && newObj <= objective + 1e-12 * (1 + Math.abs(objective))) break;
+      if (Number.isFinite(newObj) && newObj <= objective + slack) break;
       step /= 2;
     }
-    if (!Number.isFinite(newObj) || newObj > objective + 1e-12 * (1 + Math.abs(objective))) break;
+    if (!Number.isFinite(newObj) || newObj > objective + slack) break;
     iterations++;
     lastStep = new Float64Array(M);
     for (let r = 0; r < M; r++) lastStep[r] = step * delta[r];
     theta.set(trial);
-    const devOld = 2 * objective;
-    const devNew = 2 * newObj;
-    lastChange = Math.abs(devNew - devOld) / (0.1 + Math.abs(devNew));
-    logLik = kernel.evaluate(theta, true);
-    objective = objectiveOf(logLik, theta);
+    // Convergence rule of R's glm.fit on the (penalized) deviance.
+    lastChange = Math.abs(2 * newObj - 2 * objective) / (0.1 + Math.abs(2 * newObj));
+    logLik = newLl;
+    objective = newObj;
     if (lastChange < opts.tolerance) {
       converged = true;
       break;
     }
+    // A halved step means the quadratic model was poor: always refresh the information then.
+    const fresh = !reuseAllowed || step < 1 || (!warmStarted && lastChange >= REUSE_INFORMATION_BELOW);
+    // Not fresh: the kernel's score is the one of the accepted trial point (evaluated last).
+    if (fresh) kernel.evaluate(theta, "information");
+    penalizedSystem(theta, fresh);
+    if (fresh) chol = cholesky(info, M);
   }
   // Information, its inverse and one more Newton step at the final theta.
-  penalizedSystem(theta);
-  const chol = cholesky(info, M);
+  logLik = kernel.evaluate(theta, "information");
+  objective = objectiveOf(logLik, theta);
+  penalizedSystem(theta, true);
+  chol = cholesky(info, M);
   let inverseInformation: Float64Array | null = null;
   let finalStep: Float64Array | null = null;
   if (chol.ok) {
