@@ -8,6 +8,7 @@ import { quantile7, sortedCopy } from "../../../../src/engine/basis/common";
 import { applyNs, fitNs } from "../../../../src/engine/basis/ns";
 import { applyPoly, fitPoly } from "../../../../src/engine/basis/poly";
 import { applyZscore, fitZscore } from "../../../../src/engine/basis/zscore";
+import { applyProducts, fitProducts } from "../../../../src/engine/basis/products";
 
 /**
  * Agreement tolerance, relative to the largest magnitude in the compared column (floor 1): both
@@ -99,6 +100,22 @@ describe("z-scores agree with R's scale()", () => {
     test(`${c.label}: standardized values equal scale(x)`, () => {
       const s = fitZscore(column("x", c.x));
       expectColumnsClose(applyZscore(s, column("x", c.x)).columns, [c.scaled], "scaled");
+    });
+  }
+});
+
+describe("raw polynomials of several columns agree with R's polym(raw = TRUE)", () => {
+  for (const c of reference.polym) {
+    test(`${c.label}: every monomial R makes is made, with equal values (matched by exponents)`, () => {
+      const s = fitProducts([column("a", c.a), column("b", c.b)], { mode: "polynomial", degree: c.degree });
+      const out = applyProducts(s, [column("a", c.a), column("b", c.b)]);
+      expect(s.terms).toHaveLength(c.exponents.length);
+      c.exponents.forEach((e, j) => {
+        const [pa, pb] = e.split(".").map(Number);
+        const k = s.terms.findIndex((t) => t[0] === pa && t[1] === pb);
+        expect(k).toBeGreaterThanOrEqual(0);
+        expectColumnsClose([out.columns[k]], [c.columns[j]], `a^${pa} b^${pb}`);
+      });
     });
   }
 });
