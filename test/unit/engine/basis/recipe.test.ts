@@ -238,3 +238,39 @@ test("'*' skips a column with no value at all (a gap in the selection)", () => {
   ];
   expect(buildBasis("*: z", cols).block.names).toEqual(["z(a)"]);
 });
+
+describe("recipe robustness", () => {
+  test("property: any text either parses or fails with a catalogue error (never a crash)", () => {
+    const pieces = ["age", "income", ":", ";", ",", "*", "+", "(", ")", "[", "]", "=", "'", '"', " ", "\n", "ns", "levels", "ref", "3", "-1", "2%", "auto", "x y", "log"];
+    fc.assert(
+      fc.property(fc.oneof(fc.string({ maxLength: 40 }), fc.array(fc.constantFrom(...pieces), { maxLength: 14 }).map((a) => a.join(""))), (text) => {
+        try {
+          parseRecipe(text);
+        } catch (e) {
+          expect(e).toBeInstanceOf(OddsmithError);
+        }
+      }),
+      { seed: 7, numRuns: 3000 },
+    );
+  });
+
+  test("property: fitting any parsed recipe on odd data fails only with catalogue errors", () => {
+    const recipes = ["a: ns(3) + opoly(2) + bins(3) + rbf(2)", "a: log(shift=auto) + sqrt(shift=auto) + inv(shift=auto) + log1p(shift=auto)", "a, b: rbf(3) + poly(2) + pairs", "b: levels(pool=2) + auto; a*b", "*: auto", "a: z + minmax"];
+    const cell = fc.oneof(fc.constant(null), fc.integer({ min: -3, max: 3 }), fc.double({ min: -1e6, max: 1e6, noNaN: true }), fc.constantFrom("p", "q"));
+    fc.assert(
+      fc.property(fc.constantFrom(...recipes), fc.array(fc.tuple(cell, cell), { minLength: 1, maxLength: 8 }), (recipe, rows) => {
+        const cols: BasisColumn[] = [
+          { name: "a", values: rows.map((r) => r[0]) },
+          { name: "b", values: rows.map((r) => r[1]) },
+        ];
+        try {
+          const { block } = buildBasis(recipe, cols);
+          for (const c of block.columns) for (const v of c) expect(Number.isNaN(v) || Number.isFinite(v)).toBe(true);
+        } catch (e) {
+          expect(e).toBeInstanceOf(OddsmithError);
+        }
+      }),
+      { seed: 11, numRuns: 1500 },
+    );
+  });
+});
