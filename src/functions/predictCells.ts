@@ -20,15 +20,15 @@ import { OPT_THRESHOLD } from "./options";
 import type { CellValue } from "../engine/types";
 import { spill } from "./cellOutput";
 import { fittedModel, readModelOptions, requireUsableFit } from "./modelCell";
+import { checkPayload } from "./payload";
 
 type Output = "prob" | "class" | "margin";
 
 const FN: Record<Output, string> = { prob: "ODDS.PROB", class: "ODDS.CLASS", margin: "ODDS.MARGIN" };
 
-/** Rough count of the cells a call returns, for the payload estimate. */
-function outputCells(labels: CellValue[][] | null, newRows: CellValue[][] | null): number {
-  const rows = Array.isArray(newRows) ? newRows.length : Array.isArray(labels) ? labels.length : 1;
-  return rows * 4;
+/** Rows a call returns (one per scored row, header included), for the payload estimate. */
+function outputRows(labels: CellValue[][] | null, newRows: CellValue[][] | null): number {
+  return Array.isArray(newRows) ? newRows.length : Array.isArray(labels) ? labels.length : 1;
 }
 
 function scored(
@@ -39,8 +39,17 @@ function scored(
   options: CellValue[][] | null,
 ): RowScores {
   const opts = readModelOptions(FN[what], options);
-  const model = fittedModel(labels, predictors, opts, outputCells(labels, newRows), newRows ? [{ argument: "new_rows", cells: newRows }] : []);
+  const inputs = newRows ? [{ argument: "new_rows", cells: newRows }] : [];
+  // One output column per row for CLASS, MARGIN and two-class PROB...
+  const model = fittedModel(labels, predictors, opts, outputRows(labels, newRows), inputs);
   requireUsableFit(model);
+  if (what === "prob" && model.fit.classes.length > 2) {
+    // ...and one per class for multi-class PROB, known once the classes are.
+    checkPayload(
+      [{ argument: "labels", cells: labels }, { argument: "predictors", cells: predictors }, ...inputs],
+      outputRows(labels, newRows) * model.fit.classes.length,
+    );
+  }
   if (model.kind === "multiclass" && what !== "prob" && opts.threshold !== OPT_THRESHOLD.default) {
     // A threshold would be silently ignored with several classes: refuse it instead.
     throw problem("BAD_OPTION_VALUE", {

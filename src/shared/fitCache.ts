@@ -116,20 +116,23 @@ export class FitCache<T = unknown> {
 
 // ---- content keys -----------------------------------------------------------------------------------
 
+/** Scratch view to read a double's 64 bits as two 32-bit words (no string conversion per number). */
+const F64 = new Float64Array(1);
+const U32 = new Uint32Array(F64.buffer);
+
+/** Type tags, fed before each value: they keep 1, "1", TRUE, "" and a blank apart. */
+const TAG = { blank: 1, number: 2, true: 3, false: 4, text: 5, array: 6, typed: 7, object: 8, other: 9, end: 10 } as const;
+
 /**
- * Two independent 32-bit FNV-1a style streams (different offsets and primes; the second also mixes
- * the position) folded over the type-tagged text of every value: 64 bits of key.
+ * Two 32-bit streams folded over 32-bit units (FNV-1a style multiply-xor; the second stream uses
+ * another prime, mixes the position and shifts), 64 bits of key in all. Numbers enter as the two
+ * words of their IEEE-754 bits, text as UTF-16 code units, each value after a type tag.
  * FNV: G. Fowler, L. C. Noll, K.-P. Vo, "FNV hash", IETF draft-eastlake-fnv (2019).
  */
 class KeyHasher {
   private a = 0x811c9dc5;
   private b = 0x01000193 ^ 0x5bd1e995;
   private n = 0;
-
-  text(s: string): void {
-    for (let i = 0; i < s.length; i++) this.unit(s.charCodeAt(i));
-    this.unit(0xffff); // terminator: "ab","c" differs from "a","bc"
-  }
 
   private unit(c: number): void {
     this.a = Math.imul(this.a ^ c, 0x01000193);
@@ -138,35 +141,55 @@ class KeyHasher {
     this.n = (this.n + 1) | 0;
   }
 
+  private text(s: string): void {
+    this.unit(s.length);
+    for (let i = 0; i < s.length; i++) this.unit(s.charCodeAt(i));
+  }
+
+  private number(x: number): void {
+    F64[0] = x === 0 ? 0 : x; // -0 and 0 are the same cell value
+    this.unit(U32[0]);
+    this.unit(U32[1]);
+  }
+
   value(v: unknown): void {
-    // Type tags keep 1, "1", TRUE, "" and a blank apart.
-    if (v === null || v === undefined) this.text("_");
-    else if (typeof v === "number") this.text("n" + (Object.is(v, -0) ? "0" : String(v)));
-    else if (typeof v === "boolean") this.text(v ? "T" : "F");
-    else if (typeof v === "string") this.text("s" + v);
-    else if (Array.isArray(v)) {
-      this.text("[" + v.length);
-      for (const item of v) this.value(item);
-      this.text("]");
+    if (v === null || v === undefined) this.unit(TAG.blank);
+    else if (typeof v === "number") {
+      this.unit(TAG.number);
+      this.number(v);
+    } else if (typeof v === "boolean") this.unit(v ? TAG.true : TAG.false);
+    else if (typeof v === "string") {
+      this.unit(TAG.text);
+      this.text(v);
+    } else if (Array.isArray(v)) {
+      this.unit(TAG.array);
+      this.unit(v.length);
+      for (let i = 0; i < v.length; i++) this.value(v[i]);
     } else if (ArrayBuffer.isView(v) && "length" in v) {
       const arr = v as unknown as ArrayLike<number>;
-      this.text("v" + arr.length);
-      for (let i = 0; i < arr.length; i++) this.value(arr[i]);
+      this.unit(TAG.typed);
+      this.unit(arr.length);
+      for (let i = 0; i < arr.length; i++) this.number(arr[i]);
     } else if (typeof v === "object") {
       const obj = v as Record<string, unknown>;
-      const keys = Object.keys(obj).filter((k) => obj[k] !== undefined).sort();
-      this.text("{" + keys.length);
+      const keys = Object.keys(obj)
+        .filter((k) => obj[k] !== undefined)
+        .sort();
+      this.unit(TAG.object);
+      this.unit(keys.length);
       for (const k of keys) {
         this.text(k);
         this.value(obj[k]);
       }
-      this.text("}");
-    } else this.text("?" + String(v));
+    } else {
+      this.unit(TAG.other);
+      this.text(String(v));
+    }
   }
 
   digest(): string {
     const hex = (x: number) => (x >>> 0).toString(16).padStart(8, "0");
-    return hex(this.a) + hex(this.b) + ":" + this.n.toString(36);
+    return hex(this.a) + hex(this.b) + ":" + (this.n >>> 0).toString(36);
   }
 }
 
