@@ -46,7 +46,7 @@ import {
   penalizedNote,
   type Interval,
 } from "./inference";
-import { congruence, invertSymmetric, rankRevealingCholesky, weightedCrossProduct } from "./linalg";
+import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, weightedCrossProduct } from "./linalg";
 import { newtonLogistic, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
@@ -371,7 +371,8 @@ export function fitBinaryModel(
   }
 
   // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
-  const gram = weightedCrossProduct(z, a, n, new Float64Array(p * p));
+  const unitGram = weightedCrossProduct(z, a, n, new Float64Array(p * p));
+  const gram = Float64Array.from(unitGram);
   for (let j = 0; j < p; j++) gram[j * p + j] += penaltyAll[j];
   const rr = rankRevealingCholesky(gram, p, ALIAS_TOLERANCE);
   const aliased = new Array<boolean>(p).fill(false);
@@ -400,6 +401,7 @@ export function fitBinaryModel(
     maxIterations: opt.maxIterations,
     tolerance: opt.tolerance,
     keepHistory: !penalized && !opt.biasReduction,
+    unitGram: subMatrix(unitGram, p, kept),
   };
   const fit = newtonLogistic(problemK);
   const { logBinom, saturated } = constantTerms(data);

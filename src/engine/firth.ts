@@ -17,12 +17,13 @@
  * Statistics in Medicine 21 (2002).
  */
 
-import { choleskyInverse, type SquareMatrix } from "./linalg";
+import type { SquareMatrix } from "./linalg";
 
 /**
- * Hat values h_i = W_i x_i' I^{-1} x_i for every row, from the Cholesky factor of the information
- * I = X'WX (Heinze & Schemper 2002, eq. 2). Column-wise: with Q = I^{-1}, h = W .* sum_j x_j .*
- * (sum_l Q_jl x_l). Allocates only the k*k inverse; `work` (length rows) and `out` are reused.
+ * Hat values h_i = W_i x_i' I^{-1} x_i for every row, from the Cholesky factor L of the
+ * information I = X'WX (Heinze & Schemper 2002, eq. 2). With I = L L', x_i' I^{-1} x_i =
+ * |L^{-1} x_i|^2, formed column-wise in k(k+1)/2 passes over the rows. Allocates only the k*k
+ * inverse factor; `work` (length rows) and `out` are reused.
  * @param columns - the k columns of the design (columnar)
  * @param infoFactor - Cholesky factor L of I (k*k, lower)
  * @param fisherWeights - W_i per row
@@ -39,22 +40,35 @@ export function hatValues(
   out: Float64Array,
 ): Float64Array {
   const k = columns.length;
-  const q = choleskyInverse(infoFactor, k);
+  const linv = lowerInverse(infoFactor, k);
   out.fill(0, 0, rows);
   for (let j = 0; j < k; j++) {
-    // work = sum_l Q_jl x_l
+    // work = (L^{-1} X')_j = sum_{l <= j} Linv_jl x_l
     work.fill(0, 0, rows);
-    for (let l = 0; l < k; l++) {
-      const qjl = q[j * k + l];
-      if (qjl === 0) continue;
+    for (let l = 0; l <= j; l++) {
+      const v = linv[j * k + l];
+      if (v === 0) continue;
       const xl = columns[l];
-      for (let i = 0; i < rows; i++) work[i] += qjl * xl[i];
+      for (let i = 0; i < rows; i++) work[i] += v * xl[i];
     }
-    const xj = columns[j];
-    for (let i = 0; i < rows; i++) out[i] += xj[i] * work[i];
+    for (let i = 0; i < rows; i++) out[i] += work[i] * work[i];
   }
   for (let i = 0; i < rows; i++) out[i] *= fisherWeights[i];
   return out;
+}
+
+/** Inverse of a lower-triangular matrix (row-major k*k) by forward substitution. */
+function lowerInverse(l: SquareMatrix, k: number): SquareMatrix {
+  const inv = new Float64Array(k * k);
+  for (let j = 0; j < k; j++) {
+    inv[j * k + j] = 1 / l[j * k + j];
+    for (let i = j + 1; i < k; i++) {
+      let s = 0;
+      for (let m = j; m < i; m++) s -= l[i * k + m] * inv[m * k + j];
+      inv[i * k + j] = s / l[i * k + i];
+    }
+  }
+  return inv;
 }
 
 /**

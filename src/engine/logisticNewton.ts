@@ -15,8 +15,7 @@
  */
 
 import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
-import { cholesky, choleskySolve, subMatrix, type SquareMatrix } from "./linalg";
-import { logSigmoid, sigmoid } from "./numerics";
+import { cholesky, choleskySolve, subMatrix, weightedCrossProduct, type SquareMatrix } from "./linalg";
 
 /** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
 export interface NewtonProblem {
@@ -46,6 +45,12 @@ export interface NewtonProblem {
    * coefficients fixed at 0 is fitted (Heinze & Schemper 2002, penalized LR tests).
    */
   free?: Uint8Array | null;
+  /**
+   * Z' diag(w t) Z for these columns, when the caller has it already: if every starting
+   * probability is the same (constant offset), the first information is mu0 (1 - mu0) times it,
+   * which saves one pass of p(p+1)/2 dot products.
+   */
+  unitGram?: SquareMatrix | null;
 }
 
 /** What the Newton core returns. */
@@ -97,14 +102,25 @@ function evaluate(p: NewtonProblem, g: Float64Array, eta: Float64Array, mu: Floa
   const t = p.trials;
   const w = p.weights;
   let ll = 0;
+  // One exp and one log1p per row: with u = exp(-|e|) and L = log(1 + u) = log1pExp(-|e|),
+  // sigmoid(e) = 1/(1+u) or u/(1+u), log sigmoid(e) = -L or e - L, log sigmoid(-e) = -e - L or -L
+  // (the same stable forms as numerics.ts, inlined because this loop dominates the fit).
   for (let i = 0; i < n; i++) {
     const e = eta[i];
-    mu[i] = sigmoid(e);
+    const u = Math.exp(-Math.abs(e));
+    const L = Math.log1p(u);
     const yi = y[i];
     const fi = t[i] - yi;
     let li = 0;
-    if (yi !== 0) li += yi * logSigmoid(e);
-    if (fi !== 0) li += fi * logSigmoid(-e);
+    if (e >= 0) {
+      mu[i] = 1 / (1 + u);
+      if (yi !== 0) li -= yi * L;
+      if (fi !== 0) li -= fi * (e + L);
+    } else {
+      mu[i] = u / (1 + u);
+      if (yi !== 0) li += yi * (e - L);
+      if (fi !== 0) li -= fi * L;
+    }
     ll += w[i] * li;
   }
   return ll;
@@ -113,20 +129,8 @@ function evaluate(p: NewtonProblem, g: Float64Array, eta: Float64Array, mu: Floa
 /** I = Z'WZ (upper triangle then mirrored) with W_i = w_i t_i mu_i (1 - mu_i); fills fisherW. */
 function information(p: NewtonProblem, mu: Float64Array, fisherW: Float64Array, work: Float64Array, out: SquareMatrix): SquareMatrix {
   const n = p.rows;
-  const k = p.columns.length;
   for (let i = 0; i < n; i++) fisherW[i] = p.weights[i] * p.trials[i] * mu[i] * (1 - mu[i]);
-  for (let j = 0; j < k; j++) {
-    const zj = p.columns[j];
-    for (let i = 0; i < n; i++) work[i] = fisherW[i] * zj[i];
-    for (let l = j; l < k; l++) {
-      const zl = p.columns[l];
-      let s = 0;
-      for (let i = 0; i < n; i++) s += work[i] * zl[i];
-      out[j * k + l] = s;
-      out[l * k + j] = s;
-    }
-  }
-  return out;
+  return weightedCrossProduct(p.columns, fisherW, n, out, work);
 }
 
 function penaltyValue(p: NewtonProblem, g: Float64Array): number {
@@ -150,6 +154,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   const fisherW = new Float64Array(n);
   const work = new Float64Array(n);
   const hat = p.firth ? new Float64Array(n) : work;
+  const fisherWTry = p.firth ? new Float64Array(n) : work;
   const info = new Float64Array(k * k);
   const infoPen = new Float64Array(k * k);
   const score = new Float64Array(k);
@@ -174,7 +179,15 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
 
   // State at g: log-likelihood, objective (needs log det I for Firth), information and its factor.
   let ll = evaluate(p, g, eta, mu);
-  information(p, mu, fisherW, work, info);
+  let constantMu = !!p.unitGram;
+  for (let i = 1; constantMu && i < n; i++) if (mu[i] !== mu[0]) constantMu = false;
+  if (constantMu && n > 0) {
+    const v = mu[0] * (1 - mu[0]);
+    for (let i = 0; i < n; i++) fisherW[i] = p.weights[i] * p.trials[i] * v;
+    for (let j = 0; j < k * k; j++) info[j] = v * p.unitGram![j];
+  } else {
+    information(p, mu, fisherW, work, info);
+  }
   let factor = firthFactor(p, info, k);
   let singular = factor === null && p.firth;
   let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
@@ -235,7 +248,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
       llTry = evaluate(p, gTry, etaTry, muTry);
       objTry = -llTry + penaltyValue(p, gTry);
       if (p.firth) {
-        information(p, muTry, work, hat, infoTry);
+        information(p, muTry, fisherWTry, hat, infoTry);
         factorTry = firthFactor(p, infoTry, k);
         objTry = factorTry ? objTry - 0.5 * logDetFromCholesky(factorTry, k) : Infinity;
       }
@@ -263,13 +276,17 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
     const dev = 2 * objective;
     lastChange = Math.abs(dev - devOld) / (0.1 + Math.abs(dev));
     if (p.keepHistory) history.push(Float64Array.from(g));
-    information(p, mu, fisherW, work, info);
     if (p.firth) {
-      factor = firthFactor(p, info, k);
+      // The accepted candidate's information, weights and factor are already at hand.
+      info.set(infoTry);
+      fisherW.set(fisherWTry);
+      factor = factorTry;
       if (!factor) {
         singular = true;
         break;
       }
+    } else {
+      information(p, mu, fisherW, work, info);
     }
     // Firth's iteration uses I (not the Hessian of the penalized objective), so it converges only
     // linearly: a small change of the objective is not enough, the step must be negligible too.

@@ -11,6 +11,7 @@
  */
 
 import { criticalZ } from "./distributions";
+import { cholesky, subMatrix } from "./linalg";
 import { problem } from "./messages";
 import { logit, sigmoid } from "./numerics";
 import type { DesignMatrix, ModelFit, Prediction } from "./types";
@@ -88,35 +89,61 @@ export function predictBinary(fit: ModelFit, X: DesignMatrix, options: PredictBi
   const predicted = new Int32Array(n);
   const margin = new Float64Array(n);
   const linkMargin = new Float64Array(n);
-  const xt = new Float64Array(p); // one row's design vector, reused
+
+  // Columnar passes: a NaN anywhere in a used column or the offset propagates into eta.
+  const ones = fit.intercept ? new Float64Array(n).fill(1) : null;
+  const colOf = (j: number): Float64Array => (fit.intercept && j === 0 ? ones! : X.columns[j - off0]);
+  if (offset) eta.set(offset);
+  for (const j of active) {
+    const x = colOf(j);
+    const bj = b[j];
+    for (let i = 0; i < n; i++) eta[i] += bj * x[i];
+  }
+  // Var(eta_i) = x_i' V x_i = |L' x_i|^2 with V = L L' on the estimable terms (m(m+1)/2 passes).
+  etaSE.fill(NaN);
+  if (V) {
+    const m = active.length;
+    const sub = subMatrix(V, p, active);
+    const c = cholesky(sub, m, 0);
+    const se2 = new Float64Array(n);
+    const tmp = new Float64Array(n);
+    if (c.ok) {
+      const L = c.factor;
+      for (let j = 0; j < m; j++) {
+        tmp.fill(0);
+        for (let l = j; l < m; l++) {
+          const v = L[l * m + j];
+          if (v === 0) continue;
+          const x = colOf(active[l]);
+          for (let i = 0; i < n; i++) tmp[i] += v * x[i];
+        }
+        for (let i = 0; i < n; i++) se2[i] += tmp[i] * tmp[i];
+      }
+    } else {
+      // Not positive definite to rounding: the plain quadratic form (m^2 passes).
+      for (let j = 0; j < m; j++) {
+        tmp.fill(0);
+        for (let l = 0; l < m; l++) {
+          const v = sub[j * m + l];
+          const x = colOf(active[l]);
+          for (let i = 0; i < n; i++) tmp[i] += v * x[i];
+        }
+        const xj = colOf(active[j]);
+        for (let i = 0; i < n; i++) se2[i] += xj[i] * tmp[i];
+      }
+    }
+    for (let i = 0; i < n; i++) etaSE[i] = Math.sqrt(Math.max(se2[i], 0));
+  }
 
   for (let i = 0; i < n; i++) {
-    let e = offset ? offset[i] : 0;
-    let bad = Number.isNaN(e);
-    for (const j of active) {
-      const xv = fit.intercept && j === 0 ? 1 : X.columns[j - off0][i];
-      xt[j] = xv;
-      if (Number.isNaN(xv)) bad = true;
-      e += b[j] * xv;
-    }
-    if (bad || Number.isNaN(e)) {
+    const e = eta[i];
+    if (Number.isNaN(e)) {
       prob0[i] = prob1[i] = eta[i] = etaSE[i] = lower[i] = upper[i] = margin[i] = linkMargin[i] = NaN;
       predicted[i] = -1;
       continue;
     }
-    let se = NaN;
-    if (V) {
-      let s = 0;
-      for (const j of active) {
-        let r = 0;
-        for (const l of active) r += V[j * p + l] * xt[l];
-        s += xt[j] * r;
-      }
-      se = Math.sqrt(Math.max(s, 0));
-    }
+    const se = etaSE[i];
     const pr = sigmoid(e);
-    eta[i] = e;
-    etaSE[i] = se;
     prob1[i] = pr;
     prob0[i] = sigmoid(-e);
     lower[i] = sigmoid(e - z * se);
