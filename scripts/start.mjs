@@ -151,9 +151,10 @@ function printAddresses(base) {
   say("Preview workbench (no Excel needed): " + base + "/preview.html");
   say("Task pane page (inside Excel):        " + base + "/taskpane.html");
   say("");
-  say("Sideload into Excel (the manifest points at " + base + "/):");
-  say("  Excel on the web: open a workbook > Home > Add-ins > More Add-ins > My Add-ins >");
-  say("    Upload My Add-in > choose manifest/manifest.xml > Upload.");
+  say("Sideload into Excel (manifest/manifest.xml points at https://localhost:3000/):");
+  if (port !== 3000) say(`  Note: this server uses port ${port}; Excel will look on port 3000 unless you edit the manifest.`);
+  say("  Excel on the web: open a workbook > Home > Add-ins > More Add-ins (or Get Add-ins) >");
+  say("    My Add-ins > Upload My Add-in > choose manifest/manifest.xml > Upload.");
   say("  Excel on Windows: put manifest/manifest.xml in a shared network folder, add that folder under");
   say("    File > Options > Trust Center > Trust Center Settings > Trusted Add-in Catalogs (tick");
   say("    'Show in Menu'), restart Excel, then Home > Add-ins > More Add-ins > Shared Folder.");

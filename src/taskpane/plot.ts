@@ -89,7 +89,9 @@ export function renderPlot(container: HTMLElement, model: PlotModel): SVGSVGElem
   clip.append(svg("rect", { x: MARGIN.left, y: MARGIN.top, width: iw, height: ih }));
   defs.append(clip);
   root.append(defs);
-  root.append(svg("rect", { x: MARGIN.left, y: MARGIN.top, width: iw, height: ih, class: "osm-plot-frame" }));
+  // Two classes: the frame carries the first class's light tint; the second class's region is drawn over it.
+  const frameClass = model.kind === "binary" ? "osm-plot-frame is-binary" : "osm-plot-frame";
+  root.append(svg("rect", { x: MARGIN.left, y: MARGIN.top, width: iw, height: ih, class: frameClass }));
 
   // Decision regions and boundary.
   const regions = svg("g", { "clip-path": `url(#${clipId})`, class: "osm-plot-regions" });
