@@ -446,3 +446,42 @@ describe("L2 (ridge) penalty vs scikit-learn LogisticRegression(C = 1/lambda)", 
     expect(f.table.every((r) => Number.isFinite(r.estimate))).toBe(true);
   });
 });
+
+// ---------------------------------------------------------------------------------------------
+describe("small models and row bookkeeping", () => {
+  test("an intercept-only model with an offset matches R glm(y ~ 1, offset = o); LR test has df 0", () => {
+    const o = Float64Array.from(wd.map((r: any) => r.o));
+    const fit = fitBinaryModel({ rows: wdY.length, columns: [], names: [] }, wdY, { offset: o });
+    const r = ref.weighted.interceptOnlyOffset; // jsonlite wrote the length-1 vectors as scalars
+    expectClose(col(fit, "estimate"), [r.coefficients], R_TOL, "coef");
+    expectClose(col(fit, "standardError"), [r.standardErrors], R_TOL, "se");
+    expectScalarClose(fit.deviance, r.deviance, R_TOL, "deviance");
+    expectScalarClose(fit.nullDeviance, fit.deviance, IDENTITY_TOL, "null = model");
+    expect(fit.lrTest.df).toBe(0);
+    expect(fit.lrTest.p).toBeNaN();
+  });
+
+  test("a model with no intercept and no columns scores the offset alone", () => {
+    const o = Float64Array.from(wd.map((r: any) => r.o));
+    const fit = fitBinaryModel({ rows: wdY.length, columns: [], names: [] }, wdY, { offset: o, intercept: false });
+    expect(fit.table).toEqual([]);
+    expect(fit.parameters).toBe(0);
+    let ll = 0;
+    for (let i = 0; i < wdY.length; i++) {
+      const p = 1 / (1 + Math.exp(-o[i]));
+      ll += wdY[i] ? Math.log(p) : Math.log(1 - p);
+    }
+    expectScalarClose(fit.logLikelihood, ll, 1e-12, "logLik");
+  });
+
+  test("row numbers in diagnostics refer to the caller's rows even when earlier rows were skipped", () => {
+    // Rows 0 and 2 are missing; the separated rows are the caller's 3..8.
+    const x = [NaN, 1, NaN, 2, 3, 4, 5, 6, 7];
+    const y = [0, 0, 1, 0, 0, 1, 1, 1, 1];
+    const fit = fitBinaryModel(design({ x }), Float64Array.from(y));
+    const d = fit.diagnostics.find((v) => v.code === "SEPARATION_COMPLETE")!;
+    expect(d.rows).toEqual([1, 3, 4, 5, 6, 7, 8]);
+    expect(d.message).toContain("perfectly separated");
+    expect(fit.diagnostics.find((v) => v.code === "ROWS_SKIPPED")!.message).toContain("2 rows were skipped");
+  });
+});
