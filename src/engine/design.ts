@@ -182,7 +182,9 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
       names.push(c.name);
       continue;
     }
-    const enc = encodeCategory(c, inputRows, minCount, refs[c.name] ?? null, notes);
+    // Own keys only: a column named "constructor" or "toString" must not pick up Object.prototype members.
+    const wanted = Object.prototype.hasOwnProperty.call(refs, c.name) ? refs[c.name] : null;
+    const enc = encodeCategory(c, inputRows, minCount, wanted ?? null, notes);
     columns.push(enc);
     const values = c.values as string[];
     const levelIndex = levelLookup(enc);
