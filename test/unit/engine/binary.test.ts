@@ -1,4 +1,6 @@
+import fc from "fast-check";
 import { fitBinaryModel } from "../../../src/engine/binary";
+import { predictBinary } from "../../../src/engine/predictBinary";
 import { OddsmithError } from "../../../src/engine/messages";
 import type { ModelFit } from "../../../src/engine/types";
 import { design, expectClose, expectScalarClose, loadFixture } from "./binaryHelpers";
@@ -483,5 +485,81 @@ describe("small models and row bookkeeping", () => {
     expect(d.rows).toEqual([1, 3, 4, 5, 6, 7, 8]);
     expect(d.message).toContain("perfectly separated");
     expect(fit.diagnostics.find((v) => v.code === "ROWS_SKIPPED")!.message).toContain("2 rows were skipped");
+  });
+});
+
+// ---------------------------------------------------------------------------------------------
+/** Seeded so a failure reproduces; 40 data sets keep the suite fast. */
+const PROPERTY_RUNS = { numRuns: 40, seed: 20261201 };
+
+const dataset = fc
+  .record({
+    n: fc.integer({ min: 12, max: 40 }),
+    p: fc.integer({ min: 1, max: 3 }),
+    seed: fc.integer({ min: 1, max: 1_000_000 }),
+  })
+  .map(({ n, p, seed }) => {
+    let s = seed;
+    const rnd = () => ((s = (s * 16807) % 2147483647) / 2147483647);
+    const cols: Record<string, number[]> = {};
+    for (let j = 0; j < p; j++) cols[`x${j + 1}`] = Array.from({ length: n }, () => Math.round((rnd() * 6 - 3) * 100) / 100);
+    // Labels with noise so most data sets overlap; force both classes.
+    const y = Array.from({ length: n }, (_, i) => (rnd() < 1 / (1 + Math.exp(-cols.x1[i])) ? 1 : 0));
+    y[0] = 0;
+    y[1] = 1;
+    return { X: design(cols), y: Float64Array.from(y), n };
+  });
+
+describe("properties on random data (fast-check)", () => {
+  test("probabilities lie in [0, 1] and the two class probabilities sum to 1", () => {
+    fc.assert(
+      fc.property(dataset, ({ X, y }) => {
+        const fit = fitBinaryModel(X, y);
+        const pr = predictBinary(fit, X);
+        for (let i = 0; i < X.rows; i++) {
+          const p1 = pr.probabilities[1][i];
+          if (Number.isNaN(p1)) continue; // a separated fit has no estimate to score with
+          if (!(p1 >= 0 && p1 <= 1 && Math.abs(p1 + pr.probabilities[0][i] - 1) < 1e-15)) return false;
+        }
+        return true;
+      }),
+      PROPERTY_RUNS,
+    );
+  });
+
+  test("reversing the row order leaves coefficients and standard errors unchanged", () => {
+    fc.assert(
+      fc.property(dataset, ({ X, y }) => {
+        const fit = fitBinaryModel(X, y);
+        if (fit.diagnostics.some((d) => d.severity === "error")) return true;
+        const rev = fitBinaryModel(
+          { rows: X.rows, columns: X.columns.map((c) => Float64Array.from(c).reverse()), names: X.names },
+          Float64Array.from(y).reverse(),
+        );
+        expectClose(col(rev, "estimate"), col(fit, "estimate"), 1e-8, "coef", 1e-6);
+        expectClose(col(rev, "standardError"), col(fit, "standardError"), 1e-8, "se", 1e-6);
+        return true;
+      }),
+      PROPERTY_RUNS,
+    );
+  });
+
+  test("weight 2 on every row equals every row twice, and halves the variances", () => {
+    fc.assert(
+      fc.property(dataset, ({ X, y, n }) => {
+        const fit = fitBinaryModel(X, y, { weights: new Float64Array(n).fill(2) });
+        if (fit.diagnostics.some((d) => d.severity === "error")) return true;
+        const twice = fitBinaryModel(
+          { rows: 2 * n, columns: X.columns.map((c) => Float64Array.from([...c, ...c])), names: X.names },
+          Float64Array.from([...y, ...y]),
+        );
+        const once = fitBinaryModel(X, y);
+        expectClose(col(twice, "estimate"), col(fit, "estimate"), 1e-8, "coef", 1e-6);
+        expectClose(col(twice, "standardError"), col(fit, "standardError"), 1e-8, "se", 1e-6);
+        expectClose(col(fit, "standardError").map((v) => v * Math.SQRT2), col(once, "standardError"), 1e-7, "se ratio", 1e-6);
+        return true;
+      }),
+      PROPERTY_RUNS,
+    );
   });
 });
