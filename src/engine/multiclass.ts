@@ -292,7 +292,8 @@ export function fitMulticlassModel(
       const sep = findSeparation(prep, K, equationClassIdx, d, classes, terms);
       if (sep) {
         diagnostics.push(sep);
-        return failedFit(shell, aliased, diagnostics, newton.iterations, newton.converged);
+        // As in the binary engine, the log-likelihood keeps the supremum the iterations approached.
+        return failedFit(shell, aliased, diagnostics, newton.iterations, false, newton.logLik);
       }
     }
   }
@@ -323,6 +324,7 @@ export function fitMulticlassModel(
   const nullParameters = intercept ? E : 0;
   const logLik = newton.logLik;
   const ic = informationCriteria(logLik, parameters, observations);
+  const lrTest = likelihoodRatioTest(logLik, shell.nullLogLikelihood, parameters - nullParameters);
   return {
     kind: "multiclass",
     classes: [...classes],
@@ -344,13 +346,12 @@ export function fitMulticlassModel(
     nullLogLikelihood: shell.nullLogLikelihood,
     deviance: -2 * logLik,
     nullDeviance: -2 * shell.nullLogLikelihood,
-    // Information criteria and the LR test assume an unpenalized maximum: NaN for penalized fits.
-    aic: penalized ? NaN : ic.aic,
-    bic: penalized ? NaN : ic.bic,
+    // Penalized fits (as in the binary engine): AIC/BIC with the coefficient count and the LR
+    // statistic are descriptive only; the LR p-value is NaN (no chi-square reference distribution).
+    aic: ic.aic,
+    bic: ic.bic,
     pseudoR2: mcFaddenR2(logLik, shell.nullLogLikelihood),
-    lrTest: penalized
-      ? { statistic: NaN, df: parameters - nullParameters, p: NaN }
-      : likelihoodRatioTest(logLik, shell.nullLogLikelihood, parameters - nullParameters),
+    lrTest: penalized ? { ...lrTest, p: NaN } : lrTest,
     parameters,
     rowsUsed: used.length,
     observations,
@@ -976,27 +977,32 @@ function findSeparation(
   }
   if (!(maxMargin >= MIN_DIVERGING_MARGIN) || minMargin < -MARGIN_SHARE * maxMargin) return null;
   const strict = MARGIN_SHARE * maxMargin;
-  const separatedRows: number[] = [];
-  const separatedClasses = new Set<number>();
-  // pairSeparated[a*K+b]: every row of class a has margin > strict against class b.
+  // A row is involved when its probability of some other class k is driven to 0 along d
+  // (margin against k strictly positive); pairSide[a*K+b] = every row of a is strictly past b.
+  const involvedRows: number[] = [];
+  const rowClasses = new Set<number>();
+  const fromClasses = new Set<number>();
   const pairSide = new Uint8Array(K * K).fill(1);
   const classSeen = new Uint8Array(K);
   for (let i = 0; i < n; i++) {
     const c = y[i];
     classSeen[c] = 1;
-    let all = true;
+    let any = false;
     for (let k = 0; k < K; k++) {
       if (k === c) continue;
-      if (margins[i * K + k] > strict) continue;
-      all = false;
-      pairSide[c * K + k] = 0;
+      if (margins[i * K + k] > strict) {
+        any = true;
+        fromClasses.add(k);
+      } else {
+        pairSide[c * K + k] = 0;
+      }
     }
-    if (all) {
-      separatedRows.push(prep.rowIndex[i]);
-      separatedClasses.add(c);
+    if (any) {
+      involvedRows.push(prep.rowIndex[i]);
+      rowClasses.add(c);
     }
   }
-  if (separatedRows.length === 0) return null;
+  if (involvedRows.length === 0) return null;
   const pairSeparated = (a: number, b: number) => classSeen[a] && classSeen[b] && pairSide[a * K + b] === 1 && pairSide[b * K + a] === 1;
   const wholeClasses: number[] = [];
   for (let a = 0; a < K; a++) {
@@ -1004,8 +1010,11 @@ function findSeparation(
     for (let b = 0; b < K && all; b++) if (b !== a && classSeen[b] && !pairSeparated(a, b)) all = false;
     if (all) wholeClasses.push(a);
   }
+  const quoted = (ks: Iterable<number>) => listNames(Array.from(ks).sort((a, b) => a - b).map((k) => classes[k]), K);
   const parts: string[] = [];
-  for (const a of wholeClasses) parts.push(`class "${classes[a]}" (from every other class)`);
+  const seenCount = classSeen.reduce((t, v) => t + v, 0);
+  if (wholeClasses.length === seenCount) parts.push(`every class (${quoted(wholeClasses)}) from every other`);
+  else for (const a of wholeClasses) parts.push(`class "${classes[a]}" (from every other class)`);
   for (let a = 0; a < K; a++) {
     for (let b = a + 1; b < K; b++) {
       if (wholeClasses.includes(a) || wholeClasses.includes(b)) continue;
@@ -1013,9 +1022,8 @@ function findSeparation(
     }
   }
   if (parts.length === 0) {
-    // Only some rows are on their own side (quasi-complete separation): name their classes.
-    const cls = Array.from(separatedClasses).sort((a, b) => a - b);
-    parts.push(`some rows of ${cls.map((k) => `"${classes[k]}"`).join(", ")}`);
+    // Quasi-complete separation: some rows (not whole classes) are pushed away from some classes.
+    parts.push(`some rows of ${quoted(rowClasses)} (from ${quoted(fromClasses)})`);
   }
   // Columns of the direction (standardized scale), intercept excluded.
   let maxComp = 0;
@@ -1032,18 +1040,18 @@ function findSeparation(
     if (terms[prep.termOfColumn[j]] === INTERCEPT_TERM) continue;
     if (comp[j] >= DIRECTION_COLUMN_SHARE * maxComp && comp[j] > 0) columns.push(terms[prep.termOfColumn[j]]);
   }
-  const shown = separatedRows.slice(0, ROWS_IN_MESSAGE).map((r) => r + 1).join(", ");
+  const shown = involvedRows.slice(0, ROWS_IN_MESSAGE).map((r) => r + 1).join(", ");
   return {
     code: "CLASSES_SEPARATED",
     severity: "error",
     message: formatMessage("CLASSES_SEPARATED", {
       separated: joinParts(parts),
       columns: columns.length > 0 ? listNames(columns) : "the intercept alone",
-      count: separatedRows.length,
-      rows: separatedRows.length > ROWS_IN_MESSAGE ? `${shown}, ...` : shown,
+      count: involvedRows.length,
+      rows: involvedRows.length > ROWS_IN_MESSAGE ? `${shown}, ...` : shown,
     }),
     columns,
-    rows: separatedRows,
+    rows: involvedRows,
   };
 }
 
@@ -1147,7 +1155,14 @@ interface FitShell {
 }
 
 /** A result without estimates: every number NaN, the reason in `diagnostics` (severity "error"). */
-function failedFit(shell: FitShell, aliased: boolean[], diagnostics: Diagnostic[], iterations: number, converged: boolean): ModelFit {
+function failedFit(
+  shell: FitShell,
+  aliased: boolean[],
+  diagnostics: Diagnostic[],
+  iterations: number,
+  converged: boolean,
+  logLikelihood = NaN,
+): ModelFit {
   const p = shell.terms.length;
   const E = shell.equationClasses.length;
   const coefficients = Array.from({ length: E }, () => new Float64Array(p).fill(NaN));
@@ -1177,9 +1192,9 @@ function failedFit(shell: FitShell, aliased: boolean[], diagnostics: Diagnostic[
     penalized: shell.penalized,
     penalty: shell.penalty,
     biasReduced: false,
-    logLikelihood: NaN,
+    logLikelihood,
     nullLogLikelihood: shell.nullLogLikelihood,
-    deviance: NaN,
+    deviance: -2 * logLikelihood,
     nullDeviance: -2 * shell.nullLogLikelihood,
     aic: NaN,
     bic: NaN,
