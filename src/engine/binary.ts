@@ -50,7 +50,7 @@ import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, weighted
 import { newtonLogistic, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
-import { profileIntervals } from "./profile";
+import { PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
 import { separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
 import type { BinaryFitOptions, DesignMatrix, Diagnostic, ModelFit, Severity } from "./types";
 
@@ -538,7 +538,7 @@ export function fitBinaryModel(
         intervals[kept[t]] = { lower: prof[t].lower, upper: prof[t].upper };
         for (const side of prof[t].open) {
           diagnostics.push(
-            diag("PROFILE_INTERVAL_OPEN", "warning", { term: terms[kept[t]], side, limit: "64 Wald half-widths of the estimate" }, { columns: [terms[kept[t]]] }),
+            diag("PROFILE_INTERVAL_OPEN", "warning", { term: terms[kept[t]], side, limit: `${PROFILE_SEARCH_LIMIT} Wald half-widths of the estimate` }, { columns: [terms[kept[t]]] }),
           );
         }
       }

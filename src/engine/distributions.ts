@@ -116,7 +116,7 @@ export function normalCdf(x: number): number {
   return x < 0 ? q : 1 - q;
 }
 
-/** Standard normal density. */
+/** Standard normal density phi(x) = exp(-x^2/2) / sqrt(2 pi) (Abramowitz & Stegun 26.2.1). */
 export function normalPdf(x: number): number {
   return Math.exp(-0.5 * x * x) / Math.sqrt(2 * Math.PI);
 }

@@ -91,7 +91,7 @@ export function addFirthScoreAdjustment(
   return score;
 }
 
-/** log det I from its Cholesky factor: 2 sum log L_jj (the Firth penalty is half of it). */
+/** log det I from its Cholesky factor: 2 sum log L_jj (the Firth penalty is half of it; Firth 1993, eq. 4). */
 export function logDetFromCholesky(factor: SquareMatrix, k: number): number {
   let s = 0;
   for (let j = 0; j < k; j++) s += Math.log(factor[j * k + j]);

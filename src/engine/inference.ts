@@ -13,7 +13,7 @@ import { chiSquareSurvival, criticalZ, twoSidedPFromZ } from "./distributions";
 import { formatMessage } from "./messages";
 import type { CoefficientRow, Diagnostic, LikelihoodRatioTest } from "./types";
 
-/** Name of the intercept term in every table. */
+/** Name of the intercept term in every table (a label, not a method). */
 export const INTERCEPT_TERM = "(intercept)";
 
 /** A Wald interval for one coefficient. */
@@ -157,7 +157,10 @@ export function informationCriteria(logLikelihood: number, parameters: number, o
   };
 }
 
-/** The note every penalized fit carries (no classical p-values). */
+/**
+ * The note every penalized fit carries: shrunken estimates have no classical standard errors or
+ * p-values (Hastie, Tibshirani & Friedman, The Elements of Statistical Learning, 2nd ed., §3.4.1).
+ */
 export function penalizedNote(penalty: number): Diagnostic {
   return {
     code: "PENALIZED_NO_P_VALUES",
@@ -166,7 +169,7 @@ export function penalizedNote(penalty: number): Diagnostic {
   };
 }
 
-/** Standard errors sqrt(diag V) of a row-major m*m covariance (NaN for negative variances). */
+/** Standard errors sqrt(diag V) of a row-major m*m covariance (NaN for negative variances); Agresti (2013) §4.2.1. */
 export function standardErrors(covariance: Float64Array, m: number): Float64Array {
   const se = new Float64Array(m);
   for (let j = 0; j < m; j++) {

@@ -12,7 +12,10 @@
 /** A symmetric (or triangular) matrix stored row-major in a Float64Array of length n*n. */
 export type SquareMatrix = Float64Array;
 
-/** Copy the upper triangle onto the lower one, in place: A[j][i] = A[i][j] for i < j. */
+/**
+ * Copy the upper triangle onto the lower one, in place: A[j][i] = A[i][j] for i < j. Symmetric
+ * storage convention of Golub & Van Loan (2013) §1.2.7; it keeps products exactly symmetric.
+ */
 export function mirrorUpper(a: SquareMatrix, n: number): SquareMatrix {
   for (let i = 0; i < n; i++) {
     for (let j = i + 1; j < n; j++) a[j * n + i] = a[i * n + j];
@@ -88,6 +91,7 @@ export function weightedCrossProduct(
 
 /**
  * Weighted cross-product X'Wv of columnar data with one vector; writes into `out` (length p).
+ * (The score vector of a GLM, McCullagh & Nelder 1989 §2.5.)
  */
 export function weightedCrossVector(
   columns: readonly Float64Array[],
@@ -151,8 +155,8 @@ export function cholesky(a: SquareMatrix, n: number, relTol = CHOLESKY_RELATIVE_
 }
 
 /**
- * Solve A x = b given the Cholesky factor L of A (forward then back substitution).
- * Writes into `out` when given (may alias b) and returns it.
+ * Solve A x = b given the Cholesky factor L of A (forward then back substitution,
+ * Golub & Van Loan 2013 §3.1 and §4.2). Writes into `out` when given (may alias b) and returns it.
  */
 export function choleskySolve(l: SquareMatrix, n: number, b: ArrayLike<number>, out = new Float64Array(n)): Float64Array {
   for (let i = 0; i < n; i++) {
@@ -170,7 +174,7 @@ export function choleskySolve(l: SquareMatrix, n: number, b: ArrayLike<number>, 
 
 /**
  * Inverse of A from its Cholesky factor: A^{-1} = L^{-T} L^{-1}, exactly symmetric (upper triangle
- * computed, then mirrored).
+ * computed, then mirrored). Reference: Golub & Van Loan (2013) §3.1.1 (triangular inverse), §4.2.
  */
 export function choleskyInverse(l: SquareMatrix, n: number): SquareMatrix {
   // Invert L in place into linv (lower triangular).
@@ -196,8 +200,8 @@ export function choleskyInverse(l: SquareMatrix, n: number): SquareMatrix {
 }
 
 /**
- * Solve the symmetric positive-definite system A x = b; null when A is not positive definite at the
- * given relative tolerance.
+ * Solve the symmetric positive-definite system A x = b by Cholesky (Golub & Van Loan 2013 §4.2);
+ * null when A is not positive definite at the given relative tolerance.
  */
 export function solveSymmetric(a: SquareMatrix, n: number, b: ArrayLike<number>, relTol = CHOLESKY_RELATIVE_TOLERANCE): Float64Array | null {
   const c = cholesky(a, n, relTol);
@@ -205,8 +209,8 @@ export function solveSymmetric(a: SquareMatrix, n: number, b: ArrayLike<number>,
 }
 
 /**
- * Inverse of a symmetric positive-definite matrix; null when it is not positive definite at the
- * given relative tolerance.
+ * Inverse of a symmetric positive-definite matrix by Cholesky (Golub & Van Loan 2013 §4.2); null
+ * when it is not positive definite at the given relative tolerance.
  */
 export function invertSymmetric(a: SquareMatrix, n: number, relTol = CHOLESKY_RELATIVE_TOLERANCE): SquareMatrix | null {
   const c = cholesky(a, n, relTol);
@@ -278,7 +282,7 @@ export function rankRevealingCholesky(a: SquareMatrix, n: number, tol = RANK_TOL
   return { rank: kept.length, independent: kept, dependent, residualShare };
 }
 
-/** Take the sub-matrix of A (n*n) on the given index set. */
+/** Take the principal (or general) sub-matrix of A (n*n) on the given index set (Golub & Van Loan 2013 §1.1.1 notation A(idx, idx)). */
 export function subMatrix(a: SquareMatrix, n: number, idx: readonly number[]): SquareMatrix {
   const m = idx.length;
   const out = new Float64Array(m * m);
@@ -288,7 +292,7 @@ export function subMatrix(a: SquareMatrix, n: number, idx: readonly number[]): S
   return out;
 }
 
-/** Matrix-vector product y = A x for a square row-major A. */
+/** Matrix-vector product y = A x for a square row-major A (Golub & Van Loan 2013 §1.1.3). */
 export function multiplyVector(a: SquareMatrix, n: number, x: ArrayLike<number>, out = new Float64Array(n)): Float64Array {
   for (let i = 0; i < n; i++) {
     let s = 0;
@@ -298,7 +302,7 @@ export function multiplyVector(a: SquareMatrix, n: number, x: ArrayLike<number>,
   return out;
 }
 
-/** Quadratic form x' A x for a square row-major A. */
+/** Quadratic form x' A x for a square row-major A (e.g. a variance x' V x; Golub & Van Loan 2013 §1.1). */
 export function quadraticForm(a: SquareMatrix, n: number, x: ArrayLike<number>): number {
   let s = 0;
   for (let i = 0; i < n; i++) {

@@ -143,6 +143,8 @@ function penaltyValue(p: NewtonProblem, g: Float64Array): number {
  * Minimize the (penalized / bias-reduced) negative log-likelihood by Newton-Raphson with step
  * halving. Never throws: a singular information matrix ends the loop with singular = true.
  * @see file comment for the objective, step and convergence rule.
+ * Reference: McCullagh & Nelder (1989) §2.5 (Fisher scoring = Newton for the canonical logit link);
+ * Firth (1993) for the bias-reduced objective.
  */
 export function newtonLogistic(p: NewtonProblem): NewtonResult {
   const n = p.rows;
