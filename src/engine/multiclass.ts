@@ -1021,9 +1021,24 @@ function findSeparation(
       if (pairSeparated(a, b)) parts.push(`classes "${classes[a]}" and "${classes[b]}"`);
     }
   }
+  // Rows named: those of the separated classes (whole classes and separated pairs); without any,
+  // (quasi-complete separation) the rows pushed away from some class.
+  const namedClasses = new Set<number>(wholeClasses);
+  for (let a = 0; a < K; a++) {
+    for (let b = a + 1; b < K; b++) {
+      if (!wholeClasses.includes(a) && !wholeClasses.includes(b) && pairSeparated(a, b)) {
+        namedClasses.add(a);
+        namedClasses.add(b);
+      }
+    }
+  }
+  let namedRows = involvedRows;
   if (parts.length === 0) {
     // Quasi-complete separation: some rows (not whole classes) are pushed away from some classes.
     parts.push(`some rows of ${quoted(rowClasses)} (from ${quoted(fromClasses)})`);
+  } else {
+    namedRows = [];
+    for (let i = 0; i < n; i++) if (namedClasses.has(y[i])) namedRows.push(prep.rowIndex[i]);
   }
   // Columns of the direction (standardized scale), intercept excluded.
   let maxComp = 0;
@@ -1040,18 +1055,18 @@ function findSeparation(
     if (terms[prep.termOfColumn[j]] === INTERCEPT_TERM) continue;
     if (comp[j] >= DIRECTION_COLUMN_SHARE * maxComp && comp[j] > 0) columns.push(terms[prep.termOfColumn[j]]);
   }
-  const shown = involvedRows.slice(0, ROWS_IN_MESSAGE).map((r) => r + 1).join(", ");
+  const shown = namedRows.slice(0, ROWS_IN_MESSAGE).map((r) => r + 1).join(", ");
   return {
     code: "CLASSES_SEPARATED",
     severity: "error",
     message: formatMessage("CLASSES_SEPARATED", {
       separated: joinParts(parts),
       columns: columns.length > 0 ? listNames(columns) : "the intercept alone",
-      count: involvedRows.length,
-      rows: involvedRows.length > ROWS_IN_MESSAGE ? `${shown}, ...` : shown,
+      count: namedRows.length,
+      rows: namedRows.length > ROWS_IN_MESSAGE ? `${shown}, ...` : shown,
     }),
     columns,
-    rows: involvedRows,
+    rows: namedRows,
   };
 }
 
