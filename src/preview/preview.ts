@@ -7,26 +7,16 @@
  */
 import { mountPane } from "../taskpane/pane";
 import { MemoryPort, MemoryWorkbook } from "../taskpane/memoryPort";
-import demo from "./demoWorkbook.json";
+import { loadDemo } from "./demo";
 import { evaluateFormula } from "./formulas";
 import { SheetView } from "./sheetView";
-import type { CellValue } from "../engine/types";
-
-/** Load the demo workbook's sheets. */
-export function loadDemo(workbook: MemoryWorkbook): void {
-  for (const sheet of demo.sheets) {
-    const name = workbook.addSheet(sheet.name);
-    workbook.setValues(name, sheet.top, sheet.left, sheet.values as CellValue[][]);
-  }
-}
 
 function start(): void {
   const left = document.getElementById("workbook");
   const right = document.getElementById("pane");
   if (!left || !right) return;
   const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
-  loadDemo(workbook);
-  const first = workbook.sheetNames()[0];
+  const first = loadDemo(workbook);
   // Start with the data table's first cell picked, so "Use selection" takes the whole table.
   workbook.select(first, { top: 1, left: 1, bottom: 1, right: 1 });
   new SheetView(left, workbook);

@@ -8,7 +8,7 @@
  * too, so nothing depends on colour alone. All text goes in with textContent.
  */
 import { contours } from "d3-contour";
-import { contourToData, type PlotModel } from "./plotGeometry";
+import { contourToData, niceTicks, type PlotModel } from "./plotGeometry";
 
 /** Class colours (index = class). */
 export const CLASS_COLOURS = ["#1F5F99", "#E08A1E", "#2E9C83", "#7B4EA3", "#8C5A2B", "#C2457A"];
@@ -26,18 +26,6 @@ function svg<K extends keyof SVGElementTagNameMap>(tag: K, attrs: Record<string,
   const e = document.createElementNS(SVG, tag);
   for (const [k, v] of Object.entries(attrs)) e.setAttribute(k, String(v));
   return e;
-}
-
-/** Round tick values over [lo, hi]: about `count` of them, at 1, 2 or 5 times a power of ten. */
-export function niceTicks(lo: number, hi: number, count = 5): number[] {
-  const span = hi - lo;
-  if (!(span > 0)) return [lo];
-  const raw = span / count;
-  const power = 10 ** Math.floor(Math.log10(raw));
-  const step = [1, 2, 5, 10].map((m) => m * power).find((s) => s >= raw) ?? 10 * power;
-  const ticks: number[] = [];
-  for (let t = Math.ceil(lo / step) * step; t <= hi + step * 1e-9; t += step) ticks.push(Number(t.toPrecision(12)));
-  return ticks;
 }
 
 /** An SVG path for a class marker centred at (x, y). */

@@ -269,3 +269,15 @@ export function buildPlot(
     notes,
   };
 }
+
+/** Round tick values over [lo, hi]: about `count` of them, at 1, 2 or 5 times a power of ten. */
+export function niceTicks(lo: number, hi: number, count = 5): number[] {
+  const span = hi - lo;
+  if (!(span > 0)) return [lo];
+  const raw = span / count;
+  const power = 10 ** Math.floor(Math.log10(raw));
+  const step = [1, 2, 5, 10].map((m) => m * power).find((s) => s >= raw) ?? 10 * power;
+  const ticks: number[] = [];
+  for (let t = Math.ceil(lo / step) * step; t <= hi + step * 1e-9; t += step) ticks.push(Number(t.toPrecision(12)));
+  return ticks;
+}
