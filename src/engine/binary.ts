@@ -120,21 +120,38 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
   const miss = (what: string): void => {
     missingBy[what] = (missingBy[what] ?? 0) + 1;
   };
+  // Predictors column by column (cache-friendly): NaN = missing; an infinity is invalid input,
+  // reported at the first such row.
+  const missingX = new Uint8Array(n);
+  let firstInf = -1;
+  let firstInfCol = -1;
+  for (let j = 0; j < X.columns.length; j++) {
+    const col = X.columns[j];
+    let count = 0;
+    for (let i = 0; i < n; i++) {
+      const v = col[i];
+      if (v - v !== 0) {
+        // NaN or +/-Infinity
+        if (Number.isNaN(v)) {
+          missingX[i] = 1;
+          count++;
+        } else if (firstInf < 0 || i < firstInf) {
+          firstInf = i;
+          firstInfCol = j;
+        }
+      }
+    }
+    if (count > 0) missingBy[X.names[j]] = count;
+  }
+  if (firstInf >= 0) {
+    throw problem("NOT_FINITE_VALUE", { argument: "predictor", row: firstInf + 1, column: X.names[firstInfCol], value: X.columns[firstInfCol][firstInf] });
+  }
   for (let i = 0; i < n; i++) {
-    let missing = false;
+    let missing = missingX[i] === 1;
     const yi = y[i];
     if (Number.isNaN(yi)) {
       missing = true;
       miss("response");
-    }
-    for (let j = 0; j < X.columns.length; j++) {
-      const v = X.columns[j][i];
-      if (Number.isNaN(v)) {
-        missing = true;
-        miss(X.names[j]);
-      } else if (!Number.isFinite(v)) {
-        throw problem("NOT_FINITE_VALUE", { argument: "predictor", row: i + 1, column: X.names[j], value: v });
-      }
     }
     if (w) {
       const wi = w[i];
@@ -174,22 +191,16 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
     used++;
   }
   const rowIndex = new Int32Array(used);
-  const columns = X.columns.map(() => new Float64Array(used));
-  const successes = new Float64Array(used);
-  const trials = new Float64Array(used);
-  const weights = new Float64Array(used);
-  const offset = new Float64Array(used);
   let r = 0;
-  for (let i = 0; i < n; i++) {
-    if (!keep[i]) continue;
-    rowIndex[r] = i;
-    for (let j = 0; j < columns.length; j++) columns[j][r] = X.columns[j][i];
-    successes[r] = y[i];
-    trials[r] = tr ? tr[i] : 1;
-    weights[r] = w ? w[i] : 1;
-    offset[r] = off ? off[i] : 0;
-    r++;
-  }
+  for (let i = 0; i < n; i++) if (keep[i]) rowIndex[r++] = i;
+  // Compact column by column; when every row is used the caller's arrays are shared (never written).
+  const all = used === n;
+  const compact = (src: Float64Array): Float64Array => (all ? src : Float64Array.from(rowIndex, (i) => src[i]));
+  const columns = X.columns.map(compact);
+  const successes = compact(y);
+  const trials = tr ? compact(tr) : new Float64Array(used).fill(1);
+  const weights = w ? compact(w) : new Float64Array(used).fill(1);
+  const offset = off ? compact(off) : new Float64Array(used);
   const skippedDetail = Object.entries(missingBy)
     .map(([k, v]) => `${k}: ${v}`)
     .join(", ");
@@ -216,6 +227,8 @@ function validateOptions(o: BinaryFitOptions): Required<Omit<BinaryFitOptions, "
 
 /** sum_i w_i log C(t_i, y_i) and the saturated kernel log-likelihood. */
 function constantTerms(d: FitData): { logBinom: number; saturated: number } {
+  // 0/1 data: log C(1, y) = 0 and the saturated model fits every row exactly (log-likelihood 0).
+  if (!d.grouped) return { logBinom: 0, saturated: 0 };
   let logBinom = 0;
   let saturated = 0;
   for (let i = 0; i < d.rows; i++) {
@@ -596,6 +609,20 @@ function nullModel(d: FitData, intercept: boolean, maxIterations: number): { log
       tolerance: 1e-12,
     });
     return { logLikelihood: r.logLikelihood };
+  }
+  // Constant offset: the intercept-only MLE is the pooled rate, in closed form.
+  let constantOffset = true;
+  for (let i = 1; constantOffset && i < n; i++) if (d.offset[i] !== d.offset[0]) constantOffset = false;
+  if (constantOffset) {
+    let sy = 0;
+    let st = 0;
+    for (let i = 0; i < n; i++) {
+      sy += d.weights[i] * d.successes[i];
+      st += d.weights[i] * d.trials[i];
+    }
+    const rate = sy / st;
+    const ll = (sy > 0 ? sy * Math.log(rate) : 0) + (st - sy > 0 ? (st - sy) * Math.log1p(-rate) : 0);
+    return { logLikelihood: ll };
   }
   const r: NewtonResult = newtonLogistic({
     rows: n,

@@ -113,6 +113,26 @@ export function weightedCrossVector(
   return out;
 }
 
+/**
+ * Dot product sum_i a_i b_i over the first n entries, with four accumulators (breaks the add
+ * dependency chain; differs from a plain loop only by rounding). Golub & Van Loan (2013) §1.1.
+ */
+export function dot(a: Float64Array, b: Float64Array, n: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let s2 = 0;
+  let s3 = 0;
+  let i = 0;
+  for (const m = n - 3; i < m; i += 4) {
+    s0 += a[i] * b[i];
+    s1 += a[i + 1] * b[i + 1];
+    s2 += a[i + 2] * b[i + 2];
+    s3 += a[i + 3] * b[i + 3];
+  }
+  for (; i < n; i++) s0 += a[i] * b[i];
+  return s0 + s1 + (s2 + s3);
+}
+
 /** Outcome of a Cholesky factorization. */
 export interface CholeskyResult {
   /** True when every pivot exceeded the tolerance. */

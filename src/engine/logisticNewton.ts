@@ -15,7 +15,7 @@
  */
 
 import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
-import { cholesky, choleskySolve, subMatrix, weightedCrossProduct, type SquareMatrix } from "./linalg";
+import { cholesky, choleskySolve, dot, subMatrix, weightedCrossProduct, type SquareMatrix } from "./linalg";
 
 /** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
 export interface NewtonProblem {
@@ -202,12 +202,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
     iterations++;
     // Score U = Z'(w (y - t mu)) - pen .* g  [+ Firth adjustment].
     for (let i = 0; i < n; i++) work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * mu[i]);
-    for (let j = 0; j < k; j++) {
-      const zj = p.columns[j];
-      let s = 0;
-      for (let i = 0; i < n; i++) s += work[i] * zj[i];
-      score[j] = s - p.penalty[j] * g[j];
-    }
+    for (let j = 0; j < k; j++) score[j] = dot(work, p.columns[j], n) - p.penalty[j] * g[j];
     if (p.firth && factor) {
       hatValues(p.columns, factor, fisherW, n, work, hat);
       addFirthScoreAdjustment(p.columns, hat, mu, n, score);
