@@ -122,3 +122,45 @@ describe("predictBinary edge cases", () => {
     expect(pr.margin[0]).toBe(0.5);
   });
 });
+
+describe("predictBinary with special fits", () => {
+  const wd = ref.weighted.data as { x1: number; x2: number; y: number }[];
+  const X2 = design({ x1: wd.map((r) => r.x1), x2: wd.map((r) => r.x2) });
+  const y2 = Float64Array.from(wd.map((r) => r.y));
+
+  test("an aliased term is ignored: same predictions and SEs as the fit without it", () => {
+    const X3 = design({ x1: X2.columns[0], x2: X2.columns[1], x3: wd.map((r) => r.x1 + 2 * r.x2) });
+    const withAlias = fitBinaryModel(X3, y2);
+    const without = fitBinaryModel(X2, y2);
+    const a = predictBinary(withAlias, X3);
+    const b = predictBinary(without, X2);
+    expectClose(a.linearPredictor!, b.linearPredictor!, 1e-10, "eta", 1e-6);
+    expectClose(a.linearPredictorSE!, b.linearPredictorSE!, 1e-8, "se", 1e-6);
+  });
+
+  test("a row with zero weight is left out of the fit but still scored", () => {
+    const w = new Float64Array(y2.length).fill(1);
+    w[0] = 0;
+    const fitW = fitBinaryModel(X2, y2, { weights: w });
+    const pr = predictBinary(fitW, X2);
+    expect(pr.predicted[0]).not.toBe(-1);
+    expect(pr.probabilities[1][0]).toBeGreaterThan(0);
+    expect(fitW.rowsUsed).toBe(y2.length - 1);
+  });
+
+  test("a penalized fit scores rows but has NaN standard errors and intervals (no covariance)", () => {
+    const pen = fitBinaryModel(X2, y2, { penalty: 2 });
+    const pr = predictBinary(pen, X2);
+    expect(Number.isFinite(pr.probabilities[1][0])).toBe(true);
+    expect(pr.linearPredictorSE![0]).toBeNaN();
+    expect(pr.lower![0]).toBeNaN();
+    expect(pr.predicted[0]).not.toBe(-1);
+  });
+
+  test("a separated unpenalized fit has no estimate, so every row is unscorable (-1)", () => {
+    const sep = fitBinaryModel(design({ x: [1, 2, 3, 4] }), Float64Array.of(0, 0, 1, 1));
+    const pr = predictBinary(sep, design({ x: [1.5, 3.5] }));
+    expect(Array.from(pr.predicted)).toEqual([-1, -1]);
+    expect(pr.probabilities[1][0]).toBeNaN();
+  });
+});
