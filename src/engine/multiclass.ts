@@ -911,6 +911,20 @@ function runNewton(
   if (chol.ok) {
     inverseInformation = choleskyInverse(chol.factor, M);
     finalStep = choleskySolve(chol.factor, M, scoreP);
+    // Polish a converged estimate with this last full Newton step: the deviance rule can stop a
+    // linearly converging (information-reusing) run a little short of the maximum; one Newton step
+    // from there lands on it to rounding. The covariance stays the inverse information just computed
+    // (the step is tiny, as in R's glm, whose covariance uses the weights of its previous iterate).
+    if (converged) {
+      for (let r = 0; r < M; r++) trial[r] = theta[r] + finalStep[r];
+      const ll = kernel.evaluate(trial, "value");
+      const obj = objectiveOf(ll, trial);
+      if (Number.isFinite(obj) && obj <= objective) {
+        theta.set(trial);
+        logLik = ll;
+        objective = obj;
+      }
+    }
   }
   return { theta, logLik, objective, iterations, converged, lastChange, inverseInformation, finalStep, lastStep };
 }
