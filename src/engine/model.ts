@@ -29,7 +29,7 @@ import { buildDesign, encodeRows, skippedDetail, type DesignEncoding, type Encod
 import { readLabels, type LabelInfo } from "./labels";
 import { formatMessage, listNames, problem } from "./messages";
 import { fitMulticlassModel } from "./multiclass";
-import { logSumExp } from "./numerics";
+import { predictMulticlass } from "./predictMulticlass";
 import { predictBinary } from "./predictBinary";
 import { detectHeader, normalizeRange, padTable, rangeRow, readTable, type HeaderEvidence, type NumericColumn, type Table } from "./table";
 import type { CellValue, DesignMatrix, Diagnostic, ModelFit, Prediction } from "./types";
@@ -484,7 +484,7 @@ export function scoreRows(
           threshold,
           offset: offsetAll ? Float64Array.from(good, (i) => (offsetAll as Float64Array)[i]) : undefined,
         })
-      : scoreMulticlass(model.fit, X);
+      : predictMulticlass(model.fit, X);
   const prediction = expand(part, good, n);
   const classes = model.fit.classes;
   const predictedClass = Array.from(prediction.predicted, (k) => (k >= 0 ? classes[k] : null));
@@ -523,59 +523,4 @@ function expand(p: Prediction, good: number[], n: number): Prediction {
   if (p.upper) out.upper = spread(p.upper);
   if (p.linkMargin) out.linkMargin = spread(p.linkMargin);
   return out;
-}
-
-/**
- * Class probabilities of a multi-class fit: softmax of the equations' linear predictors, the
- * reference class (reference form) having eta = 0; computed through log-sum-exp so no exponential
- * overflows. Aliased terms contribute nothing. Predicted class = the most probable; margin = gap
- * between the two largest probabilities. A row with a non-finite value, or a fit without usable
- * estimates, gives NaN and predicted -1.
- * Reference: Agresti, Categorical Data Analysis, 3rd ed. (2013), §8.1 (baseline-category logits).
- * Used until src/engine/predictMulticlass.ts is available.
- */
-function scoreMulticlass(fit: ModelFit, X: DesignMatrix): Prediction {
-  const K = fit.classes.length;
-  const n = X.rows;
-  const off = fit.intercept ? 1 : 0;
-  const eqOf = fit.equationClasses.map((c) => fit.classes.indexOf(c));
-  const probabilities = fit.classes.map(() => new Float64Array(n));
-  const predicted = new Int32Array(n);
-  const margin = new Float64Array(n);
-  const eta = new Float64Array(K);
-  for (let i = 0; i < n; i++) {
-    eta.fill(0);
-    let finite = true;
-    fit.coefficients.forEach((b, e) => {
-      let v = fit.intercept ? b[0] : 0;
-      for (let j = 0; j < X.columns.length; j++) {
-        if (fit.aliased[off + j]) continue;
-        v += b[off + j] * X.columns[j][i];
-      }
-      if (!Number.isFinite(v)) finite = false;
-      eta[eqOf[e]] = v;
-    });
-    if (!finite) {
-      for (let k = 0; k < K; k++) probabilities[k][i] = NaN;
-      predicted[i] = -1;
-      margin[i] = NaN;
-      continue;
-    }
-    const lse = logSumExp(eta);
-    let best = 0;
-    let first = -Infinity;
-    let second = -Infinity;
-    for (let k = 0; k < K; k++) {
-      const pk = Math.exp(eta[k] - lse);
-      probabilities[k][i] = pk;
-      if (pk > first) {
-        second = first;
-        first = pk;
-        best = k;
-      } else if (pk > second) second = pk;
-    }
-    predicted[i] = best;
-    margin[i] = first - second;
-  }
-  return { probabilities, predicted, margin };
 }
