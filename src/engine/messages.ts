@@ -135,6 +135,24 @@ export const MESSAGES = {
     template:
       "The label column has {count} distinct values across {rows} rows, which looks like a measurement rather than classes. Point the labels argument at the class column, or group the values into classes first.",
   },
+  TOO_MANY_LABELS: {
+    cellError: "#VALUE!",
+    title: "Too many different labels",
+    template:
+      "The label column has {count} different labels across {rows} rows, more than the {limit} classes a classifier here can fit. Point the labels argument at the class column (not an identifier or free-text column), or group the labels into at most {limit} classes first.",
+  },
+  CLASS_LIMIT: {
+    cellError: "#VALUE!",
+    title: "Too many classes",
+    template:
+      "The label column has {count} distinct values across {rows} rows; Oddsmith fits at most {max} classes. Point the labels argument at the class column, or group the values into fewer classes.",
+  },
+  HEADERS_DISAGREE: {
+    cellError: "#N/A",
+    title: "Header rows disagree",
+    template:
+      "The first row of {decided} looks like {decidedLooks}, but the first row of {other} looks like {otherLooks}; every first row was read as {decision}. Set headers=yes or headers=no if that is wrong.",
+  },
   CLASS_NOT_FOUND: {
     cellError: "#VALUE!",
     title: "Class not in the labels",
