@@ -357,17 +357,23 @@ export function fitBinaryModel(
   if (opt.intercept) z.push(new Float64Array(n).fill(1));
   for (let j = 0; j < q; j++) {
     const x = data.columns[j];
+    // Sums on x / max|x| so that neither 1e200 nor 1e-200 overflows or underflows when squared.
+    let big = 0;
+    for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(x[i]));
+    if (!(big > 0)) big = 1;
     let m = 0;
-    for (let i = 0; i < n; i++) m += a[i] * x[i];
+    for (let i = 0; i < n; i++) m += a[i] * (x[i] / big);
     m /= sumA;
     let v = 0;
     let ms = 0;
     for (let i = 0; i < n; i++) {
-      v += a[i] * (x[i] - m) * (x[i] - m);
-      ms += a[i] * x[i] * x[i];
+      const u = x[i] / big;
+      v += a[i] * (u - m) * (u - m);
+      ms += a[i] * u * u;
     }
-    sd[j] = Math.sqrt(v / sumA);
-    const s = opt.intercept ? sd[j] : Math.sqrt(ms / sumA);
+    m *= big;
+    sd[j] = big * Math.sqrt(v / sumA);
+    const s = opt.intercept ? sd[j] : big * Math.sqrt(ms / sumA);
     scale[j] = s > 0 ? s : 1;
     centre[j] = opt.intercept ? m : 0;
     const col = new Float64Array(n);
@@ -429,7 +435,7 @@ export function fitBinaryModel(
     if (u) univariate.push({ col: t, rows: u.rows, complete: u.complete });
   }
   if (!penalized && !opt.biasReduction) {
-    separation = separationFromIterates(zk, fit.history, fit.eta, response, kept.indexOf(0) === 0 && opt.intercept ? 0 : -1);
+    separation = separationFromIterates(zk, fit.history, fit.eta, response, interceptIndex, fit.converged);
   }
   if (!separation && univariate.length > 0) {
     // Certify the first univariate finding in the fitting coordinates (it is already exact).

@@ -136,8 +136,9 @@ export function certifyDirection(
 
 /**
  * Multivariate check from the iterates of an unpenalized Newton fit: when the last step is not
- * negligible (|step|_inf > minStep on the standardized scale) or the fit pushed probabilities
- * numerically to 0/1, take the last step as the candidate direction and certify it.
+ * negligible (|step|_inf > 1e-3 on the standardized scale) and the fit pushed probabilities
+ * towards 0/1 (|eta| > 15) or stopped at its iteration cap, take the last step as the candidate
+ * direction and certify it on every row.
  * @param history - coefficients after each accepted iteration (standardized scale)
  * @param eta - final linear predictor
  */
@@ -147,6 +148,7 @@ export function separationFromIterates(
   eta: Float64Array,
   r: BinaryResponse,
   interceptIndex: number,
+  converged = true,
 ): SeparationFinding | null {
   if (history.length < 2) return null;
   const last = history[history.length - 1];
@@ -160,7 +162,8 @@ export function separationFromIterates(
   let maxEta = 0;
   for (let i = 0; i < r.rows; i++) maxEta = Math.max(maxEta, Math.abs(eta[i]));
   // A regular fit ends with steps far below 1e-3; extreme fitted probabilities (|eta| > 15, i.e.
-  // p < 3e-7) without a shrinking step are the symptom glm.fit warns about.
-  if (!(stepMax > 1e-3 && maxEta > 15)) return null;
+  // p < 3e-7) without a shrinking step are the symptom glm.fit warns about. A fit stopped by the
+  // iteration cap is checked whatever its probabilities. The certificate below decides either way.
+  if (!(stepMax > 1e-3 && (maxEta > 15 || !converged))) return null;
   return certifyDirection(columns, d, r, interceptIndex);
 }

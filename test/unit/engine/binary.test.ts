@@ -563,3 +563,17 @@ describe("properties on random data (fast-check)", () => {
     );
   });
 });
+
+describe("extreme column scales", () => {
+  // Variances are stored, so standard errors must stay below ~1e154; 1e120 scales keep them there
+  // while squares of the raw values (1e240) would still overflow a naive variance of the column.
+  test("columns of size 1e160 and 1e-120 give the Spector coefficients rescaled (no overflow in the scaling)", () => {
+    const base = fitBinaryModel(spX, spY);
+    const X = design({ GPA: spX.columns[0].map((v) => v * 1e160), TUCE: spX.columns[1].map((v) => v * 1e-120), PSI: spX.columns[2] });
+    const f = fitBinaryModel(X, spY);
+    expect(f.aliased).toEqual([false, false, false, false]);
+    expectScalarClose(f.table[1].estimate * 1e160, base.table[1].estimate, 1e-9, "GPA");
+    expectScalarClose(f.table[2].estimate * 1e-120, base.table[2].estimate, 1e-9, "TUCE");
+    expectScalarClose(f.table[2].standardError * 1e-120, base.table[2].standardError, 1e-9, "TUCE se");
+  });
+});
