@@ -141,12 +141,6 @@ export const MESSAGES = {
     template:
       "The label column has {count} different labels across {rows} rows, more than the {limit} classes a classifier here can fit. Point the labels argument at the class column (not an identifier or free-text column), or group the labels into at most {limit} classes first.",
   },
-  CLASS_LIMIT: {
-    cellError: "#VALUE!",
-    title: "Too many classes",
-    template:
-      "The label column has {count} distinct values across {rows} rows; Oddsmith fits at most {max} classes. Point the labels argument at the class column, or group the values into fewer classes.",
-  },
   HEADERS_DISAGREE: {
     cellError: "#N/A",
     title: "Header rows disagree",
