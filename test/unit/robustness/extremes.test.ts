@@ -11,6 +11,7 @@ import { scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../
 import { brierScore, calibrationSlope, logLoss, rocAuc } from "../../../src/engine/metrics";
 import { DEFAULT_LOG_CLIP } from "../../../src/engine/numerics";
 import { ALIAS_TOLERANCE } from "../../../src/engine/binary";
+import { MAX_CLASSES } from "../../../src/engine/labels";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import * as ODDS from "../../../src/functions/functions";
 import type { CellValue } from "../../../src/engine/types";
@@ -382,5 +383,26 @@ describe("numeric extremes: more columns than rows", () => {
     const m = train([0, 1, 0, 1], table(["a", "b", "c", "d", "e"], rows), { penalty: 1 });
     expect(errorCodes(m)).toEqual([]);
     expect(m.fit.coefficients[0].every((v) => Number.isFinite(v))).toBe(true);
+  });
+});
+
+describe("numeric extremes: many distinct labels", () => {
+  test("thousands of distinct text labels (an identifier column) are TOO_MANY_LABELS at once, not a fit that never ends", () => {
+    const n = 5000;
+    const labels: Range = [["id"], ...Array.from({ length: n }, (_, i): CellValue[] => [`customer-${i}`])];
+    const predictors: Range = [["x"], ...Array.from({ length: n }, (_, i): CellValue[] => [i % 7])];
+    const start = performance.now();
+    const e = cellFailure(() => ODDS.fit(labels, predictors));
+    expect([e.code, e.cellError]).toEqual(["TOO_MANY_LABELS", "#VALUE!"]);
+    expect(e.message).toContain(`${n} different labels across ${n} rows`);
+    // Reading and counting 5,000 labels takes milliseconds; the bound is generous for a shared machine.
+    expect(performance.now() - start).toBeLessThan(2000);
+  });
+
+  test(`${MAX_CLASSES} classes are still fitted; ${MAX_CLASSES + 1} are TOO_MANY_LABELS`, () => {
+    const rows = (k: number) => Array.from({ length: 4 * k }, (_, i) => i);
+    const fitK = (k: number) => trainModel(col("y", rows(k).map((i) => `class ${i % k}`)), col("x", rows(k).map((i) => (i * 37) % 11)), { penalty: 1 });
+    expect(fitK(MAX_CLASSES).fit.classes.length).toBe(MAX_CLASSES);
+    expect(() => fitK(MAX_CLASSES + 1)).toThrow(expect.objectContaining({ code: "TOO_MANY_LABELS" }));
   });
 });
