@@ -461,7 +461,8 @@ export function fitBinaryModel(
   const separatedUnusable = separation !== null && !penalized && !opt.biasReduction;
 
   if (!fit.converged && !separatedUnusable) {
-    diagnostics.push(diag("NOT_CONVERGED", "warning", { iterations: fit.iterations, change: fit.lastChange.toPrecision(3) }));
+    const change = Number.isFinite(fit.lastChange) ? fit.lastChange.toPrecision(3) : "not available: the information matrix became singular";
+    diagnostics.push(diag("NOT_CONVERGED", "warning", { iterations: fit.iterations, change }));
   }
 
   // ---- back to the original scale ----------------------------------------------------------
