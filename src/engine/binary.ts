@@ -28,7 +28,11 @@
  *   ordinary intercept-only maximum; lrTest is the penalized-likelihood ratio of the fit against the
  *   same penalized likelihood maximized with every non-intercept coefficient held at 0 (the
  *   penalty still computed from the full design, so the statistic does not depend on units),
- *   as Heinze & Schemper (2002, §2.2) define it.
+ *   the penalized likelihood ratio test of Heinze & Schemper (2002).
+ * - Missing values: NaN in the response, a predictor, a weight, the offset or the trials marks the
+ *   row missing; it is skipped and counted in a ROWS_SKIPPED warning. Infinite values are invalid.
+ * - Aliasing: a column whose 1 - R^2 on the earlier kept columns (weighted by w t, after centring)
+ *   is below ALIAS_TOLERANCE = 1e-9 is dropped and reported not estimable, like R's NA.
  * - Separation (unpenalized, non-Firth fits): when certified, the fit has no usable estimate: the
  *   coefficients, covariance and table numbers are NaN and an error diagnostic names the columns
  *   and rows; logLikelihood and deviance keep the supremum the iterations approached.
@@ -509,7 +513,7 @@ export function fitBinaryModel(
   const df = k - (interceptIndex === 0 ? 1 : 0);
   let lrTest = likelihoodRatioTest(logLikelihood, nullLogLikelihood, df);
   if (opt.biasReduction) {
-    // Penalized likelihood ratio test (Heinze & Schemper 2002, §2.2): the null model holds every
+    // Penalized likelihood ratio test (Heinze & Schemper 2002): the null model holds every
     // non-intercept coefficient at 0 but keeps the full design in the penalty (1/2) log det I, so
     // the Jacobian of the parametrization cancels and the statistic does not depend on units.
     const free = new Uint8Array(k);
