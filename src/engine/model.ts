@@ -7,7 +7,8 @@
  * - Every range (labels, predictors, weights, offset, trials) is read by the shared range parser.
  *   Under headers = "auto" they share one decision: when the ranges disagree, the range with the
  *   stronger evidence decides for all (predictors win a tie), so a labels column of words and a
- *   predictors block of numbers cannot end up shifted by one row.
+ *   predictors block of numbers cannot end up shifted by one row; a range whose own first row
+ *   pointed the other way is named in a HEADERS_DISAGREE note.
  * - Ranges are aligned row by row. Trailing blank rows are trimmed per range, and a range that ends
  *   earlier than the others is taken as blank below its end; ranges whose selected row counts differ
  *   (after the header) are RANGE_SHAPE_MISMATCH.
@@ -143,7 +144,12 @@ const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, we
  * Read several aligned ranges with one header decision and one row count.
  * The first range is the reference for shape messages ("labels").
  */
-function readAligned(ranges: RangeArg[], headers: "auto" | "yes" | "no", names: string[]): Table[] {
+function readAligned(
+  ranges: RangeArg[],
+  headers: "auto" | "yes" | "no",
+  names: string[],
+  notes: Diagnostic[],
+): Table[] {
   let decision: boolean | null = headers === "yes" ? true : headers === "no" ? false : null;
   if (decision === null) {
     // Under auto, the range with the strongest evidence decides for all (predictors win a tie).
@@ -156,6 +162,22 @@ function readAligned(ranges: RangeArg[], headers: "auto" | "yes" | "no", names: 
       if (EVIDENCE_RANK[d.evidence] > EVIDENCE_RANK[detected[best].evidence]) best = k;
     });
     decision = detected[best].header;
+    // A range whose own evidence pointed the other way is named in a note, so the choice is visible.
+    const other = detected.findIndex((d) => d.header !== decision && d.evidence !== "none");
+    if (other >= 0) {
+      const looks = (h: boolean) => (h ? "column names" : "data");
+      notes.push({
+        code: "HEADERS_DISAGREE",
+        severity: "note",
+        message: formatMessage("HEADERS_DISAGREE", {
+          decided: ranges[best].argument,
+          decidedLooks: looks(decision),
+          other: ranges[other].argument,
+          otherLooks: looks(!decision),
+          decision: looks(decision),
+        }),
+      });
+    }
   }
   const forced = decision ? "yes" : "no";
   const tables = ranges.map((r, k) => {
@@ -246,7 +268,8 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
       extras.push(key);
     }
   }
-  const tables = readAligned(ranges, headers, names);
+  const readNotes: Diagnostic[] = [];
+  const tables = readAligned(ranges, headers, names, readNotes);
   const [labelTable, predTable] = tables;
   singleColumn(labelTable);
   const labelColumn = labelTable.columns[0];
@@ -375,7 +398,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
       d.message = d.message.slice(0, at) + `rows ${shown}` + d.message.slice(at + 5 + example.length);
     }
   }
-  const added: Diagnostic[] = [...built.notes];
+  const added: Diagnostic[] = [...readNotes, ...built.notes];
   if (built.skipped.total > 0) {
     // Skipped rows are a warning carried in the result, counted per column.
     added.push({

@@ -120,6 +120,20 @@ describe("readLabels: problems", () => {
     expect(e.message).toContain("has 3 distinct values across 4 rows");
   });
 
+  test("more than 50 distinct text labels (an identifier column) is TOO_MANY_LABELS", () => {
+    const ids = Array.from({ length: 51 }, (_, i) => `id${i}`);
+    const e = caught(() => readLabels(column(ids)));
+    expect(e.code).toBe("TOO_MANY_LABELS");
+    expect(e.message).toBe(
+      "The label column has 51 different labels across 51 rows, more than the 50 classes a classifier here can fit. Point the labels argument at the class column (not an identifier or free-text column), or group the labels into at most 50 classes first.",
+    );
+  });
+
+  test("50 distinct text labels are still classes", () => {
+    const ids = Array.from({ length: 50 }, (_, i) => `c${i}`);
+    expect(readLabels(column(ids)).classes.length).toBe(50);
+  });
+
   test("two distinct numbers, even fractions, are a binary label", () => {
     expect(readLabels(column([0.5, 1.5, 0.5])).classes).toEqual(["0.5", "1.5"]);
   });

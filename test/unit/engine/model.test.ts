@@ -51,6 +51,10 @@ const PREDICTORS = orchard.predictors as CellValue[][];
 describe("trainModel against R glm on the orchard survey (text predictor, booleans, blank cells)", () => {
   const model = trainModel(LABELS, PREDICTORS, {});
 
+  test("ranges whose first rows agree add no header note", () => {
+    expect(model.fit.diagnostics.some((d) => d.code === "HEADERS_DISAGREE")).toBe(false);
+  });
+
   test("names the positive class and fits a binary model", () => {
     expect(model.kind).toBe("binary");
     expect(model.fit.classes).toEqual(["no", "yes"]);
@@ -198,9 +202,12 @@ describe("trainModel: ranges and options", () => {
 
   test("under auto headers, strong evidence in one range decides for both", () => {
     // The labels' first word never recurs (weak evidence of a name); the predictors start with a number.
-    const m = trainModel([["maybe"], ["no"], ["yes"], ["no"], ["yes"], ["no"], ["yes"], ["maybe"]], [[1], [2], [3], [4], [5], [6], [7], [8]], {});
+    const m = trainModel([["maybe"], ["no"], ["yes"], ["no"], ["yes"], ["no"], ["yes"], ["no"]], [[1], [2], [3], [4], [5], [6], [7], [8]], {});
     expect(m.header).toBe(false);
     expect(m.fit.classes).toEqual(["maybe", "no", "yes"]);
+    expect(m.fit.diagnostics.find((d) => d.code === "HEADERS_DISAGREE")?.message).toBe(
+      "The first row of predictors looks like data, but the first row of labels looks like column names; every first row was read as data. Set headers=yes or headers=no if that is wrong.",
+    );
   });
 
   test("a labels range of two columns is SINGLE_COLUMN_NEEDED", () => {
