@@ -103,6 +103,17 @@ describe("separation in fitBinaryModel (unpenalized fits)", () => {
     expect(d.rows).toHaveLength(8);
   });
 
+  test("grouped counts: 0 of 5 at dose 0, 3 of 5 at dose 1, 5 of 5 at dose 2 is quasi-complete separation", () => {
+    const fit = fitBinaryModel(design({ dose: [0, 1, 2] }), Float64Array.of(0, 3, 5), { trials: Float64Array.of(5, 5, 5) });
+    const d = fit.diagnostics.find((x) => x.code === "SEPARATION_QUASI")!;
+    expect(d.columns).toEqual(["dose"]);
+    expect(d.rows).toEqual([0, 2]);
+    // One more failure at dose 2 removes it: the estimate exists.
+    const ok = fitBinaryModel(design({ dose: [0, 1, 2] }), Float64Array.of(0, 3, 4), { trials: Float64Array.of(5, 5, 5) });
+    expect(ok.diagnostics.filter((x) => x.code.startsWith("SEPARATION"))).toEqual([]);
+    expect(ok.converged).toBe(true);
+  });
+
   test("overlapping data are not flagged (Spector data has no separation)", () => {
     const sp = loadFixture("spector.json");
     const fit = fitBinaryModel(design({ GPA: sp.data.GPA, TUCE: sp.data.TUCE, PSI: sp.data.PSI }), Float64Array.from(sp.data.GRADE));
