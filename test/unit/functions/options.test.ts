@@ -123,7 +123,9 @@ describe("parseOptions: problems", () => {
   });
 
   test("text where a number is needed is BAD_OPTION_VALUE", () => {
-    expect(caught(() => parse("penalty=high")).code).toBe("BAD_OPTION_VALUE");
+    expect(caught(() => parse("penalty=high")).message).toBe(
+      'The option penalty cannot be "high". Enter a number that is at least 0.',
+    );
   });
 
   test("a fraction for a whole-number option is BAD_OPTION_VALUE", () => {
@@ -145,7 +147,9 @@ describe("parseOptions: problems", () => {
   });
 
   test("an empty value is BAD_OPTION_VALUE", () => {
-    expect(caught(() => parse("penalty=")).code).toBe("BAD_OPTION_VALUE");
+    expect(caught(() => parse("penalty=")).message).toBe(
+      'The option penalty cannot be "". Enter a number that is at least 0.',
+    );
   });
 
   test("a piece without = that is not a boolean option is OPTION_SYNTAX", () => {
@@ -155,7 +159,7 @@ describe("parseOptions: problems", () => {
   });
 
   test("a piece with nothing before = is OPTION_SYNTAX", () => {
-    expect(caught(() => parse("=3")).code).toBe("OPTION_SYNTAX");
+    expect(caught(() => parse("=3")).message).toContain('could not be read at "=3"');
   });
 
   test("an option given twice is DUPLICATE_OPTION with both values", () => {
@@ -165,11 +169,19 @@ describe("parseOptions: problems", () => {
   });
 
   test("a number passed where options are expected is OPTION_SYNTAX", () => {
-    expect(caught(() => parse(3)).code).toBe("OPTION_SYNTAX");
+    const e = caught(() => parse(3));
+    expect(e.code).toBe("OPTION_SYNTAX");
+    expect(e.message).toBe(
+      'The options text "3" could not be read at "3". Write name=value pairs separated by semicolons, e.g. "penalty=0.1; level=0.9".',
+    );
   });
 
   test("a two-column range with a number for a name is OPTION_SYNTAX", () => {
-    expect(caught(() => parse([[1, 2]])).code).toBe("OPTION_SYNTAX");
+    const e = caught(() => parse([[1, 2]]));
+    expect(e.code).toBe("OPTION_SYNTAX");
+    expect(e.message).toBe(
+      'The options text "1 | 2" could not be read at "1". Write name=value pairs separated by semicolons, e.g. "penalty=0.1; level=0.9".',
+    );
   });
 });
 
