@@ -8,6 +8,9 @@ import { design, expectClose, expectScalarClose, loadFixture } from "./binaryHel
 /** R glm was run with epsilon = 1e-14 and printed to 15 digits: our fits agree far better than
  * the 1e-6 the project asks for; 1e-8 still leaves room for the 1e-10 convergence rule. */
 const R_TOL = 1e-8;
+/** R's summary.glm builds the covariance from the IRLS weights of its last iteration, one step
+ * before the reported coefficients, so its standard errors lag by up to ~1e-8 (observed 8.9e-9). */
+const R_SE_TOL = 1e-7;
 /** Stata 11 held the Spector data in single precision (float GPA): agreement is ~1e-7, not better. */
 const STATA_TOL = 2e-6;
 /** The aliased-column reference ran with R's default glm.control (epsilon 1e-8), because glm.fit
@@ -63,9 +66,9 @@ describe("Spector & Mazzeo (1980) grades data, GRADE ~ GPA + TUCE + PSI", () => 
   test("coefficients, standard errors, covariance, p, deviance, AIC and BIC match R glm", () => {
     const r = ref.spector;
     expectClose(col(fit, "estimate"), r.coefficients, R_TOL, "coef vs R");
-    expectClose(col(fit, "standardError"), r.standardErrors, R_TOL, "se vs R");
-    expectClose(fit.covariance!, r.covariance, R_TOL, "cov vs R");
-    expectClose(col(fit, "p"), r.pValues, R_TOL, "p vs R");
+    expectClose(col(fit, "standardError"), r.standardErrors, R_SE_TOL, "se vs R");
+    expectClose(fit.covariance!, r.covariance, R_SE_TOL, "cov vs R");
+    expectClose(col(fit, "p"), r.pValues, R_SE_TOL, "p vs R");
     expectScalarClose(fit.logLikelihood, r.logLik, R_TOL, "logLik");
     expectScalarClose(fit.deviance, r.deviance, R_TOL, "deviance");
     expectScalarClose(fit.nullDeviance, r.nullDeviance, R_TOL, "null deviance");
@@ -98,7 +101,7 @@ describe("grouped binomial: budworm (Venables & Ripley 2002, §7.2), dead of 20 
 
   test("coefficients, standard errors, deviance, null deviance and AIC match R glm(cbind(dead, alive) ~ ...)", () => {
     expectClose(col(fit, "estimate"), bw.coefficients, R_TOL, "coef");
-    expectClose(col(fit, "standardError"), bw.standardErrors, R_TOL, "se");
+    expectClose(col(fit, "standardError"), bw.standardErrors, R_SE_TOL, "se");
     expectScalarClose(fit.deviance, bw.deviance, R_TOL, "deviance");
     expectScalarClose(fit.nullDeviance, bw.nullDeviance, R_TOL, "null deviance");
     // R's binomial AIC includes log C(20, dead): the log-likelihood convention is R's.
@@ -151,7 +154,7 @@ describe("case weights, offset and no-intercept fits vs R glm (simulated data, s
     const fit = fitBinaryModel(wdX, wdY, { weights: wdW });
     const r = ref.weighted.weights;
     expectClose(col(fit, "estimate"), r.coefficients, R_TOL, "coef");
-    expectClose(col(fit, "standardError"), r.standardErrors, R_TOL, "se");
+    expectClose(col(fit, "standardError"), r.standardErrors, R_SE_TOL, "se");
     expectScalarClose(fit.deviance, r.deviance, R_TOL, "deviance");
     expectScalarClose(fit.nullDeviance, r.nullDeviance, R_TOL, "null deviance");
     expectScalarClose(fit.aic, r.aic, R_TOL, "AIC");
@@ -190,7 +193,7 @@ describe("case weights, offset and no-intercept fits vs R glm (simulated data, s
     const fit = fitBinaryModel(wdX, wdY, { offset: o });
     const r = ref.weighted.offset;
     expectClose(col(fit, "estimate"), r.coefficients, R_TOL, "coef");
-    expectClose(col(fit, "standardError"), r.standardErrors, R_TOL, "se");
+    expectClose(col(fit, "standardError"), r.standardErrors, R_SE_TOL, "se");
     expectScalarClose(fit.deviance, r.deviance, R_TOL, "deviance");
     expectScalarClose(fit.nullDeviance, r.nullDeviance, R_TOL, "null deviance");
   });
@@ -200,7 +203,7 @@ describe("case weights, offset and no-intercept fits vs R glm (simulated data, s
     const r = ref.weighted.noIntercept;
     expect(fit.terms).toEqual(["x1", "x2"]);
     expectClose(col(fit, "estimate"), r.coefficients, R_TOL, "coef");
-    expectClose(col(fit, "standardError"), r.standardErrors, R_TOL, "se");
+    expectClose(col(fit, "standardError"), r.standardErrors, R_SE_TOL, "se");
     expectScalarClose(fit.nullDeviance, r.nullDeviance, R_TOL, "null deviance (2n log 2)");
     expect(fit.lrTest.df).toBe(2);
   });
@@ -456,7 +459,7 @@ describe("small models and row bookkeeping", () => {
     const fit = fitBinaryModel({ rows: wdY.length, columns: [], names: [] }, wdY, { offset: o });
     const r = ref.weighted.interceptOnlyOffset; // jsonlite wrote the length-1 vectors as scalars
     expectClose(col(fit, "estimate"), [r.coefficients], R_TOL, "coef");
-    expectClose(col(fit, "standardError"), [r.standardErrors], R_TOL, "se");
+    expectClose(col(fit, "standardError"), [r.standardErrors], R_SE_TOL, "se");
     expectScalarClose(fit.deviance, r.deviance, R_TOL, "deviance");
     expectScalarClose(fit.nullDeviance, fit.deviance, IDENTITY_TOL, "null = model");
     expect(fit.lrTest.df).toBe(0);
