@@ -123,6 +123,24 @@ describe("numeric extremes: predictor magnitudes", () => {
     closeTo(small.fit.table[1].z, base.fit.table[1].z, SAME_FIT_REL_TOL, "z");
   });
 
+  test.each([1e300, 1e-300])("a predictor scaled by %p gives the same intercept, the slope divided by the scale, and the same probabilities", (scale) => {
+    const m = train(Y10, col("x", X10.map((v) => v * scale)));
+    expect(codes(m)).toEqual([]);
+    closeTo(m.fit.coefficients[0][0], base.fit.coefficients[0][0], SAME_FIT_REL_TOL, "intercept");
+    closeTo(m.fit.coefficients[0][1], base.fit.coefficients[0][1] / scale, SAME_FIT_REL_TOL, "slope");
+    const p = scoreRows(m, null).prediction.probabilities[1];
+    const q = scoreRows(base, null).prediction.probabilities[1];
+    p.forEach((v, i) => closeTo(v, q[i], SAME_FIT_REL_TOL, `probability of row ${i}`));
+  });
+
+  test("one value of 1e300 among ordinary values is never called aliased: a fit solving the score equations, or its row reported as numerically separated", () => {
+    // Exact MLE: slope about -6.9e-298, which gives that row a fitted probability near 1e-300 (numerically 0).
+    const m = train(Y10, col("x", X10.map((v, i) => (i === 3 ? 1e300 : v))));
+    expect(codes(m)).not.toContain("ALIASED_COLUMNS");
+    if (errorCodes(m).length > 0) expect(errorCodes(m)).toEqual(["SEPARATION_QUASI"]);
+    else expectScoreEquations(m);
+  });
+
   test("-0 in a predictor is the same value as 0", () => {
     const zeros = [0, 0, 1, 0, 2, 0, 3, 0, 1, 2];
     const a = train(Y10, col("x", zeros));
