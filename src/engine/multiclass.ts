@@ -969,6 +969,25 @@ function findSeparation(
   // Direction per class (zero for the reference class in the reference form).
   const dk = Array.from({ length: K }, () => new Float64Array(q));
   equationClassIdx.forEach((k, e) => dk[k].set(direction.subarray(e * q, e * q + q)));
+  // Cheap bound first: |d_k' z_i| <= sum_j |d_kj| max_i |z_ij|, and a margin is a difference of two
+  // such terms. The step at a finite optimum cannot reach MIN_DIVERGING_MARGIN: skip the row pass.
+  const zmax = new Float64Array(q);
+  for (let j = 0; j < q; j++) {
+    const zj = z[j];
+    let m = 0;
+    for (let i = 0; i < n; i++) {
+      const a = Math.abs(zj[i]);
+      if (a > m) m = a;
+    }
+    zmax[j] = m;
+  }
+  let bound = 0;
+  for (let k = 0; k < K; k++) {
+    let b = 0;
+    for (let j = 0; j < q; j++) b += Math.abs(dk[k][j]) * zmax[j];
+    bound = Math.max(bound, b);
+  }
+  if (!(2 * bound >= MIN_DIVERGING_MARGIN)) return null;
   const u = new Float64Array(K);
   // Pass 1: largest margin and smallest margin.
   let maxMargin = 0;
