@@ -131,10 +131,12 @@ module.exports = (env, argv) => {
     },
     {
       // office.js loads its host- and locale-specific scripts from its own folder: copy the folder,
-      // without the debug builds (half the size).
+      // without the debug builds (half the size). Marked minimized: they already are, and Terser
+      // would otherwise spend minutes re-minifying 30 MB in production builds.
       from: "node_modules/@microsoft/office-js/dist",
       to: "office-js",
       globOptions: { ignore: ["**/*.debug.js"] },
+      info: { minimized: true },
     },
   ];
 
