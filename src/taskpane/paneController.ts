@@ -274,7 +274,7 @@ export class PaneController {
       const where = this.layout ? ` Live formulas are on the sheet "${this.layout.sheet}".` : "";
       this.setStatus({
         phase: "done",
-        message: `Fitted on ${outcome.model.fit.rowsUsed.toLocaleString("en-US")} rows in ${seconds} s.${where}`,
+        message: `Fitted on ${outcome.model.fit.rowsUsed.toLocaleString("en-US")} rows in ${seconds} s${outcome.runner === "worker" ? " (in the background)" : ""}.${where}`,
       });
     } catch (e) {
       if (e instanceof FitCancelled) {

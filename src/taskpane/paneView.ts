@@ -384,11 +384,12 @@ export class PaneView {
     const head = h(
       "thead",
       {},
-      h("tr", {}, h("th", { scope: "col" }, "Row"), ...r.keyNames.map((k) => h("th", { scope: "col" }, k)), h("th", { scope: "col" }, r.probabilityLabel), h("th", { scope: "col" }, "Margin"), h("th", { scope: "col" }, "Why listed")),
+      h("tr", {}, h("th", { scope: "col" }, "Row"), ...r.keyNames.map((k) => h("th", { scope: "col" }, k)), h("th", { scope: "col" }, r.probabilityLabel), h("th", { scope: "col" }, "Margin"), h("th", { scope: "col", title: "band: within the band of the threshold; interval: its probability interval contains the threshold" }, "Why")),
     );
     const body = h("tbody");
     for (const line of r.lines) {
-      const why = [line.withinBand ? "in band" : "", line.undecided ? "interval spans threshold" : ""].filter(Boolean).join("; ");
+      // "band": within the band; "interval": its probability interval contains the threshold.
+      const why = [line.withinBand ? "band" : "", line.undecided ? "interval" : ""].filter(Boolean).join(" + ");
       const tr = h(
         "tr",
         { "data-sheet-row": String(line.sheetRow), tabindex: "0", title: `Select row ${line.sheetRow} in the sheet` },

@@ -1,0 +1,205 @@
+/**
+ * The preview workbench in headless Chromium: the real task pane beside the in-memory workbook.
+ * Each check below is what a person would do and see; numbers in the pane are compared with the
+ * engine's own computation from the same data in this (Node) process.
+ */
+import type { Server } from "http";
+import type { BrowserContext, Page } from "playwright-core";
+import fs from "fs";
+import { nearBoundaryRows } from "../../src/engine/boundary";
+import { scoreRows, trainModel } from "../../src/engine/model";
+import type { CellValue } from "../../src/engine/types";
+import { readModelOptions } from "../../src/functions/modelCell";
+import { DEMO_SHEETS } from "../../src/preview/demo";
+import { CAUTIONS, CAUTIONS_TITLE } from "../../src/taskpane/cautions";
+import { BUILD_TIMEOUT_MS, ensureBuild, launch, saveArtifact, startServer } from "./harness";
+
+jest.setTimeout(120_000);
+
+/** Probabilities are printed with 3 decimals in the list. */
+const PRINTED_DECIMALS = 3;
+/** Time the pane may take to fit, write and recalculate on the demo data (~0.5 s measured). */
+const FIT_WAIT_MS = 30_000;
+
+let server: Server;
+let base: string;
+let context: BrowserContext;
+let profile: string;
+/** Requests that left our origin (must stay empty). */
+const foreignRequests: string[] = [];
+/** Console errors and page errors (must stay empty). */
+const pageErrors: string[] = [];
+
+beforeAll(async () => {
+  ensureBuild();
+  ({ server, base } = await startServer());
+  ({ context, profile } = await launch());
+  context.on("request", (r) => {
+    if (!r.url().startsWith(base) && !r.url().startsWith("data:")) foreignRequests.push(r.url());
+  });
+}, BUILD_TIMEOUT_MS);
+
+afterAll(async () => {
+  await context?.close();
+  server?.close();
+  if (profile) fs.rmSync(profile, { recursive: true, force: true });
+});
+
+async function openWorkbench(query = ""): Promise<Page> {
+  const page = await context.newPage();
+  page.on("console", (m) => {
+    if (m.type() === "error") pageErrors.push(m.text());
+  });
+  page.on("pageerror", (e) => pageErrors.push(e.message));
+  await page.goto(`${base}/preview.html${query}`);
+  await page.waitForSelector("#osm-use");
+  return page;
+}
+
+async function fitDemo(page: Page): Promise<void> {
+  await page.click("#osm-use");
+  await page.waitForFunction(() => (document.querySelector("#osm-label") as HTMLSelectElement).options.length > 0);
+  await page.click("#osm-fit");
+  await page.waitForFunction(() => /^Fitted on/.test(document.querySelector("#osm-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+}
+
+/** The engine's borderline list for the demo data, computed here from the same cells and options. */
+function engineBorderline(values: CellValue[][], threshold = 0.5, band = 0.1) {
+  const options = readModelOptions("test", [[`penalty=0; level=0.95; threshold=${threshold}`]]);
+  const labels = values.map((r) => [r[6]]);
+  const predictors = values.map((r) => r.slice(2, 6));
+  const model = trainModel(labels, predictors, options.model);
+  const scores = scoreRows(model, null, { threshold });
+  return nearBoundaryRows(scores.prediction, { threshold, band, undecided: true, limit: 200 });
+}
+
+async function listedRows(page: Page): Promise<{ row: number; probability: string }[]> {
+  return page.$$eval("#osm-review-table tbody tr", (trs) =>
+    trs.map((tr) => ({ row: Number((tr as HTMLElement).dataset.sheetRow), probability: tr.children[tr.children.length - 3].textContent ?? "" })),
+  );
+}
+
+describe("preview workbench", () => {
+  test("the pane shows the safety cautions", async () => {
+    const page = await openWorkbench();
+    const text = await page.textContent("#osm-cautions");
+    expect(text).toContain(CAUTIONS_TITLE);
+    for (const c of CAUTIONS) expect(text).toContain(c);
+    await page.close();
+  });
+
+  test("setting up a model on the demo data lists the same borderline rows as the engine", async () => {
+    const page = await openWorkbench();
+    await fitDemo(page);
+    expect(await page.$eval("#osm-label", (s) => (s as HTMLSelectElement).selectedOptions[0].textContent)).toBe("held");
+    const expected = engineBorderline(DEMO_SHEETS[0].values);
+    const listed = await listedRows(page);
+    expect(listed.map((l) => l.row)).toEqual(expected.rows.map((r) => r.row + 2));
+    expect(listed.map((l) => l.probability)).toEqual(expected.rows.map((r) => r.probability.toFixed(PRINTED_DECIMALS)));
+    const summary = await page.textContent("#osm-review-summary");
+    expect(summary).toContain(`${expected.withinBand} rows lie within 0.10 of the threshold 0.50.`);
+    expect(summary).toContain(`${expected.undecidedOnly} more rows have a 95% interval`);
+    // The live formulas landed on the results sheet.
+    await page.click('.ledger-tab[data-sheet="Oddsmith results"]');
+    expect(await page.textContent('.ledger-table td[data-row="1"][data-col="1"]')).toBe("P(yes)");
+    expect(await page.textContent('.ledger-table td[data-row="1"][data-col="6"]')).toBe("term");
+    await page.close();
+  });
+
+  test("clicking a listed row selects it in the sheet view", async () => {
+    const page = await openWorkbench();
+    await fitDemo(page);
+    const third = (await listedRows(page))[2].row;
+    await page.click(`#osm-review-table tbody tr[data-sheet-row="${third}"]`);
+    await page.waitForSelector(`.ledger-table tr[data-row="${third}"].is-picked-row`);
+    const selected = await page.$$eval(`.ledger-table tr[data-row="${third}"] td.is-selected`, (tds) => tds.length);
+    expect(selected).toBe(8);
+    expect(await page.textContent("#entry-address")).toBe(`Crates!A${third}`);
+    await page.close();
+  });
+
+  test("editing a cell refreshes the formulas and the borderline list", async () => {
+    const page = await openWorkbench();
+    await fitDemo(page);
+    const first = (await listedRows(page))[0].row;
+    // Bruises of that crate (column F) go from few to 9: far more likely to be held back.
+    await page.click(`.ledger-table td[data-row="${first}"][data-col="6"]`);
+    await page.fill("#entry", "9");
+    await page.press("#entry", "Enter");
+    await page.waitForFunction(
+      (row) => ![...document.querySelectorAll("#osm-review-table tbody tr")].some((tr) => (tr as HTMLElement).dataset.sheetRow === String(row)),
+      first,
+      { timeout: FIT_WAIT_MS },
+    );
+    const edited = DEMO_SHEETS[0].values.map((r) => r.slice());
+    edited[first - 1][5] = 9;
+    const expected = engineBorderline(edited);
+    await page.waitForFunction(() => /^Fitted on/.test(document.querySelector("#osm-status")?.textContent ?? ""));
+    expect((await listedRows(page)).map((l) => l.row)).toEqual(expected.rows.map((r) => r.row + 2));
+    // The results sheet's PROB formula recalculated for that row.
+    await page.click('.ledger-tab[data-sheet="Oddsmith results"]');
+    const shown = Number(await page.textContent(`.ledger-table td[data-row="${first}"][data-col="1"]`));
+    const options = readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]);
+    const p = scoreRows(trainModel(edited.map((r) => [r[6]]), edited.map((r) => r.slice(2, 6)), options.model), null).prediction.probabilities[1][first - 2];
+    expect(shown).toBeCloseTo(p, 5);
+    await page.close();
+  });
+
+  test("the boundary plot draws every row, the borderline rings and the boundary line", async () => {
+    const page = await openWorkbench();
+    await fitDemo(page);
+    await page.waitForSelector("#osm-plot-area svg");
+    expect(await page.$$eval("#osm-plot-area .osm-point", (p) => p.length)).toBe(240);
+    const rings = await page.$$eval("#osm-plot-area .osm-ring", (p) => p.length);
+    expect(rings).toBe(engineBorderline(DEMO_SHEETS[0].values).total);
+    const boundary = await page.$eval("#osm-plot-area .osm-boundary", (p) => p.getAttribute("d") ?? "");
+    expect(boundary.length).toBeGreaterThan(20);
+    expect(await page.textContent("#osm-plot-caption")).toContain("Other predictors held at: brix =");
+    saveArtifact("workbench-plot.png", await page.locator("#osm-plot").screenshot());
+    saveArtifact("workbench.png", await page.screenshot({ fullPage: false }));
+    await page.close();
+  });
+
+  test("hostile cell text shows as plain text and creates no element", async () => {
+    const page = await openWorkbench();
+    const hostile = '<img src=x onerror="window.__oddsmithPwned=1">';
+    const header = "<b>crate</b>";
+    // Into a data cell (the key column shown in the list) and into the header of that column.
+    await page.click('.ledger-table td[data-row="1"][data-col="1"]');
+    await page.fill("#entry", header);
+    await page.press("#entry", "Enter");
+    await page.waitForFunction((t) => document.querySelector('.ledger-table td[data-row="1"][data-col="1"]')?.textContent === t, header);
+    await page.click('.ledger-table td[data-row="2"][data-col="1"]');
+    await page.fill("#entry", hostile);
+    await page.press("#entry", "Enter");
+    await page.waitForFunction((t) => document.querySelector('.ledger-table td[data-row="2"][data-col="1"]')?.textContent === t, hostile);
+    await fitDemo(page);
+    await page.fill("#osm-band", "0.5");
+    await page.dispatchEvent("#osm-band", "change");
+    await page.waitForSelector('#osm-review-table tbody tr[data-sheet-row="2"]');
+    const cell = await page.textContent('#osm-review-table tbody tr[data-sheet-row="2"] td:nth-child(2)');
+    expect(cell).toBe(hostile);
+    expect(await page.textContent("#osm-review-table thead th:nth-child(2)")).toBe(header);
+    const created = await page.evaluate(() => ({
+      img: document.querySelectorAll("img").length,
+      bold: document.querySelectorAll("b").length,
+      pwned: (window as unknown as Record<string, unknown>).__oddsmithPwned ?? null,
+    }));
+    expect(created).toEqual({ img: 0, bold: 0, pwned: null });
+    await page.close();
+  });
+
+  test("the fit can run in the background worker with the same result", async () => {
+    const page = await openWorkbench("?runner=worker");
+    await fitDemo(page);
+    expect(await page.textContent("#osm-status")).toMatch(/^Fitted on 240 rows in [\d.]+ s \(in the background\)\./);
+    const expected = engineBorderline(DEMO_SHEETS[0].values);
+    expect((await listedRows(page)).map((l) => l.row)).toEqual(expected.rows.map((r) => r.row + 2));
+    await page.close();
+  });
+
+  test("nothing left the page's origin and no page error occurred", () => {
+    expect(foreignRequests).toEqual([]);
+    expect(pageErrors).toEqual([]);
+  });
+});
