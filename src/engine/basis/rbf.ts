@@ -89,9 +89,23 @@ export function fitRbf(columns: readonly BasisColumn[], options: RbfOptions): Rb
     let m = 0;
     for (const i of complete) m += x[i];
     m /= complete.length;
+    // A sum beyond the double range (values near 1e308): average the scaled values instead.
+    if (!Number.isFinite(m)) {
+      m = 0;
+      for (const i of complete) m += x[i] / complete.length;
+    }
     let ss = 0;
     for (const i of complete) ss += (x[i] - m) * (x[i] - m);
-    const sd = Math.sqrt(ss / (complete.length - 1));
+    let sd = Math.sqrt(ss / (complete.length - 1));
+    // Squares of deviations near 1e300 overflow (every centre would coincide) and near 1e-300
+    // underflow: then scale the deviations by the largest one before squaring.
+    if (!Number.isFinite(sd) || sd < 1e-140) {
+      let big = 0;
+      for (const i of complete) big = Math.max(big, Math.abs(x[i] - m));
+      ss = 0;
+      if (big > 0 && Number.isFinite(big)) for (const i of complete) ss += ((x[i] - m) / big) ** 2;
+      sd = big * Math.sqrt(ss / (complete.length - 1));
+    }
     if (!(complete.length >= 2 && sd > 0)) {
       throw problem("BASIS_TOO_FEW_VALUES", {
         transform: label,

@@ -28,9 +28,17 @@ export function fitZscore(column: BasisColumn): ZscoreState {
   let mean = 0;
   for (const v of x) mean += v;
   mean /= n;
+  // A sum beyond the double range (values near 1e308): average the scaled values instead.
+  if (!Number.isFinite(mean)) {
+    mean = 0;
+    for (const v of x) mean += v / n;
+  }
   let ss = 0;
   for (const v of x) ss += (v - mean) * (v - mean);
-  const sd = Math.sqrt(ss / (n - 1));
+  let sd = Math.sqrt(ss / (n - 1));
+  // Squares of deviations near 1e300 overflow (every z would be 0) and near 1e-300 underflow (the
+  // column would look constant): then scale the deviations by the largest one before squaring.
+  if (!Number.isFinite(sd) || sd < 1e-140) sd = scaledSampleSd(x, mean);
   if (!(n >= 2 && sd > 0)) {
     throw problem("BASIS_TOO_FEW_VALUES", {
       transform: "z",
@@ -41,6 +49,16 @@ export function fitZscore(column: BasisColumn): ZscoreState {
     });
   }
   return { kind: "zscore", source: column.name, mean, sd, names: [`z(${column.name})`] };
+}
+
+/** Sample SD computed from deviations divided by the largest one (no overflow or underflow in the squares). */
+function scaledSampleSd(x: readonly number[], mean: number): number {
+  let big = 0;
+  for (const v of x) big = Math.max(big, Math.abs(v - mean));
+  if (!(big > 0) || !Number.isFinite(big)) return big;
+  let ss = 0;
+  for (const v of x) ss += ((v - mean) / big) ** 2;
+  return big * Math.sqrt(ss / (x.length - 1));
 }
 
 /** Apply a z-score with the stored mean and SD (blank/text: NaN and a row note). */
