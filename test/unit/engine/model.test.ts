@@ -379,3 +379,46 @@ describe("trainModel: multi-class against nnet::multinom on the orchard survey",
     expect(m.fit.equationClasses).toEqual(["high", "medium"]);
   });
 });
+
+describe("property: any input gives a result or a catalogue message, never a raw exception", () => {
+  const fc = require("fast-check") as typeof import("fast-check");
+  test("random small ranges of numbers, words, booleans, blanks and non-finite numbers", () => {
+    const cell = fc.oneof(
+      { arbitrary: fc.constant(null), weight: 1 },
+      { arbitrary: fc.constant(""), weight: 1 },
+      { arbitrary: fc.integer({ min: -3, max: 3 }), weight: 6 },
+      { arbitrary: fc.constantFrom(NaN, Infinity, 1e300, -1e-300), weight: 1 },
+      { arbitrary: fc.constantFrom("a", "b", "yes", "no", " 1.5 ", "x y"), weight: 2 },
+      { arbitrary: fc.boolean(), weight: 1 },
+    );
+    const label = fc.oneof(
+      { arbitrary: fc.constant(null), weight: 1 },
+      { arbitrary: fc.constantFrom("yes", "no"), weight: 6 },
+      { arbitrary: fc.constantFrom("maybe", 1, true), weight: 1 },
+    );
+    const column = <T,>(n: number, a: import("fast-check").Arbitrary<T>) => fc.array(fc.array(a, { minLength: 1, maxLength: 1 }), { minLength: n, maxLength: n });
+    const inputs = fc.integer({ min: 1, max: 14 }).chain((n) =>
+      fc.tuple(
+        column(n, label),
+        fc.array(fc.array(cell, { minLength: 2, maxLength: 2 }), { minLength: n, maxLength: n }),
+        fc.option(column(n, fc.oneof(fc.integer({ min: 0, max: 3 }), fc.constant(null), fc.constant(-1))), { nil: null }),
+      ),
+    );
+    let fitted = 0;
+    fc.assert(
+      fc.property(inputs, ([labels, predictors, weights]) => {
+        try {
+          const m = trainModel(labels, predictors, { weights });
+          scoreRows(m, null);
+          scoreRows(m, predictors.slice(0, 3));
+          fitted++;
+        } catch (e) {
+          if (!(e instanceof OddsmithError)) throw e;
+        }
+      }),
+      { seed: 7, numRuns: 500 },
+    );
+    // Some random inputs must get through to a fit, or the property only exercises rejections.
+    expect(fitted).toBeGreaterThan(5);
+  });
+});
