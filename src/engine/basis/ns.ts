@@ -208,30 +208,36 @@ export function applyNs(state: NsState, column: BasisColumn): BasisBlock {
   const notes: BasisBlock["notes"] = [];
   const x = readNumbers(column, "ns", notes);
   const [lo, hi] = state.boundary;
-  const t = [lo, lo, lo, lo, ...state.knots, hi, hi, hi, hi];
+  // Work on u = (x - lo) / (hi - lo), boundary knots 0 and 1: B-splines are invariant under this
+  // affine map and the second-derivative constraints only scale by (hi - lo)^-2 (same null space,
+  // same Householder reflections), so the values are those on the x scale, while data near 1e300
+  // or 1e-300 no longer over- or underflow in the derivatives (which gave wrong columns or none).
+  const h = hi - lo;
+  const unit = (v: number) => (v - lo) / h;
+  const t = [0, 0, 0, 0, ...state.knots.map(unit), 1, 1, 1, 1];
   const nb = t.length - ORDER;
   const nbc = nb - 1; // first B-spline dropped (no intercept)
   // Constraint matrix t(const): nbc rows x 2 columns (second derivatives at lo and hi), column-major.
-  const c0 = bsplineRow(t, lo, 2).subarray(1);
-  const c1 = bsplineRow(t, hi, 2).subarray(1);
+  const c0 = bsplineRow(t, 0, 2).subarray(1);
+  const c1 = bsplineRow(t, 1, 2).subarray(1);
   const qrCols = [Float64Array.from(c0), Float64Array.from(c1)];
   const qraux = householderQr(qrCols, nbc);
   // Value and slope at each boundary, for linear extrapolation.
-  const atLo = [bsplineRow(t, lo, 0), bsplineRow(t, lo, 1)];
-  const atHi = [bsplineRow(t, hi, 0), bsplineRow(t, hi, 1)];
+  const atLo = [bsplineRow(t, 0, 0), bsplineRow(t, 0, 1)];
+  const atHi = [bsplineRow(t, 1, 0), bsplineRow(t, 1, 1)];
   const df = nbc - 2;
   const columns = Array.from({ length: df }, () => new Float64Array(x.length));
   const y = new Float64Array(nbc);
   for (let i = 0; i < x.length; i++) {
-    const v = x[i];
-    if (!Number.isFinite(v)) {
+    if (!Number.isFinite(x[i])) {
       for (const col of columns) col[i] = NaN;
       continue;
     }
+    const v = unit(x[i]);
     let row: Float64Array;
-    if (v < lo || v > hi) {
-      const [b, db] = v < lo ? atLo : atHi;
-      const dx = v - (v < lo ? lo : hi);
+    if (v < 0 || v > 1) {
+      const [b, db] = v < 0 ? atLo : atHi;
+      const dx = v - (v < 0 ? 0 : 1);
       row = new Float64Array(nb);
       for (let j = 0; j < nb; j++) row[j] = b[j] + dx * db[j];
     } else {
