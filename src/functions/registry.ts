@@ -97,6 +97,12 @@ export const CELL_FUNCTIONS_BY_NAME: Readonly<Record<string, CellFunctionSpec>> 
 
 export { NAMESPACE };
 
+/** The registry entry for a name with or without the namespace ("ODDS.FIT", "fit"), or undefined. */
+export function findCellFunction(name: string): CellFunctionSpec | undefined {
+  const key = name.trim().toUpperCase().replace(new RegExp(`^${NAMESPACE}\\.`), "");
+  return CELL_FUNCTIONS_BY_NAME[key];
+}
+
 /**
  * Evaluate a cell function by name, as Excel would: missing trailing optional arguments become
  * null; failures are thrown as CellFunctionFailure (outside Office) carrying the cell error and the
@@ -104,8 +110,7 @@ export { NAMESPACE };
  * @throws CellFunctionFailure when the name is unknown or the function fails
  */
 export function evaluateCellFunction(name: string, args: CellArgument[]): CellResult {
-  const key = name.toUpperCase().replace(new RegExp(`^${NAMESPACE}\\.`), "");
-  const fn = CELL_FUNCTIONS_BY_NAME[key];
+  const fn = findCellFunction(name);
   return runCell(fn ? fn.doing : `evaluating ${name}`, () => {
     if (!fn) throw new UnknownFunction(name);
     const full = fn.parameters.map((_, i) => (i < args.length ? (args[i] ?? null) : null));

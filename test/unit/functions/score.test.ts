@@ -48,6 +48,19 @@ describe("ODDS.SCORE from ODDS.FIT's spilled table", () => {
     for (let i = 1; i < 6; i++) for (let k = 0; k < 7; k++) expectClose(scored[i][k], reference[i][k] as number, 1e-12, `row ${i} class ${k}`);
   });
 
+  test("several classes, penalized symmetric form: the same probabilities as ODDS.PROB", () => {
+    const l = column("PID", anes.y);
+    const p = table(Object.fromEntries(anes.columns.map((c, k) => [c, anes.X[k]])));
+    const options = [["form=symmetric; penalty=1"]];
+    const coefficients = fit(l, p, options);
+    expect(coefficients[0][0]).toBe("class (symmetric)");
+    const rows = [p[0], ...p.slice(1, 4)];
+    const scored = score(coefficients, rows);
+    const reference = prob(l, p, rows, options);
+    expect(scored[0]).toEqual(reference[0]);
+    for (let i = 1; i < 4; i++) for (let k = 0; k < 7; k++) expectClose(scored[i][k], reference[i][k] as number, 1e-12, `row ${i} class ${k}`);
+  });
+
   test("an edited coefficient changes the probabilities as the logistic function says", () => {
     const coefficients = fit(labels, predictors, OMITTED).map((r) => r.slice());
     coefficients[4][2] = 0; // drop PSI by hand
