@@ -3,8 +3,8 @@
  * softmax (several classes) fit, as a spilled range.
  *
  * Layout (ODDS.SCORE reads it back, by header names):
- *   class (positive) | term | coefficient | std. error | z | p | lower 95% | upper 95% | odds ratio | OR lower 95% | OR upper 95%
- * - The first header cell names the modelled class's role: "class (positive)" for two classes (each
+ *   class (positive: yes) | term | coefficient | std. error | z | p | lower 95% | upper 95% | odds ratio | OR lower 95% | OR upper 95%
+ * - The first header cell names the modelled class: "class (positive: yes)" for two classes (each
  *   row's class cell is the positive class), "class (reference: A)" for the reference-class form
  *   (each row is the equation of its class against A), "class (symmetric)" for the penalized
  *   symmetric form. Several classes show relative-risk ratios (RRR) instead of odds ratios.
@@ -24,7 +24,7 @@ export function coefficientHeader(fit: ModelFit): string[] {
   const how = fit.intervalMethod === "profile" ? " (profile)" : "";
   const multi = fit.kind === "multiclass";
   const first = !multi
-    ? "class (positive)"
+    ? `class (positive: ${fit.positiveClass})`
     : fit.form === "symmetric"
       ? "class (symmetric)"
       : `class (reference: ${fit.referenceClass})`;

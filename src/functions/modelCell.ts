@@ -7,11 +7,11 @@
  * REPORT over the same ranges share one fit, and any edited, appended or deleted cell refits. The
  * cache is src/shared/fitCache.ts, shared with the task pane in the shared runtime.
  */
-import { OddsmithError, type MessageCode } from "../engine/messages";
+import { OddsmithError, problem, type MessageCode } from "../engine/messages";
 import { trainModel, type ModelOptions, type TrainedModel } from "../engine/model";
 import type { CellValue, Diagnostic } from "../engine/types";
 import { cellCount, contentKey, sharedFitCache } from "../shared/fitCache";
-import { FIT_OPTIONS, parseBaselines, parseOptions, type ParsedOptions } from "./options";
+import { FIT_OPTIONS, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
 import { checkPayload } from "./payload";
 import { required } from "./required";
 
@@ -88,4 +88,18 @@ export function requireUsableFit(model: TrainedModel): void {
   // The diagnostic already carries the filled-in message (with columns and rows).
   error.message = failure.message;
   throw error;
+}
+
+/**
+ * A threshold set for a multi-class model would be silently ignored (each row gets its most probable
+ * class): refuse it with BAD_OPTION_VALUE instead. The default value passes.
+ */
+export function refuseThresholdForSeveralClasses(model: TrainedModel, threshold: number): void {
+  if (model.kind !== "multiclass" || threshold === OPT_THRESHOLD.default) return;
+  throw problem("BAD_OPTION_VALUE", {
+    name: "threshold",
+    value: threshold,
+    expected:
+      "A threshold applies to two classes only; with several classes each row gets its most probable class. Remove the threshold option.",
+  });
 }

@@ -14,12 +14,10 @@
  *   |p - threshold|; several -> the gap between the two largest class probabilities.
  * - threshold (option) sets the two-class decision for CLASS and MARGIN; it never refits.
  */
-import { problem } from "../engine/messages";
 import { scoreRows, type RowScores } from "../engine/model";
-import { OPT_THRESHOLD } from "./options";
 import type { CellValue } from "../engine/types";
 import { spill } from "./cellOutput";
-import { fittedModel, readModelOptions, requireUsableFit } from "./modelCell";
+import { fittedModel, readModelOptions, refuseThresholdForSeveralClasses, requireUsableFit } from "./modelCell";
 import { checkPayload } from "./payload";
 
 type Output = "prob" | "class" | "margin";
@@ -50,14 +48,7 @@ function scored(
       outputRows(labels, newRows) * model.fit.classes.length,
     );
   }
-  if (model.kind === "multiclass" && what !== "prob" && opts.threshold !== OPT_THRESHOLD.default) {
-    // A threshold would be silently ignored with several classes: refuse it instead.
-    throw problem("BAD_OPTION_VALUE", {
-      name: "threshold",
-      value: opts.threshold,
-      expected: "A threshold applies to two classes only; with several classes each row gets its most probable class. Remove the threshold option.",
-    });
-  }
+  if (what !== "prob") refuseThresholdForSeveralClasses(model, opts.threshold);
   return scoreRows(model, newRows, { threshold: opts.threshold, headers: opts.headers });
 }
 

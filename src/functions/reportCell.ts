@@ -25,7 +25,7 @@ import { scoreRows, type TrainedModel } from "../engine/model";
 import { readTable } from "../engine/table";
 import type { CellValue } from "../engine/types";
 import { spill } from "./cellOutput";
-import { fitFailure, fittedModel, readModelOptions } from "./modelCell";
+import { fitFailure, fittedModel, readModelOptions, refuseThresholdForSeveralClasses } from "./modelCell";
 
 const SEVERITY_WORD = { error: "problem", warning: "warning", note: "note" } as const;
 
@@ -76,6 +76,7 @@ function inSampleMetrics(model: TrainedModel, labels: CellValue[][], threshold: 
 export function reportCell(labels: CellValue[][] | null, predictors: CellValue[][] | null, options: CellValue[][] | null): CellValue[][] {
   const opts = readModelOptions("ODDS.REPORT", options);
   const model = fittedModel(labels, predictors, opts, 200);
+  refuseThresholdForSeveralClasses(model, opts.threshold);
   const fit = model.fit;
   const failure = fitFailure(model);
   const binary = fit.kind === "binary";

@@ -30,7 +30,7 @@ const d = spector.data;
 const spectorLabels = column("GRADE", d.GRADE);
 const spectorPredictors = table({ GPA: d.GPA, TUCE: d.TUCE, PSI: d.PSI });
 const HEADER = [
-  "class (positive)",
+  "class (positive: 1)",
   "term",
   "coefficient",
   "std. error",
@@ -89,6 +89,10 @@ describe("ODDS.FIT, two classes (Spector grades data)", () => {
     }
   });
 
+  test("threshold= is accepted and changes nothing (one options cell can serve every function)", () => {
+    expect(fit(spectorLabels, spectorPredictors, [["threshold=0.3"]])).toEqual(out);
+  });
+
   test("level=0.9 relabels and narrows the intervals", () => {
     const o = fit(spectorLabels, spectorPredictors, [["level=0.9"]]);
     expect(o[0][6]).toBe("lower 90%");
@@ -110,6 +114,7 @@ describe("ODDS.FIT, two classes (Spector grades data)", () => {
   test("text labels with positive= choose the modelled class and name it in every row", () => {
     const labels = column("result", d.GRADE.map((g) => (g === 1 ? "improved" : "same")));
     const o = fit(labels, spectorPredictors, [["positive", "same"]]);
+    expect(o[0][0]).toBe("class (positive: same)");
     expect(o.slice(1).every((r) => r[0] === "same")).toBe(true);
     // Modelling the other class negates every coefficient.
     for (let j = 0; j < 4; j++) expectClose(o[1 + j][2], -glm.spector.coefficients[j], R_TOLERANCE, `negated ${j}`);

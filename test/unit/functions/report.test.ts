@@ -11,7 +11,7 @@ import * as anes from "../../fixtures/multiclass/anes96.json";
 import { formatMessage } from "../../../src/engine/messages";
 import { report } from "../../../src/functions/functions";
 import { sharedFitCache } from "../../../src/shared/fitCache";
-import { OMITTED, column, expectClose, expectCleanCells, lookup, table } from "./excel";
+import { OMITTED, column, expectClose, expectCleanCells, failure, lookup, table } from "./excel";
 
 /** See fit.test.ts. */
 const R_TOLERANCE = 1e-7;
@@ -131,6 +131,14 @@ describe("ODDS.REPORT, several classes (ANES 1996)", () => {
     expectClose(lookup(o, "BIC"), anes.stata.bic, STATA_TOLERANCE, "BIC");
     expectClose(lookup(o, "pseudo-R2 (McFadden)"), anes.stata.pseudoR2, STATA_TOLERANCE, "pseudo-R2");
     expect(lookup(o, "LR test df")).toBe(anes.stata.lrDf);
+  });
+
+  test("a threshold is refused with several classes (it would be ignored)", () => {
+    const f = failure(() =>
+      report(column("PID", anes.y), table(Object.fromEntries(anes.columns.map((c, k) => [c, anes.X[k]]))), [["threshold=0.4"]]),
+    );
+    expect(f.code).toBe("BAD_OPTION_VALUE");
+    expect(f.message).toContain("two classes only");
   });
 
   test("multi-class log-loss is -logLik / n; no AUC row", () => {
