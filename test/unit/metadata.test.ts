@@ -141,3 +141,19 @@ describe("functions.json generated from functions.ts", () => {
     }
   });
 });
+
+describe("help page rendered from docs/functions.md (scripts/help-page.js)", () => {
+  test("renders headings with their anchors, tables, lists and code, escaping HTML", () => {
+    const html: string = renderHelpPage(
+      ["# Title", "", "## Part {#part}", "", "Text with `a<b` and **bold**.", "", "- one", "- two", "", "| a | b |", "|---|---|", "| 1 | <x> |", "", "```", "=ODDS.FIT(A1:A3, B1:B3)", "```"].join("\n"),
+    );
+    expect(html).toContain("<title>Title</title>");
+    expect(html).toContain('<h2 id="part">Part</h2>');
+    expect(html).toContain("<code>a&lt;b</code>");
+    expect(html).toContain("<strong>bold</strong>");
+    expect(html).toContain("<ul><li>one</li><li>two</li></ul>");
+    expect(html).toContain("<td>&lt;x&gt;</td>");
+    expect(html).toContain("<pre><code>=ODDS.FIT(A1:A3, B1:B3)</code></pre>");
+    expect(html).not.toMatch(/<script|https?:\/\//);
+  });
+});
