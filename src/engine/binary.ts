@@ -395,8 +395,10 @@ export function fitBinaryModel(
 
   // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
   const unitGram = weightedCrossProduct(z, a, n, new Float64Array(p * p));
+  // A ridge penalty makes collinear columns estimable, so it enters the rank decision; Firth's
+  // penalty needs log det of the unpenalized information, so with bias reduction it does not.
   const gram = Float64Array.from(unitGram);
-  for (let j = 0; j < p; j++) gram[j * p + j] += penaltyAll[j];
+  if (!opt.biasReduction) for (let j = 0; j < p; j++) gram[j * p + j] += penaltyAll[j];
   const rr = rankRevealingCholesky(gram, p, ALIAS_TOLERANCE);
   const aliased = new Array<boolean>(p).fill(false);
   for (const j of rr.dependent) aliased[j] = true;
@@ -493,9 +495,18 @@ export function fitBinaryModel(
     const inv = invertSymmetric(fit.information, k);
     if (inv) covK = congruence(T, inv, k);
   }
+  // Values so extreme that a coefficient (or its variance) is not representable on the original
+  // scale (above 1.8e308): no usable estimate, and the message asks for a rescaled column.
+  const overflowTerms = kept
+    .filter((j, t) => (!Number.isFinite(coefK[t]) && !Number.isNaN(coefK[t])) || (covK !== null && covK[t * k + t] === Infinity))
+    .map((j) => terms[j]);
+  if (overflowTerms.length > 0) {
+    diagnostics.push(diag("COEFFICIENT_OVERFLOW", "error", { columns: listNames(overflowTerms) }, { columns: overflowTerms }));
+  }
+  const unusable = separatedUnusable || overflowTerms.length > 0;
   const coefficients = new Float64Array(p).fill(NaN);
   let covariance: Float64Array | null = null;
-  if (!separatedUnusable) {
+  if (!unusable) {
     for (let t = 0; t < k; t++) coefficients[kept[t]] = coefK[t];
     if (covK) {
       covariance = new Float64Array(p * p).fill(NaN);
@@ -529,7 +540,7 @@ export function fitBinaryModel(
 
   // ---- intervals ---------------------------------------------------------------------------
   let intervals: Interval[] | null = null;
-  if (opt.intervalMethod === "profile" && !separatedUnusable) {
+  if (opt.intervalMethod === "profile" && !unusable) {
     if (penalized || opt.biasReduction) {
       diagnostics.push(
         diag("PROFILE_NOT_AVAILABLE", "note", {
@@ -595,7 +606,7 @@ export function fitBinaryModel(
     lrTest,
     parameters: k,
     iterations: fit.iterations,
-    converged: fit.converged && !separatedUnusable,
+    converged: fit.converged && !unusable,
     diagnostics,
   };
 }

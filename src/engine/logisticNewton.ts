@@ -6,7 +6,8 @@
  * Objective (minimized):  F(g) = -l(g) + (1/2) sum_j pen_j g_j^2 - [firth] (1/2) log det I(g),
  * with l(g) = sum_i w_i [ y_i log mu_i + (t_i - y_i) log(1 - mu_i) ], mu_i = sigmoid(offset_i + z_i'g).
  * Step: g <- g + I_pen^{-1} U, I_pen = Z'WZ + diag(pen), W_i = w_i t_i mu_i (1 - mu_i), U the
- * (modified) score. The step is halved while F does not decrease (as glm.fit does on divergence).
+ * (modified) score. The step is halved while F does not decrease sufficiently (Armijo's rule; glm.fit
+ * halves on divergence in the same spirit).
  * Convergence: |D - D_old| / (0.1 + |D|) < tol with D = 2F (the penalized deviance up to a
  * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations;
  * Firth fits additionally need the largest relative step below 1e-11.
@@ -162,6 +163,8 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   const score = new Float64Array(k);
   const step = new Float64Array(k);
   const gTry = new Float64Array(k);
+  const prevStep = new Float64Array(k);
+  let havePrevStep = false;
   const history: Float64Array[] = [];
 
   const freeIdx = p.free ? Array.from({ length: k }, (_, j) => j).filter((j) => p.free![j]) : null;
@@ -235,6 +238,20 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
     for (let j = 0; j < k; j++) decrement += score[j] * step[j];
 
     let scale = 1;
+    if (p.firth && havePrevStep) {
+      // Firth's iteration uses I in place of the Hessian of the penalized objective, so it can
+      // converge linearly with a negative ratio (overshooting back and forth). Estimate the ratio
+      // r = step'prev / prev'prev and take step / (1 - r) when r < 0: Aitken's extrapolation for a
+      // linearly convergent sequence (Aitken 1926), which lands on the fixed point for r = -1.
+      let sp = 0;
+      let pp = 0;
+      for (let j = 0; j < k; j++) {
+        sp += step[j] * prevStep[j];
+        pp += prevStep[j] * prevStep[j];
+      }
+      const r = pp > 0 ? sp / pp : 0;
+      if (r < 0) scale = 1 / (1 - Math.max(r, -1));
+    }
     let accepted = false;
     let llTry = 0;
     let objTry = 0;
@@ -249,7 +266,16 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
         factorTry = firthFactor(p, infoTry, k);
         objTry = factorTry ? objTry - 0.5 * logDetFromCholesky(factorTry, k) : Infinity;
       }
-      if (objTry <= objective + 1e-13 * Math.abs(objective) && Number.isFinite(objTry)) {
+      // Armijo's sufficient-decrease rule (Nocedal & Wright 2006, §3.1): F must fall by at least
+      // 1e-4 of the predicted decrease. A step that merely ties (an overshoot to the mirror point,
+      // which Firth's approximate Hessian can produce) is halved instead of accepted. Once the
+      // predicted decrease is below rounding of F, a non-increase is enough.
+      const predicted = scale * decrement;
+      const sufficient =
+        predicted > 1e-14 * (0.1 + Math.abs(objective))
+          ? objTry <= objective - 1e-4 * predicted
+          : objTry <= objective + 1e-13 * Math.abs(objective);
+      if (sufficient && Number.isFinite(objTry)) {
         accepted = true;
         break;
       }
@@ -264,6 +290,8 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
       converged = lastChange < 10 * p.tolerance;
       break;
     }
+    for (let j = 0; j < k; j++) prevStep[j] = gTry[j] - g[j];
+    havePrevStep = true;
     g.set(gTry);
     eta.set(etaTry);
     mu.set(muTry);

@@ -241,6 +241,12 @@ export const MESSAGES = {
     template:
       "The profile-likelihood interval of {term} has no {side} end within {limit} (the likelihood stays too flat), so that end is shown as missing. Check for separation or use Wald intervals.",
   },
+  COEFFICIENT_OVERFLOW: {
+    cellError: "#N/A",
+    title: "Coefficient too large to represent",
+    template:
+      "The coefficient of {columns} is too large to represent as a number, because the column's values are extremely small or extremely large. Rescale the column (for example multiply it by a power of 10) and fit again.",
+  },
   PROFILE_NOT_AVAILABLE: {
     cellError: "#N/A",
     title: "Profile intervals not available",

@@ -580,3 +580,65 @@ describe("extreme column scales", () => {
     expectScalarClose(f.table[2].standardError * 1e-120, base.table[2].standardError, 1e-9, "TUCE se");
   });
 });
+
+describe("robustness on odd inputs (fast-check)", () => {
+  const value = fc.oneof(
+    fc.constantFrom(0, 1, -1, 0.5, 1e-300, 1e300, -1e300, NaN, 3),
+    fc.double({ min: -1e6, max: 1e6, noNaN: true }),
+  );
+  const odd = fc.record({
+    n: fc.integer({ min: 1, max: 12 }),
+    p: fc.integer({ min: 0, max: 3 }),
+    cells: fc.array(value, { minLength: 36, maxLength: 36 }),
+    labels: fc.array(fc.constantFrom(0, 1, NaN), { minLength: 12, maxLength: 12 }),
+    weights: fc.option(fc.array(fc.constantFrom(0, 1, 2, 0.5, NaN), { minLength: 12, maxLength: 12 }), { nil: null }),
+    options: fc.record({
+      intercept: fc.boolean(),
+      penalty: fc.constantFrom(0, 0, 0.5),
+      biasReduction: fc.boolean(),
+      intervalMethod: fc.constantFrom("wald" as const, "profile" as const),
+    }),
+  });
+
+  test("fitBinaryModel returns a result or a catalogue error, never another exception or an infinite estimate", () => {
+    fc.assert(
+      fc.property(odd, ({ n, p, cells, labels, weights, options }) => {
+        const columns = Array.from({ length: p }, (_, j) => Float64Array.from(cells.slice(j * 12, j * 12 + n)));
+        const X = { rows: n, columns, names: columns.map((_, j) => `c${j}`) };
+        try {
+          const fit = fitBinaryModel(X, Float64Array.from(labels.slice(0, n)), { ...options, weights: weights ? Float64Array.from(weights.slice(0, n)) : null });
+          for (const r of fit.table) {
+            if (r.estimate === Infinity || r.estimate === -Infinity) return false;
+          }
+          for (const d of fit.diagnostics) if (!(d.message.length > 10)) return false;
+          const pr = predictBinary(fit, X);
+          for (const v of pr.probabilities[1]) if (!(Number.isNaN(v) || (v >= 0 && v <= 1))) return false;
+          return true;
+        } catch (e) {
+          return e instanceof OddsmithError;
+        }
+      }),
+      { numRuns: 300, seed: 7 },
+    );
+  });
+});
+
+describe("coefficients beyond the range of doubles", () => {
+  test("a column of subnormal values whose coefficient overflows gives COEFFICIENT_OVERFLOW, not Infinity", () => {
+    // Found by the robustness property: 5e-324 is the smallest double, so without an intercept its
+    // ridge coefficient on the original scale is ~1e323.
+    const X = design({ tiny: [0, 5e-324] });
+    const f = fitBinaryModel(X, Float64Array.of(0, 1), { penalty: 0.5, intercept: false, weights: Float64Array.of(0.5, 1) });
+    const d = f.diagnostics.find((x) => x.code === "COEFFICIENT_OVERFLOW")!;
+    expect(d.severity).toBe("error");
+    expect(d.columns).toEqual(["tiny"]);
+    expect(f.table.every((r) => Number.isNaN(r.estimate))).toBe(true);
+  });
+
+  test("a standard error above ~1e154 (variance overflow) is reported the same way", () => {
+    const X = design({ GPA: spX.columns[0].map((v) => v * 1e160), TUCE: spX.columns[1].map((v) => v * 1e-200), PSI: spX.columns[2] });
+    const f = fitBinaryModel(X, spY);
+    expect(f.diagnostics.find((x) => x.code === "COEFFICIENT_OVERFLOW")!.columns).toEqual(["TUCE"]);
+    expect(f.covariance).toBeNull();
+  });
+});

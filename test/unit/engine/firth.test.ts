@@ -128,3 +128,20 @@ describe("hatValues and logDetFromCholesky", () => {
     expectScalarClose(logDetFromCholesky(cholesky(a, 2).factor, 2), Math.log(8), 1e-14, "logdet");
   });
 });
+
+describe("Firth convergence on tiny data (found by property testing)", () => {
+  test("one informative row x = 1, y = 1 converges to logit(3/4) = log 3 instead of oscillating", () => {
+    // With one parameter and one informative row, h = 1 and the modified score 1 - mu + (1/2 - mu)
+    // vanishes at mu = 3/4. Firth's Newton step with I overshoots by exactly 2x here (the true
+    // Hessian is 2I), which the Aitken-damped step resolves.
+    const f = fitBinaryModel(design({ x: [1, 0] }), Float64Array.of(1, 0), { intercept: false, biasReduction: true });
+    expect(f.converged).toBe(true);
+    expectScalarClose(f.table[0].estimate, Math.log(3), 1e-9, "log 3");
+  });
+
+  test("with a ridge penalty as well, collinear columns are still dropped (Firth needs a non-singular information)", () => {
+    const f = fitBinaryModel(design({ a: [1, 0, 2, 1], b: [3, 0, 6, 3] }), Float64Array.of(1, 0, 1, 0), { intercept: false, biasReduction: true, penalty: 0.5 });
+    expect(f.aliased).toEqual([false, true]);
+    expect(f.converged).toBe(true);
+  });
+});
