@@ -5,7 +5,8 @@
  *
  * Policy (one line each):
  * - labels is one column; probabilities one column (positive-class probability, two classes) or one
- *   column per class. Both ranges must be equally tall (header rows included).
+ *   column per class. Both ranges must be equally tall (header rows included). Under headers=auto
+ *   they share one header decision: the range with the stronger evidence decides for both.
  * - Probability columns are matched to classes by their header names, "P(yes)" or "yes" (the header
  *   ODDS.PROB writes); without a header, several columns follow the classes' sorted order.
  * - Two classes and one column: the column is the positive class's probability. The positive class is
@@ -17,7 +18,7 @@
  */
 import { compareText, matchClass, readLabels, type LabelInfo } from "../engine/labels";
 import { OddsmithError, listNames, problem } from "../engine/messages";
-import { readTable, type Table } from "../engine/table";
+import { readTable, type HeaderEvidence, type Table } from "../engine/table";
 import type { CellValue } from "../engine/types";
 
 export interface MetricInputOptions {
@@ -47,6 +48,8 @@ export interface MetricInputs {
   /** 1-based row of the labels range (as selected) of each used row. */
   sheetRows: Int32Array;
 }
+
+const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, weak: 1, none: 0 };
 
 /** "P(yes)" -> "yes"; "yes" -> "yes". */
 export function classFromHeader(name: string): string {
@@ -101,11 +104,19 @@ export function readMetricInputs(
   options: MetricInputOptions,
 ): MetricInputs {
   const headers = options.headers ?? "auto";
-  const labelTable = readTable(labelCells, { argument: "labels", headers });
+  let labelTable = readTable(labelCells, { argument: "labels", headers });
   if (labelTable.columns.length !== 1) {
     throw problem("SINGLE_COLUMN_NEEDED", { argument: "labels", columns: labelTable.columns.length });
   }
-  const probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column " });
+  let probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column " });
+  if (labelTable.header !== probTable.header && headers === "auto") {
+    // Under auto the two ranges share one header decision: the stronger evidence decides for both
+    // (probabilities win a tie), as the fitting functions do.
+    const labelsDecide = EVIDENCE_RANK[labelTable.headerEvidence] > EVIDENCE_RANK[probTable.headerEvidence];
+    const forced = (labelsDecide ? labelTable.header : probTable.header) ? "yes" : "no";
+    labelTable = readTable(labelCells, { argument: "labels", headers: forced });
+    probTable = readTable(probabilityCells, { argument: "probabilities", headers: forced, namePrefix: "column " });
+  }
   // Both ranges must cover the same rows: same header decision, same number of data rows (counted
   // as selected, before trailing blank rows are trimmed).
   if (dataHeight(labelTable) !== dataHeight(probTable) || labelTable.header !== probTable.header) {

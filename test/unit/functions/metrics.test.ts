@@ -72,6 +72,13 @@ describe("ODDS.LOGLOSS", () => {
     expectClose(out[0][0], c.log_loss_observed_class_clip_numpy_by_hand, SUM_TOLERANCE, "clipped log-loss");
   });
 
+  test("the two ranges share one header decision (a text label column alone could look headerless)", () => {
+    // "Poor" recurs, so the labels alone would have no header; the probabilities' "P(Poor)" decides.
+    const labels = [["Poor"], ["Good"], ["Poor"], ["Good"]];
+    const out = logLoss(labels, [["P(Poor)"], [0.2], [0.7], [0.4]], OMITTED);
+    expectClose(out[0][0], -(Math.log(0.8) + Math.log(0.7) + Math.log(0.6)) / 3, 1e-15, "three rows after the header");
+  });
+
   test("a probability outside [0, 1] is #VALUE! naming its sheet row (header = row 1)", () => {
     const f = failure(() => logLoss(column("y", [1, 0, 1]), column("p", [0.9, 1.2, 0.4]), OMITTED));
     expect(f.cellError).toBe("#VALUE!");
