@@ -89,6 +89,12 @@ export const MESSAGES = {
     template:
       "The {argument} range has {got} columns but the model was trained on {expected} ({columns}). Select the same columns in the same order, or include their names in the first row.",
   },
+  TOO_MANY_LEVELS: {
+    cellError: "#VALUE!",
+    title: "Too many categories in a predictor",
+    template:
+      "The {column} column has {count} different categories in the rows used, more than the {limit} a fit here can turn into indicator columns in reasonable time. Leave the column out if it identifies rows, pool rare categories (option pool, e.g. pool=5), or group the categories first.",
+  },
   EMPTY_COLUMN_IGNORED: {
     cellError: "#N/A",
     title: "Blank column left out",
