@@ -12,6 +12,7 @@ import { brierScore, calibrationSlope, logLoss, rocAuc } from "../../../src/engi
 import { DEFAULT_LOG_CLIP } from "../../../src/engine/numerics";
 import { ALIAS_TOLERANCE } from "../../../src/engine/binary";
 import { MAX_CLASSES } from "../../../src/engine/labels";
+import { MAX_LEVELS } from "../../../src/engine/design";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import * as ODDS from "../../../src/functions/functions";
 import type { CellValue } from "../../../src/engine/types";
@@ -447,5 +448,30 @@ describe("numeric extremes: basis columns of data near 1e300 and 1e-300", () => 
       if (!recipe.includes("bins")) expect(got[0]).toEqual(want[0]);
       got.slice(1).forEach((row, i) => row.forEach((v, j) => closeTo(v as number, want[i + 1][j] as number, SCALE_FREE_TOL, `${recipe} x ${c} [${i}][${j}]`)));
     }
+  });
+});
+
+describe("numeric extremes: text predictors with many distinct values", () => {
+  const n = 3000;
+  const labels: Range = [["y"], ...Array.from({ length: n }, (_, i): CellValue[] => [(i * 7) % 3 === 0 ? 1 : 0])];
+
+  test("an identifier column as a predictor (3,000 distinct values) is TOO_MANY_LEVELS at once, not a fit that never ends", () => {
+    const predictors: Range = [["id", "x"], ...Array.from({ length: n }, (_, i): CellValue[] => [`row-${i}`, (i * 13) % 17])];
+    const start = performance.now();
+    const e = cellFailure(() => ODDS.fit(labels, predictors));
+    expect([e.code, e.cellError]).toEqual(["TOO_MANY_LEVELS", "#VALUE!"]);
+    expect(e.message).toContain(`id column has ${n} different categories`);
+    expect(performance.now() - start).toBeLessThan(2000);
+  });
+
+  test(`${MAX_LEVELS} levels are encoded; ${MAX_LEVELS + 1} are TOO_MANY_LEVELS; pooling rare levels brings a column back under the limit`, () => {
+    const rows = (k: number): Range => [["g"], ...Array.from({ length: 3 * k }, (_, i): CellValue[] => [`g${i % k}`])];
+    const y = (k: number): Range => [["y"], ...Array.from({ length: 3 * k }, (_, i): CellValue[] => [i % 2])];
+    expect(trainModel(y(MAX_LEVELS), rows(MAX_LEVELS), { penalty: 1 }).fit.terms.length).toBe(MAX_LEVELS);
+    expect(() => trainModel(y(MAX_LEVELS + 1), rows(MAX_LEVELS + 1), { penalty: 1 })).toThrow(expect.objectContaining({ code: "TOO_MANY_LEVELS" }));
+    // 200 levels: 150 seen 3 times, 50 seen 30 times; pool=5 leaves 50 levels and "(other)".
+    const pooled: Range = [["g"], ...Array.from({ length: 150 * 3 + 50 * 30 }, (_, i): CellValue[] => [i < 450 ? `rare${i % 150}` : `common${i % 50}`])];
+    const m = trainModel([["y"], ...pooled.slice(1).map((_, i): CellValue[] => [i % 2])], pooled, { penalty: 1, minLevelCount: 5 });
+    expect(m.fit.terms.length).toBe(51);
   });
 });
