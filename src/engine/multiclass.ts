@@ -98,6 +98,8 @@ interface Prepared {
 /** Newton-Raphson outcome, on the internal scale. */
 interface NewtonResult {
   theta: Float64Array;
+  /** Information of the likelihood alone (no penalty) at the final theta, or null. */
+  likelihoodInformation: Float64Array | null;
   logLik: number;
   objective: number;
   iterations: number;
@@ -752,12 +754,15 @@ function newtonRaphson(
     const sub = subsample(prep, stride);
     const subTotal = sub.w.reduce((a, b) => a + b, 0);
     const subOpts = { ...opts, tolerance: Math.max(opts.tolerance, WARM_START_TOLERANCE) };
-    const warm = runNewton(sub, K, equationClassIdx, symmetric, subTotal, subOpts, start, false);
-    if (warm.converged && warm.theta.every(Number.isFinite) && !(warm.finalStep && maxAbs(warm.finalStep) > 1)) {
-      return runNewton(prep, K, equationClassIdx, symmetric, total, opts, warm.theta, true);
+    const warm = runNewton(sub, K, equationClassIdx, symmetric, subTotal, subOpts, start, null);
+    if (warm.converged && warm.likelihoodInformation && warm.theta.every(Number.isFinite) && !(warm.finalStep && maxAbs(warm.finalStep) > 1)) {
+      // The subsample's information, scaled up to the full weight, stands in for the full-data
+      // information at the warm start (they differ by about 1/sqrt(subsample size)).
+      const scaled = warm.likelihoodInformation.map((v) => (v * total) / subTotal);
+      return runNewton(prep, K, equationClassIdx, symmetric, total, opts, warm.theta, scaled);
     }
   }
-  return runNewton(prep, K, equationClassIdx, symmetric, total, opts, start, false);
+  return runNewton(prep, K, equationClassIdx, symmetric, total, opts, start, null);
 }
 
 /** Rows at which the warm start from a subsample begins to pay (below it a full fit is quick). */
@@ -779,6 +784,10 @@ const REUSE_INFORMATION_BELOW = 1e-6;
  * this many multiply-adds. Smaller fits take plain Newton-Raphson steps throughout.
  */
 const REUSE_MIN_WORK = 2e7;
+/** Newton decrement required, besides the deviance rule, when the information is being reused. */
+const REUSE_DECREMENT = 1e-8;
+/** At most this many steps in a row reuse one information matrix before it is recomputed. */
+const MAX_REUSED_STEPS = 8;
 
 function maxAbs(a: Float64Array): number {
   let m = 0;
@@ -810,8 +819,9 @@ function runNewton(
   total: number,
   opts: ResolvedOptions,
   start: Float64Array,
-  warmStarted: boolean,
+  startInformation: Float64Array | null,
 ): NewtonResult {
+  const warmStarted = startInformation !== null;
   const kernel = new SoftmaxKernel(prep, K, equationClassIdx, symmetric);
   const { q, E } = kernel;
   // Simplified Newton (reuse of the information) only for expensive passes; after a warm start the
@@ -839,9 +849,15 @@ function runNewton(
   const trial = new Float64Array(M);
   const theta = Float64Array.from(start);
 
-  /** Penalized score at th (from the kernel's last score); the information too when `withInfo`. */
-  const penalizedSystem = (th: Float64Array, withInfo: boolean): void => {
-    if (withInfo) kernel.information(info);
+  /**
+   * Penalized score at th (from the kernel's last score); the information too when `withInfo`
+   * (from the kernel's blocks, or from `given`, a likelihood information computed elsewhere).
+   */
+  const penalizedSystem = (th: Float64Array, withInfo: boolean, given: Float64Array | null = null): void => {
+    if (withInfo) {
+      if (given) info.set(given);
+      else kernel.information(info);
+    }
     let sumA = 0;
     if (coupling) for (let e = 0; e < E; e++) sumA += th[e * q];
     for (let e = 0; e < E; e++) {
@@ -857,10 +873,11 @@ function runNewton(
     }
   };
 
-  let logLik = kernel.evaluate(theta, "information");
+  let logLik = kernel.evaluate(theta, startInformation ? "score" : "information");
   let objective = objectiveOf(logLik, theta);
-  penalizedSystem(theta, true);
+  penalizedSystem(theta, true, startInformation);
   let chol = cholesky(info, M);
+  let chordSteps = 0;
   let iterations = 0;
   let converged = false;
   let lastChange = NaN;
@@ -891,11 +908,28 @@ function runNewton(
     logLik = newLl;
     objective = newObj;
     if (lastChange < opts.tolerance) {
-      converged = true;
-      break;
+      if (!reuseAllowed) {
+        converged = true;
+        break;
+      }
+      // Reusing the information converges only linearly, so the deviance rule can stop a few
+      // thousandths of a standard error short; also ask for a Newton decrement g' H^-1 g (about
+      // the squared distance to the maximum in standard-error units) below REUSE_DECREMENT.
+      // kernel.score is the score at theta here (the accepted trial was evaluated with it).
+      penalizedSystem(theta, false);
+      const next = choleskySolve(chol.factor, M, scoreP);
+      let decrement = 0;
+      for (let r = 0; r < M; r++) decrement += next[r] * scoreP[r];
+      if (decrement < REUSE_DECREMENT) {
+        converged = true;
+        break;
+      }
     }
     // A halved step means the quadratic model was poor: always refresh the information then.
-    const fresh = !reuseAllowed || step < 1 || (!warmStarted && lastChange >= REUSE_INFORMATION_BELOW);
+    // A long run of reused-information steps means the stand-in is poor: refresh it too.
+    const fresh =
+      !reuseAllowed || step < 1 || chordSteps >= MAX_REUSED_STEPS || (!warmStarted && lastChange >= REUSE_INFORMATION_BELOW);
+    chordSteps = fresh ? 0 : chordSteps + 1;
     // Not fresh: the kernel's score is the one of the accepted trial point (evaluated last).
     if (fresh) kernel.evaluate(theta, "information");
     penalizedSystem(theta, fresh);
@@ -904,7 +938,8 @@ function runNewton(
   // Information, its inverse and one more Newton step at the final theta.
   logLik = kernel.evaluate(theta, "information");
   objective = objectiveOf(logLik, theta);
-  penalizedSystem(theta, true);
+  const likelihoodInformation = kernel.information(new Float64Array(M * M));
+  penalizedSystem(theta, true, likelihoodInformation);
   chol = cholesky(info, M);
   let inverseInformation: Float64Array | null = null;
   let finalStep: Float64Array | null = null;
@@ -926,7 +961,7 @@ function runNewton(
       }
     }
   }
-  return { theta, logLik, objective, iterations, converged, lastChange, inverseInformation, finalStep, lastStep };
+  return { theta, likelihoodInformation, logLik, objective, iterations, converged, lastChange, inverseInformation, finalStep, lastStep };
 }
 
 function mean(values: number[]): number {
