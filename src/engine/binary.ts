@@ -365,13 +365,16 @@ export function fitBinaryModel(
     let big = 0;
     for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(x[i]));
     if (!(big > 0)) big = 1;
+    // Multiply by reciprocals (cheaper than dividing) unless the reciprocal would overflow.
+    const invBig = 1 / big;
+    const useInv = Number.isFinite(invBig);
     let m = 0;
-    for (let i = 0; i < n; i++) m += a[i] * (x[i] / big);
+    for (let i = 0; i < n; i++) m += a[i] * (useInv ? x[i] * invBig : x[i] / big);
     m /= sumA;
     let v = 0;
     let ms = 0;
     for (let i = 0; i < n; i++) {
-      const u = x[i] / big;
+      const u = useInv ? x[i] * invBig : x[i] / big;
       v += a[i] * (u - m) * (u - m);
       ms += a[i] * u * u;
     }
@@ -381,7 +384,14 @@ export function fitBinaryModel(
     scale[j] = s > 0 ? s : 1;
     centre[j] = opt.intercept ? m : 0;
     const col = new Float64Array(n);
-    for (let i = 0; i < n; i++) col[i] = (x[i] - centre[j]) / scale[j];
+    const c = centre[j];
+    const sc = scale[j];
+    const inv = 1 / sc;
+    if (Number.isFinite(inv)) {
+      for (let i = 0; i < n; i++) col[i] = (x[i] - c) * inv;
+    } else {
+      for (let i = 0; i < n; i++) col[i] = (x[i] - c) / sc;
+    }
     z.push(col);
   }
   const off0 = opt.intercept ? 1 : 0;
