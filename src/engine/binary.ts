@@ -602,6 +602,8 @@ export function fitBinaryModel(
   });
   return {
     ...base,
+    // The method actually used: a profile request falls back to Wald where profiles are not offered.
+    intervalMethod: intervals ? "profile" : "wald",
     coefficients: [coefficients],
     covariance,
     table,

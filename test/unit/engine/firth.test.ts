@@ -106,6 +106,7 @@ describe("Firth fit properties", () => {
     const f = fitBinaryModel(design({ x: [0, 0, 0, 1, 1, 1] }), Float64Array.of(0, 0, 0, 1, 1, 1), { biasReduction: true, intervalMethod: "profile" });
     expect(f.diagnostics.find((d) => d.code === "PROFILE_NOT_AVAILABLE")!.severity).toBe("note");
     expect(Number.isFinite(f.table[1].lower)).toBe(true);
+    expect(f.intervalMethod).toBe("wald");
   });
 });
 
