@@ -146,3 +146,31 @@ describe("Firth convergence on tiny data (found by property testing)", () => {
     expect(f.converged).toBe(true);
   });
 });
+
+describe("Firth with case weights, an offset and grouped counts vs brglm2 (type = 'AS_mean')", () => {
+  const wd = ref.weighted.data as { x1: number; x2: number; y: number; w: number; o: number }[];
+  const X = design({ x1: wd.map((r) => r.x1), x2: wd.map((r) => r.x2) });
+  const y = Float64Array.from(wd.map((r) => r.y));
+
+  test("integer case weights", () => {
+    const f = fitBinaryModel(X, y, { biasReduction: true, weights: Float64Array.from(wd.map((r) => r.w)) });
+    expectClose(f.table.map((r) => r.estimate), ref.weighted.firthWeights.coefficients, BRGLM_TOL, "coef");
+    expectClose(f.table.map((r) => r.standardError), ref.weighted.firthWeights.standardErrors, BRGLM_TOL, "se");
+  });
+
+  test("an offset", () => {
+    const f = fitBinaryModel(X, y, { biasReduction: true, offset: Float64Array.from(wd.map((r) => r.o)) });
+    expectClose(f.table.map((r) => r.estimate), ref.weighted.firthOffset.coefficients, BRGLM_TOL, "coef");
+    expectClose(f.table.map((r) => r.standardError), ref.weighted.firthOffset.standardErrors, BRGLM_TOL, "se");
+  });
+
+  test("grouped counts (budworm)", () => {
+    const bw = ref.budworm.data as { sexM: number; ldose: number; numdead: number }[];
+    const f = fitBinaryModel(design({ sexM: bw.map((r) => r.sexM), ldose: bw.map((r) => r.ldose) }), Float64Array.from(bw.map((r) => r.numdead)), {
+      trials: new Float64Array(12).fill(20),
+      biasReduction: true,
+    });
+    expectClose(f.table.map((r) => r.estimate), ref.budworm.firth.coefficients, BRGLM_TOL, "coef");
+    expectClose(f.table.map((r) => r.standardError), ref.budworm.firth.standardErrors, BRGLM_TOL, "se");
+  });
+});
