@@ -81,6 +81,22 @@ describe("weighted cross products", () => {
     const v = weightedCrossVector([x1, x2], null, new Float64Array([1, 1, 1, 1]), 4, new Float64Array(2));
     expect(Array.from(v)).toEqual([10, 1.5]);
   });
+  test("the unrolled X'WX kernel equals the plain triple loop for every column count and row parity", () => {
+    for (let p = 1; p <= 7; p++) {
+      for (let n = 1; n <= 9; n++) {
+        const cols = Array.from({ length: p }, (_, j) => Float64Array.from({ length: n }, (_, i) => Math.sin(1 + i * 7 + j * 3)));
+        const w = Float64Array.from({ length: n }, (_, i) => 0.5 + Math.cos(i) ** 2);
+        const got = weightedCrossProduct(cols, w, n, new Float64Array(p * p));
+        for (let a = 0; a < p; a++) {
+          for (let b = 0; b < p; b++) {
+            let s = 0;
+            for (let i = 0; i < n; i++) s += w[i] * cols[a][i] * cols[b][i];
+            expect(Math.abs(got[a * p + b] - s)).toBeLessThan(1e-13);
+          }
+        }
+      }
+    }
+  });
   test("mirrorUpper copies the upper triangle down", () => {
     expect(Array.from(mirrorUpper(new Float64Array([1, 2, 99, 3]), 2))).toEqual([1, 2, 2, 3]);
   });
