@@ -250,6 +250,8 @@ function constantTerms(d: FitData): { logBinom: number; saturated: number } {
 /**
  * Fit a binary logistic regression model.
  *
+ * Reference: McCullagh & Nelder (1989) §4.4; Agresti (2013) §5.2; Firth (1993); Heinze & Schemper (2002).
+ *
  * @param X - design matrix without the intercept column (the intercept is an option)
  * @param y - 0/1 response (1 = positive class), or the number of successes when options.trials is
  *   given; NaN marks a missing value (the row is skipped and counted in a ROWS_SKIPPED warning)
@@ -265,7 +267,6 @@ function constantTerms(d: FitData): { logBinom: number; saturated: number } {
  * const fit = fitBinaryModel({ rows: 4, columns: [Float64Array.of(1, 2, 3, 4)], names: ["x"] },
  *   Float64Array.of(0, 1, 0, 1));
  * fit.table[1].estimate; // slope of x on the log-odds scale
- * Reference: McCullagh & Nelder (1989) §4.4; Agresti (2013) §5.2; Firth (1993); Heinze & Schemper (2002).
  */
 export function fitBinaryModel(
   X: DesignMatrix,
