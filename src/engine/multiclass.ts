@@ -15,8 +15,20 @@
  * coefficients and covariance are mapped back to the original scale. The softmax subtracts the row
  * maximum and the log-likelihood uses log-sum-exp, so no exponential overflows.
  * Hessian (information) blocks are I_kl = X' diag(w p_k (delta_kl - p_l)) X (Böhning, "Multinomial
- * logistic regression algorithm", Ann. Inst. Statist. Math. 44 (1992) 197-200), accumulated over the
- * upper triangle of each block for all block pairs in one pass over the rows, then mirrored.
+ * logistic regression algorithm", Ann. Inst. Statist. Math. 44 (1992) 197-200): only the E(E+1)/2
+ * blocks k <= l, and in each only the upper triangle (each block is symmetric), are accumulated in
+ * one pass over the rows (in cache-sized chunks), then the full matrix is mirrored from them.
+ * After convergence one more full Newton step polishes the estimate; the covariance is the inverse
+ * information at the last iterate.
+ *
+ * Large data (speed): with at least 40,000 rows the iterations start from a fit on a systematic
+ * subsample of about 5,000 rows, with that subsample's information (scaled up) standing in for the
+ * full-data one; while the steps stay full-length the information is reused (simplified Newton,
+ * Kelley 2003 §2.3.3), each step then costing one pass for the score instead of the O(n E^2 p^2)
+ * information; convergence then also asks for a Newton decrement below 1e-8, and the final
+ * information and polishing Newton step are always computed on all rows. Result: the same estimate
+ * as plain Newton-Raphson (1e-11 relative on a 100,000 x 20 x 5-class test), about 2 information
+ * passes instead of 7.
  *
  * Penalty convention (shared with the binary model): objective = -logLik + (lambda / 2) *
  * sum over equations and non-intercept terms of (s_j b_kj)^2, with s_j the population SD of column j
@@ -122,7 +134,10 @@ interface NewtonResult {
  * @param options - {@link MulticlassFitOptions}: intercept [true], weights (case/frequency) [1],
  *   penalty lambda [0], penaltyScale ["standardized"], form ["reference"], reference [0],
  *   level [0.95], maxIterations [100], tolerance [1e-10]
- * @returns a {@link ModelFit} of kind "multiclass"; every problem found is in `diagnostics`
+ * @returns a {@link ModelFit} of kind "multiclass"; every problem found is in `diagnostics`:
+ *   ALIASED_COLUMNS (warning), ROWS_SKIPPED and PENALIZED_NO_P_VALUES (notes), and as errors with
+ *   NaN estimates EMPTY_CLASS, TOO_FEW_ROWS, NOT_CONVERGED and CLASSES_SEPARATED (unpenalized fits;
+ *   the method, a certified diverging Newton direction, is described at findSeparation below)
  * @throws OddsmithError for input the caller must correct: RANGE_SHAPE_MISMATCH, BAD_WEIGHT,
  *   BAD_OPTION_VALUE, CLASS_INDEX_OUT_OF_RANGE, SYMMETRIC_NEEDS_PENALTY, ONE_CLASS_ONLY, NO_USABLE_ROWS
  *
@@ -753,9 +768,17 @@ function newtonRaphson(
     const stride = Math.floor(prep.n / WARM_START_SUBSAMPLE_ROWS);
     const sub = subsample(prep, stride);
     const subTotal = sub.w.reduce((a, b) => a + b, 0);
-    const subOpts = { ...opts, tolerance: Math.max(opts.tolerance, WARM_START_TOLERANCE) };
-    const warm = runNewton(sub, K, equationClassIdx, symmetric, subTotal, subOpts, start, null);
-    if (warm.converged && warm.likelihoodInformation && warm.theta.every(Number.isFinite) && !(warm.finalStep && maxAbs(warm.finalStep) > 1)) {
+    // A class the subsample misses (a rare class) would send the subsample fit off to infinity.
+    const subClassWeight = new Float64Array(K);
+    for (let r = 0; r < sub.n; r++) subClassWeight[sub.y[r]] += sub.w[r];
+    const everyClass = classWeight.every((v, k) => !(v > 0) || subClassWeight[k] >= WARM_START_MIN_CLASS_ROWS);
+    const subOpts = {
+      ...opts,
+      tolerance: Math.max(opts.tolerance, WARM_START_TOLERANCE),
+      maxIterations: Math.min(opts.maxIterations, WARM_START_MAX_ITERATIONS),
+    };
+    const warm = everyClass ? runNewton(sub, K, equationClassIdx, symmetric, subTotal, subOpts, start, null) : null;
+    if (warm && warm.converged && warm.likelihoodInformation && warm.theta.every(Number.isFinite) && !(warm.finalStep && maxAbs(warm.finalStep) > 1)) {
       // The subsample's information, scaled up to the full weight, stands in for the full-data
       // information at the warm start (they differ by about 1/sqrt(subsample size)).
       const scaled = warm.likelihoodInformation.map((v) => (v * total) / subTotal);
@@ -769,6 +792,10 @@ function newtonRaphson(
 const WARM_START_MIN_ROWS = 40000;
 /** Target size of the warm-start subsample. */
 const WARM_START_SUBSAMPLE_ROWS = 5000;
+/** The warm start is skipped when the subsample has fewer rows (weight) than this of some class. */
+const WARM_START_MIN_CLASS_ROWS = 10;
+/** Iteration cap of the warm-start fit (a well-posed fit needs well under 10). */
+const WARM_START_MAX_ITERATIONS = 25;
 /** Convergence tolerance of the warm-start fit (its estimate only needs to be close). */
 const WARM_START_TOLERANCE = 1e-8;
 /**

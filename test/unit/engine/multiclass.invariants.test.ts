@@ -183,3 +183,33 @@ describe("large data: warm start from a subsample and reuse of the information",
     }
   });
 });
+
+describe("large data with a rare class", () => {
+  test("a class of 5 rows among 45,000 still gives the maximum-likelihood fit (score vanishes)", () => {
+    const rows = 45000;
+    let s = 11;
+    const u = () => {
+      s = (Math.imul(s, 1664525) + 1013904223) >>> 0;
+      return s / 4294967296;
+    };
+    const x = Float64Array.from({ length: rows }, () => u() * 2 - 1);
+    const yy = Int32Array.from({ length: rows }, (_, i) => (i % 9000 === 4500 ? 2 : u() < 1 / (1 + Math.exp(-2 * x[i])) ? 1 : 0));
+    const design: DesignMatrix = { rows, columns: [x], names: ["x"] };
+    const fit = fitMulticlassModel(design, yy, ["a", "b", "rare"]);
+    expect(fit.converged).toBe(true);
+    expect(fit.diagnostics).toEqual([]);
+    const pred = predictMulticlass(fit, design);
+    let worst = 0;
+    for (let k = 1; k < 3; k++) {
+      let g0 = 0;
+      let g1 = 0;
+      for (let i = 0; i < rows; i++) {
+        const r = (yy[i] === k ? 1 : 0) - pred.probabilities[k][i];
+        g0 += r;
+        g1 += r * x[i];
+      }
+      worst = Math.max(worst, Math.abs(g0), Math.abs(g1));
+    }
+    expect(worst).toBeLessThan(1e-6);
+  });
+});
