@@ -52,12 +52,12 @@ export function fitZscore(column: BasisColumn): ZscoreState {
 }
 
 /** Sample SD computed from deviations divided by the largest one (no overflow or underflow in the squares). */
-function scaledSampleSd(x: readonly number[], mean: number): number {
+function scaledSampleSd(x: ArrayLike<number>, mean: number): number {
   let big = 0;
-  for (const v of x) big = Math.max(big, Math.abs(v - mean));
+  for (let i = 0; i < x.length; i++) big = Math.max(big, Math.abs(x[i] - mean));
   if (!(big > 0) || !Number.isFinite(big)) return big;
   let ss = 0;
-  for (const v of x) ss += ((v - mean) / big) ** 2;
+  for (let i = 0; i < x.length; i++) ss += ((x[i] - mean) / big) ** 2;
   return big * Math.sqrt(ss / (x.length - 1));
 }
 
