@@ -5,7 +5,7 @@
  */
 import fc from "fast-check";
 import { scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../../../src/engine/model";
-import { expectCatalogueDiagnostics, expectCatalogueError, grid, anyCell, RUNS, SEED, trainingRanges, valueOrProblem, type Range } from "./support";
+import { expectCatalogueDiagnostics, expectCatalogueError, grid, anyCell, RUNS, SEED, trainingRanges, fittableRanges, valueOrProblem, type Range } from "./support";
 
 /** Probabilities of a scored row add up to 1 up to rounding of K exponentials and one division. */
 const SUM_TOL = 1e-12;
@@ -83,7 +83,7 @@ function checkScores(m: TrainedModel, context: string): void {
 describe("trainModel and scoreRows on hostile ranges", () => {
   test("random labels x predictors x options: a checked model or a catalogue problem, and clean scores", () => {
     fc.assert(
-      fc.property(trainingRanges, options, ({ labels, predictors }, opts) => {
+      fc.property(fc.oneof(trainingRanges, fittableRanges), options, ({ labels, predictors }, opts) => {
         const context = `trainModel(${JSON.stringify(labels)}, ${JSON.stringify(predictors)}, ${JSON.stringify(opts)})`;
         const m = valueOrProblem(() => trainModel(labels, predictors, opts), context);
         if (!m) return;

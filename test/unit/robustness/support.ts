@@ -169,6 +169,39 @@ export const trainingRanges: fc.Arbitrary<{ labels: Range; predictors: Range; he
     return { labels: l, predictors, header };
   });
 
+/**
+ * Training ranges that usually fit (labels drawn from a logistic or softmax model of the predictors,
+ * so classes overlap), sprinkled with hostile cells: the properties then also exercise the paths that
+ * return numbers, not only the refusals.
+ */
+export const fittableRanges: fc.Arbitrary<{ labels: Range; predictors: Range; header: boolean }> = fc
+  .record({
+    rows: fc.integer({ min: 20, max: 60 }),
+    classes: fc.constantFrom(2, 2, 3),
+    scale: fc.constantFrom(1, 1, 1e-6, 1e6, 1e150, -1),
+    seed: fc.integer({ min: 1, max: 2 ** 31 - 1 }),
+    hostile: fc.array(fc.tuple(fc.nat(), fc.nat(), anyCell), { maxLength: 3 }),
+  })
+  .map(({ rows, classes, scale, seed, hostile }) => {
+    // Uniform draws from a linear congruential generator (Numerical Recipes constants) seeded by fast-check.
+    let state = seed >>> 0;
+    const u = () => {
+      state = (Math.imul(state, 1664525) + 1013904223) >>> 0;
+      return state / 4294967296;
+    };
+    const predictors: Range = [["dose", "region", "flag"]];
+    const labels: Range = [["outcome"]];
+    for (let i = 0; i < rows; i++) {
+      const d = u() * 4 - 2;
+      predictors.push([d * scale, ["North", "South", "East"][Math.floor(u() * 3)], u() < 0.5]);
+      // Class drawn with a weak dependence on dose: overlapping classes, separation unlikely.
+      const p = u() + 0.1 * d;
+      labels.push([classes === 2 ? (p > 0.5 ? "yes" : "no") : ["low", "mid", "high"][Math.min(2, Math.max(0, Math.floor(p * 3)))]]);
+    }
+    for (const [i, j, v] of hostile) predictors[1 + (i % rows)][j % 3] = v;
+    return { labels, predictors, header: true };
+  });
+
 // ---- outcome checks --------------------------------------------------------------------------------
 
 /** A regular expression matching any filling of a catalogue template. */
