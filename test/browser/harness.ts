@@ -3,7 +3,6 @@
  * sources), the static server over plain HTTP on 127.0.0.1 with the pages' security headers, and
  * Debian's Chromium driven by playwright-core with a fresh profile and no background traffic.
  */
-import { spawnSync } from "child_process";
 import fs from "fs";
 import os from "os";
 import path from "path";
@@ -11,13 +10,12 @@ import type { AddressInfo } from "net";
 import type { Server } from "http";
 import { chromium, type BrowserContext } from "playwright-core";
 
-export const ROOT = path.resolve(__dirname, "../..");
-export const DIST = path.join(ROOT, "dist");
+import { DIST, ROOT } from "./ensureBuild";
+
+export { BUILD_TIMEOUT_MS, ensureBuild } from "./ensureBuild";
 export const ARTIFACTS = path.join(ROOT, "test-artifacts");
 /** Where CI and this machine have Chromium (Debian package). */
 export const CHROMIUM = process.env.CHROMIUM_PATH || "/usr/bin/chromium";
-/** A development build takes 20-60 s on a shared 2-core machine. */
-export const BUILD_TIMEOUT_MS = 240_000;
 
 export const CHROMIUM_FLAGS = [
   "--headless",
@@ -29,22 +27,6 @@ export const CHROMIUM_FLAGS = [
   "--disable-component-update",
   "--disable-sync",
 ];
-
-function files(dir: string): string[] {
-  return fs.readdirSync(dir, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? files(path.join(dir, e.name)) : [path.join(dir, e.name)]));
-}
-
-/** Build dist/ when a page or bundle is missing or older than any source file. */
-export function ensureBuild(): void {
-  const outputs = ["preview.html", "taskpane.html", "preview.js", "taskpane.js", "fitworker.js", "functions.js"].map((f) => path.join(DIST, f));
-  const inputs = [...files(path.join(ROOT, "src")), path.join(ROOT, "webpack.config.js")];
-  const newest = Math.max(...inputs.map((f) => fs.statSync(f).mtimeMs));
-  const current = outputs.every((f) => fs.existsSync(f) && fs.statSync(f).mtimeMs >= newest);
-  if (current) return;
-  const cli = require.resolve("webpack-cli/bin/cli.js");
-  const run = spawnSync(process.execPath, [cli, "--mode", "development"], { cwd: ROOT, encoding: "utf8", timeout: BUILD_TIMEOUT_MS });
-  if (run.status !== 0) throw new Error(`webpack build failed:\n${run.stdout}\n${run.stderr}`);
-}
 
 export async function startServer(): Promise<{ server: Server; base: string }> {
   // eslint-disable-next-line @typescript-eslint/no-require-imports

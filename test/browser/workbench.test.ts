@@ -10,6 +10,7 @@ import { nearBoundaryRows } from "../../src/engine/boundary";
 import { scoreRows, trainModel } from "../../src/engine/model";
 import type { CellValue } from "../../src/engine/types";
 import { readModelOptions } from "../../src/functions/modelCell";
+import { basisCell } from "../../src/functions/basisCell";
 import { DEMO_SHEETS } from "../../src/preview/demo";
 import { CAUTIONS, CAUTIONS_TITLE } from "../../src/taskpane/cautions";
 import { BUILD_TIMEOUT_MS, ensureBuild, launch, saveArtifact, startServer } from "./harness";
@@ -18,6 +19,33 @@ jest.setTimeout(120_000);
 
 /** Probabilities are printed with 3 decimals in the list. */
 const PRINTED_DECIMALS = 3;
+/**
+ * Least a curved boundary strays from a straight line, in SVG pixels: a linear model's boundary is
+ * straight (deviation ~0 after clipping), the spline model's bends by tens of pixels on the demo data.
+ */
+const CURVE_MIN_DEVIATION_PX = 10;
+
+/** Largest distance of the path's points (inside the frame) from their total-least-squares line. */
+function straightLineDeviation(d: string): number {
+  const pts = [...d.matchAll(/[ML](-?[\d.]+),(-?[\d.]+)/g)].map((m) => [Number(m[1]), Number(m[2])]);
+  // Keep points inside the plot frame (48..328 across, 12..240 down): the closing edges lie outside.
+  const inside = pts.filter(([x, y]) => x > 49 && x < 327 && y > 13 && y < 239);
+  const mx = inside.reduce((a, p) => a + p[0], 0) / inside.length;
+  const my = inside.reduce((a, p) => a + p[1], 0) / inside.length;
+  let sxx = 0;
+  let syy = 0;
+  let sxy = 0;
+  for (const [x, y] of inside) {
+    sxx += (x - mx) ** 2;
+    syy += (y - my) ** 2;
+    sxy += (x - mx) * (y - my);
+  }
+  const angle = 0.5 * Math.atan2(2 * sxy, sxx - syy);
+  const nx = -Math.sin(angle);
+  const ny = Math.cos(angle);
+  return Math.max(...inside.map(([x, y]) => Math.abs((x - mx) * nx + (y - my) * ny)));
+}
+
 /** Time the pane may take to fit, write and recalculate on the demo data (~0.5 s measured). */
 const FIT_WAIT_MS = 30_000;
 
@@ -41,6 +69,7 @@ beforeAll(async () => {
 
 afterAll(async () => {
   await context?.close();
+  server?.closeAllConnections();
   server?.close();
   if (profile) fs.rmSync(profile, { recursive: true, force: true });
 });
@@ -153,7 +182,8 @@ describe("preview workbench", () => {
     const rings = await page.$$eval("#osm-plot-area .osm-ring", (p) => p.length);
     expect(rings).toBe(engineBorderline(DEMO_SHEETS[0].values).total);
     const boundary = await page.$eval("#osm-plot-area .osm-boundary", (p) => p.getAttribute("d") ?? "");
-    expect(boundary.length).toBeGreaterThan(20);
+    // Without basis columns the model is linear in the plotted columns: a straight boundary.
+    expect(straightLineDeviation(boundary)).toBeLessThan(1);
     expect(await page.textContent("#osm-plot-caption")).toContain("Other predictors held at: brix =");
     saveArtifact("workbench-plot.png", await page.locator("#osm-plot").screenshot());
     saveArtifact("workbench.png", await page.screenshot({ fullPage: false }));
@@ -186,6 +216,38 @@ describe("preview workbench", () => {
       pwned: (window as unknown as Record<string, unknown>).__oddsmithPwned ?? null,
     }));
     expect(created).toEqual({ img: 0, bold: 0, pwned: null });
+    await page.close();
+  });
+
+  test("spline basis columns built in the pane bend the boundary, and the list matches the engine", async () => {
+    const page = await openWorkbench();
+    await page.click("#osm-use");
+    await page.waitForSelector('#osm-basis-columns select[data-column="firmness"]');
+    await page.selectOption('#osm-basis-columns select[data-column="firmness"]', "ns");
+    expect(await page.inputValue("#osm-recipe")).toBe("firmness: ns(df=3)");
+    await page.click("#osm-basis-write");
+    await page.waitForFunction(() => /^Added 3 columns/.test(document.querySelector("#osm-basis-preview")?.textContent ?? ""));
+    const ticked = await page.$$eval("#osm-predictors input:checked", (els) => els.map((e) => (e as HTMLElement).dataset.name));
+    expect(ticked).toEqual(["days_stored", "brix", "bruises", "ns(firmness)1", "ns(firmness)2", "ns(firmness)3"]);
+    await page.click("#osm-fit");
+    await page.waitForFunction(() => /^Fitted on/.test(document.querySelector("#osm-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+    // The engine on the same cells: the basis columns the formula spilled, beside the data.
+    const values = DEMO_SHEETS[0].values;
+    const basis = basisCell(values, "firmness: ns(df=3)", null);
+    const predictors = values.map((r, i) => [r[2], r[4], r[5], ...basis[i]]);
+    const options = readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]);
+    const model = trainModel(values.map((r) => [r[6]]), predictors, options.model);
+    const expected = nearBoundaryRows(scoreRows(model, null).prediction, { threshold: 0.5, band: 0.1, limit: 200 });
+    expect((await listedRows(page)).map((l) => l.row)).toEqual(expected.rows.map((r) => r.row + 2));
+    // Plot firmness across: the boundary is drawn from the recomputed spline columns.
+    await page.selectOption("#osm-plot-x", { label: "firmness" });
+    await page.selectOption("#osm-plot-y", { label: "days_stored" });
+    await page.waitForFunction(() => document.querySelector("#osm-plot-area svg title")?.textContent === "Decision boundary over firmness and days_stored");
+    const boundaries = await page.$$eval("#osm-plot-area .osm-boundary", (ps) => ps.map((p) => p.getAttribute("d") ?? ""));
+    // Curved, not straight: the boundary points stray from their best-fitting straight line.
+    expect(straightLineDeviation(boundaries.join(""))).toBeGreaterThan(CURVE_MIN_DEVIATION_PX);
+    expect(await page.textContent("#osm-plot-caption")).not.toContain("ns(firmness)");
+    saveArtifact("workbench-plot-spline.png", await page.locator("#osm-plot").screenshot());
     await page.close();
   });
 

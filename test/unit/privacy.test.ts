@@ -12,15 +12,11 @@
  * When dist/ is missing or older than the sources, the test builds it first (webpack, development
  * mode), so the bundle checks always run on a current build and can never pass vacuously.
  */
-import { spawnSync } from "child_process";
 import fs from "fs";
 import path from "path";
+import { BUILD_TIMEOUT_MS, DIST, ensureBuild, ROOT } from "../browser/ensureBuild";
 
-const ROOT = path.resolve(__dirname, "../..");
-const DIST = path.join(ROOT, "dist");
 const SRC = path.join(ROOT, "src");
-/** Building takes ~20-60 s on a shared 2-core machine. */
-const BUILD_TIMEOUT_MS = 240_000;
 
 function walk(dir: string, keep: (file: string) => boolean): string[] {
   const out: string[] = [];
@@ -32,25 +28,9 @@ function walk(dir: string, keep: (file: string) => boolean): string[] {
   return out;
 }
 
-function newestMtime(files: string[]): number {
-  return Math.max(...files.map((f) => fs.statSync(f).mtimeMs));
-}
-
 /** Our bundles: every .js directly in dist/ (office-js/ is a sub-folder and is not included). */
 function ourBundles(): string[] {
   return fs.existsSync(DIST) ? fs.readdirSync(DIST).filter((f) => f.endsWith(".js")).map((f) => path.join(DIST, f)) : [];
-}
-
-function ensureBuild(): void {
-  const sources = walk(SRC, () => true);
-  const bundles = ourBundles();
-  const pages = ["taskpane.html", "preview.html"].map((p) => path.join(DIST, p));
-  const fresh =
-    bundles.length >= 4 && pages.every((p) => fs.existsSync(p)) && Math.min(...[...bundles, ...pages].map((f) => fs.statSync(f).mtimeMs)) >= newestMtime(sources);
-  if (fresh) return;
-  const cli = require.resolve("webpack-cli/bin/cli.js");
-  const run = spawnSync(process.execPath, [cli, "--mode", "development"], { cwd: ROOT, encoding: "utf8", timeout: BUILD_TIMEOUT_MS });
-  if (run.status !== 0) throw new Error(`webpack build failed:\n${run.stdout}\n${run.stderr}`);
 }
 
 /**
@@ -230,13 +210,14 @@ describe("privacy: built bundles and pages", () => {
     try {
       const http = await import("http");
       const header = await new Promise<string | undefined>((resolve, reject) => {
-        http.get(`http://127.0.0.1:${port}/help.html`, (res) => {
+        http.get(`http://127.0.0.1:${port}/help.html`, { agent: false }, (res) => {
           res.resume();
           resolve(res.headers["content-security-policy"] as string | undefined);
         }).on("error", reject);
       });
       expect(header).toBe(CONTENT_SECURITY_POLICY);
     } finally {
+      server.closeAllConnections();
       server.close();
     }
   });
