@@ -250,7 +250,7 @@ function constantTerms(d: FitData): { logBinom: number; saturated: number } {
 /**
  * Fit a binary logistic regression model.
  *
- * Reference: McCullagh & Nelder (1989) §4.4; Agresti (2013) §5.2; Firth (1993); Heinze & Schemper (2002).
+ * Reference: McCullagh & Nelder (1989), ch. 4; Agresti (2013), ch. 5; Firth (1993); Heinze & Schemper (2002).
  *
  * @param X - design matrix without the intercept column (the intercept is an option)
  * @param y - 0/1 response (1 = positive class), or the number of successes when options.trials is

@@ -4,7 +4,7 @@
  * Wald inference: se_j = sqrt(V_jj), z_j = b_j / se_j, p_j = P(|Z| >= |z_j|), interval
  * b_j +/- z_{(1+level)/2} se_j, ratio exp(b_j) with the interval ends exponentiated (the ratio
  * interval is the transform of the coefficient interval, not a delta-method interval).
- * Reference: A. Agresti, Categorical Data Analysis, 3rd ed. (2013), §§1.3.3, 4.2.1 and 5.2.
+ * Reference: A. Agresti, Categorical Data Analysis, 3rd ed. (2013), chs. 1, 4 and 5.
  * Penalized fits: the table carries estimates and ratios only; every other field is NaN, and the
  * fit carries the PENALIZED_NO_P_VALUES note (see {@link penalizedNote}).
  */
@@ -23,7 +23,7 @@ export interface Interval {
 }
 
 /**
- * Wald interval estimate +/- z se at a two-sided level (Agresti 2013, §1.3.3). NaN ends when se is
+ * Wald interval estimate +/- z se at a two-sided level (Agresti 2013, ch. 1). NaN ends when se is
  * NaN or the level is outside (0, 1).
  * @example waldInterval(1, 0.5, 0.95) // { lower: 0.02, upper: 1.98 } (approximately)
  */
@@ -66,7 +66,7 @@ export interface CoefficientTableInput {
  * Turn per-equation coefficient arrays and their covariance into the flat table of
  * {@link CoefficientRow}s, equation by equation. Aliased terms get estimable=false and NaN in every
  * number; penalized fits get NaN standard errors, z, p and intervals.
- * Reference: Agresti (2013) §4.2.1 (Wald inference for GLM coefficients).
+ * Reference: Agresti (2013), ch. 4 (Wald inference for GLM coefficients).
  */
 export function buildCoefficientTable(input: CoefficientTableInput): CoefficientRow[] {
   const { terms, equationClasses, coefficients, covariance, aliased, level, penalized, intervals } = input;
@@ -130,7 +130,7 @@ export function buildCoefficientTable(input: CoefficientTableInput): Coefficient
 
 /**
  * Likelihood-ratio test of a model against a nested one: statistic 2 (logLik - nullLogLik),
- * chi-square on df degrees of freedom (Wilks 1938; Agresti 2013 §1.3.3). NaN p when df <= 0.
+ * chi-square on df degrees of freedom (Wilks 1938; Agresti 2013, ch. 1). NaN p when df <= 0.
  */
 export function likelihoodRatioTest(logLikelihood: number, nullLogLikelihood: number, df: number): LikelihoodRatioTest {
   const statistic = 2 * (logLikelihood - nullLogLikelihood);
@@ -159,7 +159,7 @@ export function informationCriteria(logLikelihood: number, parameters: number, o
 
 /**
  * The note every penalized fit carries: shrunken estimates have no classical standard errors or
- * p-values (Hastie, Tibshirani & Friedman, The Elements of Statistical Learning, 2nd ed., §3.4.1).
+ * p-values (Hastie, Tibshirani & Friedman, The Elements of Statistical Learning, 2nd ed., ch. 3).
  */
 export function penalizedNote(penalty: number): Diagnostic {
   return {
@@ -169,7 +169,7 @@ export function penalizedNote(penalty: number): Diagnostic {
   };
 }
 
-/** Standard errors sqrt(diag V) of a row-major m*m covariance (NaN for negative variances); Agresti (2013) §4.2.1. */
+/** Standard errors sqrt(diag V) of a row-major m*m covariance (NaN for negative variances); Agresti (2013), ch. 4. */
 export function standardErrors(covariance: Float64Array, m: number): Float64Array {
   const se = new Float64Array(m);
   for (let j = 0; j < m; j++) {

@@ -4,8 +4,8 @@
  * Policy: factorizations report failure in their result (`ok: false`, the failing column) rather
  * than throwing; the caller decides what that means for the user. Symmetric products are
  * accumulated over the upper triangle only and then mirrored, so they are exactly symmetric.
- * References: G. H. Golub & C. F. Van Loan, Matrix Computations, 4th ed. (2013), §4.2 (Cholesky),
- * §5.4.2 (rank-revealing / pivoted Cholesky); N. J. Higham, "Analysis of the Cholesky decomposition
+ * References: G. H. Golub & C. F. Van Loan, Matrix Computations, 4th ed. (2013), ch. 4 (Cholesky),
+ * ch. 5 (rank-revealing / pivoted factorizations); N. J. Higham, "Analysis of the Cholesky decomposition
  * of a semi-definite matrix" (1990).
  */
 
@@ -14,7 +14,7 @@ export type SquareMatrix = Float64Array;
 
 /**
  * Copy the upper triangle onto the lower one, in place: A[j][i] = A[i][j] for i < j. Symmetric
- * storage convention of Golub & Van Loan (2013) §1.2.7; it keeps products exactly symmetric.
+ * storage convention of Golub & Van Loan (2013), ch. 1; it keeps products exactly symmetric.
  */
 export function mirrorUpper(a: SquareMatrix, n: number): SquareMatrix {
   for (let i = 0; i < n; i++) {
@@ -100,7 +100,7 @@ export function weightedCrossProduct(
 
 /**
  * Weighted cross-product X'Wv of columnar data with one vector; writes into `out` (length p).
- * (The score vector of a GLM, McCullagh & Nelder 1989 §2.5.)
+ * (The score vector of a GLM, McCullagh & Nelder 1989, ch. 2.)
  */
 export function weightedCrossVector(
   columns: readonly Float64Array[],
@@ -124,7 +124,7 @@ export function weightedCrossVector(
 
 /**
  * Dot product sum_i a_i b_i over the first n entries, with four accumulators (breaks the add
- * dependency chain; differs from a plain loop only by rounding). Golub & Van Loan (2013) §1.1.
+ * dependency chain; differs from a plain loop only by rounding). Golub & Van Loan (2013), ch. 1.
  */
 export function dot(a: Float64Array, b: Float64Array, n: number): number {
   let s0 = 0;
@@ -156,7 +156,7 @@ export interface CholeskyResult {
 export const CHOLESKY_RELATIVE_TOLERANCE = 1e-13;
 
 /**
- * Cholesky factorization A = L L' of a symmetric positive-definite matrix (Golub & Van Loan §4.2.5).
+ * Cholesky factorization A = L L' of a symmetric positive-definite matrix (Golub & Van Loan 2013, ch. 4).
  * A pivot d_j is accepted when d_j > tol * max(A_jj, max_k A_kk * eps-floor): failure is reported
  * in the result, never thrown. Reads only the lower triangle of A.
  * @param a - symmetric matrix, row-major n*n (not modified)
@@ -185,7 +185,7 @@ export function cholesky(a: SquareMatrix, n: number, relTol = CHOLESKY_RELATIVE_
 
 /**
  * Solve A x = b given the Cholesky factor L of A (forward then back substitution,
- * Golub & Van Loan 2013 §3.1 and §4.2). Writes into `out` when given (may alias b) and returns it.
+ * Golub & Van Loan 2013, chs. 3 and 4). Writes into `out` when given (may alias b) and returns it.
  */
 export function choleskySolve(l: SquareMatrix, n: number, b: ArrayLike<number>, out = new Float64Array(n)): Float64Array {
   for (let i = 0; i < n; i++) {
@@ -203,7 +203,7 @@ export function choleskySolve(l: SquareMatrix, n: number, b: ArrayLike<number>, 
 
 /**
  * Inverse of A from its Cholesky factor: A^{-1} = L^{-T} L^{-1}, exactly symmetric (upper triangle
- * computed, then mirrored). Reference: Golub & Van Loan (2013) §3.1.1 (triangular inverse), §4.2.
+ * computed, then mirrored). Reference: Golub & Van Loan (2013), ch. 3 (triangular inverse) and ch. 4.
  */
 export function choleskyInverse(l: SquareMatrix, n: number): SquareMatrix {
   // Invert L in place into linv (lower triangular).
@@ -229,7 +229,7 @@ export function choleskyInverse(l: SquareMatrix, n: number): SquareMatrix {
 }
 
 /**
- * Solve the symmetric positive-definite system A x = b by Cholesky (Golub & Van Loan 2013 §4.2);
+ * Solve the symmetric positive-definite system A x = b by Cholesky (Golub & Van Loan 2013, ch. 4);
  * null when A is not positive definite at the given relative tolerance.
  */
 export function solveSymmetric(a: SquareMatrix, n: number, b: ArrayLike<number>, relTol = CHOLESKY_RELATIVE_TOLERANCE): Float64Array | null {
@@ -238,7 +238,7 @@ export function solveSymmetric(a: SquareMatrix, n: number, b: ArrayLike<number>,
 }
 
 /**
- * Inverse of a symmetric positive-definite matrix by Cholesky (Golub & Van Loan 2013 §4.2); null
+ * Inverse of a symmetric positive-definite matrix by Cholesky (Golub & Van Loan 2013, ch. 4); null
  * when it is not positive definite at the given relative tolerance.
  */
 export function invertSymmetric(a: SquareMatrix, n: number, relTol = CHOLESKY_RELATIVE_TOLERANCE): SquareMatrix | null {
@@ -271,7 +271,7 @@ export const RANK_TOLERANCE = 1e-9;
  * kept columns); otherwise it is named dependent and skipped. This is the Gram-matrix analogue of
  * the limited column pivoting R's glm uses (LINPACK dqrdc2): the later column of a dependent set
  * is the one dropped. Columns whose diagonal is zero (all-zero columns) are dependent.
- * Reference: Golub & Van Loan (2013) §5.4.2; Higham (1990).
+ * Reference: Golub & Van Loan (2013), ch. 5; Higham (1990).
  * @param a - symmetric matrix, row-major n*n (not modified)
  * @param n - order
  * @param tol - threshold on 1 - R^2 [1e-9]
@@ -311,7 +311,7 @@ export function rankRevealingCholesky(a: SquareMatrix, n: number, tol = RANK_TOL
   return { rank: kept.length, independent: kept, dependent, residualShare };
 }
 
-/** Take the principal (or general) sub-matrix of A (n*n) on the given index set (Golub & Van Loan 2013 §1.1.1 notation A(idx, idx)). */
+/** Take the principal (or general) sub-matrix of A (n*n) on the given index set (Golub & Van Loan 2013 notation A(idx, idx)). */
 export function subMatrix(a: SquareMatrix, n: number, idx: readonly number[]): SquareMatrix {
   const m = idx.length;
   const out = new Float64Array(m * m);
@@ -321,7 +321,7 @@ export function subMatrix(a: SquareMatrix, n: number, idx: readonly number[]): S
   return out;
 }
 
-/** Matrix-vector product y = A x for a square row-major A (Golub & Van Loan 2013 §1.1.3). */
+/** Matrix-vector product y = A x for a square row-major A (Golub & Van Loan 2013, ch. 1). */
 export function multiplyVector(a: SquareMatrix, n: number, x: ArrayLike<number>, out = new Float64Array(n)): Float64Array {
   for (let i = 0; i < n; i++) {
     let s = 0;
@@ -331,7 +331,7 @@ export function multiplyVector(a: SquareMatrix, n: number, x: ArrayLike<number>,
   return out;
 }
 
-/** Quadratic form x' A x for a square row-major A (e.g. a variance x' V x; Golub & Van Loan 2013 §1.1). */
+/** Quadratic form x' A x for a square row-major A (e.g. a variance x' V x; Golub & Van Loan 2013, ch. 1). */
 export function quadraticForm(a: SquareMatrix, n: number, x: ArrayLike<number>): number {
   let s = 0;
   for (let i = 0; i < n; i++) {

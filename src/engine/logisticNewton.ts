@@ -11,7 +11,7 @@
  * Convergence: |D - D_old| / (0.1 + |D|) < tol with D = 2F (the penalized deviance up to a
  * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations;
  * Firth fits additionally need the largest relative step below 1e-11.
- * References: P. McCullagh & J. A. Nelder, Generalized Linear Models, 2nd ed. (1989), §2.5 (IRLS);
+ * References: P. McCullagh & J. A. Nelder, Generalized Linear Models, 2nd ed. (1989), ch. 2 (IRLS);
  * Firth (1993) and Heinze & Schemper (2002) for the modified score (see firth.ts).
  */
 
@@ -144,7 +144,7 @@ function penaltyValue(p: NewtonProblem, g: Float64Array): number {
  * Minimize the (penalized / bias-reduced) negative log-likelihood by Newton-Raphson with step
  * halving. Never throws: a singular information matrix ends the loop with singular = true.
  * @see file comment for the objective, step and convergence rule.
- * Reference: McCullagh & Nelder (1989) §2.5 (Fisher scoring = Newton for the canonical logit link);
+ * Reference: McCullagh & Nelder (1989), ch. 2 (Fisher scoring = Newton for the canonical logit link);
  * Firth (1993) for the bias-reduced objective.
  */
 export function newtonLogistic(p: NewtonProblem): NewtonResult {
@@ -266,7 +266,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
         factorTry = firthFactor(p, infoTry, k);
         objTry = factorTry ? objTry - 0.5 * logDetFromCholesky(factorTry, k) : Infinity;
       }
-      // Armijo's sufficient-decrease rule (Nocedal & Wright 2006, §3.1): F must fall by at least
+      // Armijo's sufficient-decrease rule (Nocedal & Wright, Numerical Optimization, 2006, ch. 3): F must fall by at least
       // 1e-4 of the predicted decrease. A step that merely ties (an overshoot to the mirror point,
       // which Firth's approximate Hessian can produce) is halved instead of accepted. Once the
       // predicted decrease is below rounding of F, a non-increase is enough.

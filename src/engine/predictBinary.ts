@@ -4,7 +4,7 @@
  * eta_i = offset_i + b0 + x_i'b (aliased terms contribute nothing), p_i = sigmoid(eta_i).
  * SE(eta_i) = sqrt(x~_i' V x~_i) over the estimable terms (x~ includes the 1 of the intercept);
  * the probability interval is eta_i +/- z SE mapped through the sigmoid, so it stays inside (0, 1)
- * (the usual interval for a GLM mean on the link scale; Agresti 2013 §5.2.3, R's
+ * (the usual interval for a GLM mean on the link scale; Agresti 2013, ch. 5; R's
  * predict.glm(se.fit = TRUE) gives the same SE).
  * Policy for unusable rows: a NaN in any used predictor or in the offset gives NaN outputs and
  * predicted = -1 for that row; other rows are unaffected.
@@ -39,7 +39,7 @@ export interface PredictBinaryOptions {
  * @example
  * const pred = predictBinary(fit, X);
  * pred.probabilities[1][0]; // P(positive class) for the first row
- * Reference: Agresti (2013) §5.2.3; McCullagh & Nelder (1989) §2.5.
+ * Reference: Agresti (2013), ch. 5; McCullagh & Nelder (1989), ch. 2.
  */
 export function predictBinary(fit: ModelFit, X: DesignMatrix, options: PredictBinaryOptions = {}): Prediction {
   if (fit.kind !== "binary") {

@@ -1,7 +1,7 @@
 /**
  * Profile-likelihood confidence intervals for the coefficients of an unpenalized binary logistic
  * fit. For coefficient j the interval is { c : 2 [ l(b^) - max_{b: b_j = c} l(b) ] <= q }, with q
- * the chi-square(1) quantile at the level (Venzon & Moolgavkar 1988; Agresti 2013 §1.4.2). We solve
+ * the chi-square(1) quantile at the level (Venzon & Moolgavkar 1988; Agresti 2013, ch. 1). We solve
  * for the two ends of the signed root r(c) = sign(c - b^_j) sqrt(2 [l(b^) - l_j(c)]) = +/- z,
  * which is close to linear in c, by bracketing from the Wald end and then the Illinois variant of
  * regula falsi; each evaluation refits the other coefficients with b_j fixed (c x_j enters the

@@ -13,7 +13,7 @@
  * 2. Multivariate, from the Newton iterates: when the fit drives probabilities towards 0 or 1, the
  *    last Newton step points along the diverging direction; it is accepted only after checking the
  *    inequalities above on every row (with a small relative tolerance), as suggested by the
- *    geometry in Albert & Anderson (1984), §3. Columns with non-negligible weight in the direction
+ *    geometry in Albert & Anderson (1984). Columns with non-negligible weight in the direction
  *    (on the standardized scale) are named.
  * References: A. Albert & J. A. Anderson, "On the existence of maximum likelihood estimates in
  * logistic regression models", Biometrika 71 (1984); T. J. Santner & D. E. Duffy, Biometrika 73
