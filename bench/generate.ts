@@ -172,7 +172,8 @@ function isCurrent(name: string): boolean {
   if (!fs.existsSync(metaFile)) return false;
   try {
     const meta = JSON.parse(fs.readFileSync(metaFile, "utf8")) as DataSetMeta;
-    if (meta.generatorVersion !== GENERATOR_VERSION || meta.seed !== SEED) return false;
+    const expected = DATA_SETS.find((d) => d.name === name)?.seed;
+    if (meta.generatorVersion !== GENERATOR_VERSION || meta.seed !== expected) return false;
     return Object.values(meta.files).every((f) => f && fs.existsSync(path.join(DATA_DIR, f)));
   } catch {
     return false;
@@ -375,14 +376,14 @@ function generateOneHot(name: string, rows: number, levels: number, seed: number
 }
 
 /** The benchmark's data sets, by name. Each seed differs so the sets are independent. */
-export const DATA_SETS: { name: string; quick: boolean; make: () => void }[] = [
-  { name: "binary_10k", quick: true, make: () => generateBinary("binary_10k", 10_000, 20, SEED + 1) },
-  { name: "binary_100k", quick: false, make: () => generateBinary("binary_100k", 100_000, 20, SEED + 2) },
-  { name: "binary_1m", quick: false, make: () => generateBinary("binary_1m", 1_000_000, 20, SEED + 3) },
-  { name: "multi_10k", quick: true, make: () => generateMulticlass("multi_10k", 10_000, 20, 5, SEED + 4) },
-  { name: "multi_100k", quick: false, make: () => generateMulticlass("multi_100k", 100_000, 20, 5, SEED + 5) },
-  { name: "onehot_10k", quick: true, make: () => generateOneHot("onehot_10k", 10_000, 50, SEED + 6) },
-  { name: "onehot_100k", quick: false, make: () => generateOneHot("onehot_100k", 100_000, 50, SEED + 7) },
+export const DATA_SETS: { name: string; quick: boolean; seed: number; make: () => void }[] = [
+  { name: "binary_10k", quick: true, seed: SEED + 1, make: () => generateBinary("binary_10k", 10_000, 20, SEED + 1) },
+  { name: "binary_100k", quick: false, seed: SEED + 2, make: () => generateBinary("binary_100k", 100_000, 20, SEED + 2) },
+  { name: "binary_1m", quick: false, seed: SEED + 3, make: () => generateBinary("binary_1m", 1_000_000, 20, SEED + 3) },
+  { name: "multi_10k", quick: true, seed: SEED + 4, make: () => generateMulticlass("multi_10k", 10_000, 20, 5, SEED + 4) },
+  { name: "multi_100k", quick: false, seed: SEED + 5, make: () => generateMulticlass("multi_100k", 100_000, 20, 5, SEED + 5) },
+  { name: "onehot_10k", quick: true, seed: SEED + 6, make: () => generateOneHot("onehot_10k", 10_000, 50, SEED + 6) },
+  { name: "onehot_100k", quick: false, seed: SEED + 7, make: () => generateOneHot("onehot_100k", 100_000, 50, SEED + 7) },
 ];
 
 /** Writes the data sets that are missing or stale; returns the names written. */
