@@ -205,7 +205,8 @@ export class PaneController {
     const next = { ...this.choice, ...patch };
     if (patch.label !== undefined && patch.label !== this.choice.label) {
       next.predictors = next.predictors.filter((p) => p !== patch.label);
-      next.focusClass = null;
+      // The old label's class means nothing for the new label (unless this same change names one).
+      if (patch.focusClass === undefined) next.focusClass = null;
     }
     this.choice = next;
     if (patch.threshold !== undefined) this.reviewSettings = { ...this.reviewSettings, threshold: patch.threshold };

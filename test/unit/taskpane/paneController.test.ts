@@ -200,3 +200,31 @@ describe("pane fit and borderline review", () => {
     expect(new InlineFitRunner().kind).toBe("inline");
   });
 });
+
+describe("pane with several classes", () => {
+  test("a three-class label fits a softmax model, writes one probability column per class and lists close calls", async () => {
+    const { controller, workbook } = await setUp();
+    const grade = controller.data!.columns.find((c) => c.name === "grade")!.index;
+    controller.setChoice({ label: grade, focusClass: "juice" });
+    expect(controller.labelClasses()).toEqual(["juice", "market", "premium"]);
+    await controller.fit();
+    expect(controller.status.phase).toBe("done");
+    expect(controller.outcome!.model.fit.referenceClass).toBe("juice");
+    expect(controller.layout!.anchors.map((a) => `${a.what}@${a.at}`)).toEqual(["probabilities@A1", "classes@D1", "coefficients@F1", "report@R1"]);
+    expect(controller.layout!.anchors[0].formula).toContain('"reference=juice; penalty=0; level=0.95"');
+    expect(workbook.read("Oddsmith results", { top: 1, left: 1, bottom: 1, right: 4 })[0].every((v) => typeof v === "string" && !v.startsWith("#"))).toBe(true);
+    const review = controller.review!;
+    expect(review.review.kind).toBe("multiclass");
+    expect(review.probabilityLabel).toBe("P(top class)");
+    const expected = nearBoundaryRows(controller.outcome!.scores.prediction, { band: 0.1, limit: 200 });
+    expect(review.lines.map((l) => l.dataRow)).toEqual(expected.rows.map((r) => r.row));
+    for (const l of review.lines) expect(l.predicted).not.toBe(l.runnerUp);
+    expect(review.summary).toMatch(/^\d+ rows have its two most likely classes within 0.10 of each other\./);
+  });
+
+  test("progress of a chunked read shows as a fraction with a count", async () => {
+    const { controller } = await setUp();
+    controller.transferProgress({ task: "read", done: 50_000, total: 200_000 });
+    expect(controller.status).toEqual({ phase: "reading", message: "Reading 50,000 of 200,000 cells (25%)...", progress: 0.25, busy: true });
+  });
+});

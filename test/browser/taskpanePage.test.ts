@@ -1,0 +1,58 @@
+/**
+ * The task pane page (the shared-runtime page Excel loads) opened outside Office: office.js reports
+ * no host, so the page must say where to go instead of failing, and nothing may leave the origin.
+ *
+ * Observed (and asserted): office.js, a third-party file, tries to open a hidden telemetry frame to
+ * a Microsoft host when it runs outside Office; the page's Content-Security-Policy blocks it before
+ * any request is made. Our own code causes no policy violation.
+ */
+import fs from "fs";
+import type { Server } from "http";
+import type { BrowserContext } from "playwright-core";
+import { BUILD_TIMEOUT_MS, ensureBuild, launch, startServer } from "./harness";
+
+jest.setTimeout(90_000);
+
+let server: Server;
+let base: string;
+let context: BrowserContext;
+let profile: string;
+
+beforeAll(async () => {
+  ensureBuild();
+  ({ server, base } = await startServer());
+  ({ context, profile } = await launch());
+}, BUILD_TIMEOUT_MS);
+
+afterAll(async () => {
+  await context?.close();
+  server?.closeAllConnections();
+  server?.close();
+  if (profile) fs.rmSync(profile, { recursive: true, force: true });
+});
+
+test("outside Office the task pane page explains where to open it, and nothing leaves the origin", async () => {
+  const page = await context.newPage();
+  const requests: string[] = [];
+  const violations: string[] = [];
+  const errors: string[] = [];
+  page.on("request", (r) => requests.push(r.url()));
+  page.on("console", (m) => {
+    if (m.type() !== "error") return;
+    if (/Content Security Policy/.test(m.text())) violations.push(m.text());
+    else errors.push(m.text());
+  });
+  page.on("pageerror", (e) => errors.push(e.message));
+  await page.goto(`${base}/taskpane.html`);
+  await page.waitForSelector(".osm-outside");
+  expect(await page.textContent(".osm-outside")).toContain("Open it from Excel: Data > Oddsmith > Classifier");
+  expect(await page.getAttribute(".osm-outside a", "href")).toBe("preview.html");
+  // office.js and both bundles came from our folder.
+  const paths = requests.map((u) => (u.startsWith(base) ? u.slice(base.length) : u));
+  expect(paths).toEqual(expect.arrayContaining(["/office-js/office.js", "/functions.js", "/taskpane.js"]));
+  expect(requests.filter((u) => !u.startsWith(base))).toEqual([]);
+  expect(errors).toEqual([]);
+  // Every blocked action was office.js's telemetry frame or its inline style for that frame.
+  for (const v of violations) expect(v).toMatch(/telemetry|inline style/i);
+  await page.close();
+});
