@@ -43,6 +43,9 @@ export const MAX_NS_DF = 20;
 
 const ORDER = 4; // cubic
 
+/** Smallest gap between knots, as a share of the boundary width, that the basis can resolve. */
+const KNOT_GAP_SHARE = 1e-12;
+
 /**
  * Values (deriv = 0) or derivatives of all B-splines of order `ORDER` on knot sequence `t` at x.
  * x must lie in [t[ORDER-1], t[nb]]; at the right end the last non-empty interval is used (left
@@ -185,8 +188,12 @@ export function fitNs(column: BasisColumn, options: NsOptions): NsState {
     knots = [];
     for (let j = 1; j <= m; j++) knots.push(quantile7(inside, j * by));
   }
+  // Knots closer than this share of the boundary width coincide for the B-spline recursion (the
+  // divisions by knot gaps overflow): tied values at 0 and 5e-323 beside 1 gave NaN columns.
+  const minGap = KNOT_GAP_SHARE * (boundary[1] - boundary[0]);
   for (let j = 0; j < knots.length; j++) {
-    const clash = (j > 0 && knots[j] === knots[j - 1]) || knots[j] <= boundary[0] || knots[j] >= boundary[1];
+    const clash =
+      (j > 0 && !(knots[j] - knots[j - 1] > minGap)) || !(knots[j] - boundary[0] > minGap) || !(boundary[1] - knots[j] > minGap);
     if (clash) {
       throw problem("BASIS_TOO_FEW_VALUES", {
         transform: label,
