@@ -43,8 +43,12 @@ export const MAX_NS_DF = 20;
 
 const ORDER = 4; // cubic
 
-/** Smallest gap between knots, as a share of the boundary width, that the basis can resolve. */
-const KNOT_GAP_SHARE = 1e-12;
+/**
+ * Smallest gap between knots, as a share of the boundary width, that the basis can resolve: the
+ * boundary second derivatives divide by two knot gaps (in unit coordinates), which overflows for
+ * gaps below about 1e-154.
+ */
+const KNOT_GAP_SHARE = 1e-150;
 
 /**
  * Values (deriv = 0) or derivatives of all B-splines of order `ORDER` on knot sequence `t` at x.
@@ -188,8 +192,8 @@ export function fitNs(column: BasisColumn, options: NsOptions): NsState {
     knots = [];
     for (let j = 1; j <= m; j++) knots.push(quantile7(inside, j * by));
   }
-  // Knots closer than this share of the boundary width coincide for the B-spline recursion (the
-  // divisions by knot gaps overflow): tied values at 0 and 5e-323 beside 1 gave NaN columns.
+  // Knots closer than KNOT_GAP_SHARE of the boundary width coincide for the B-spline recursion (the
+  // divisions by knot gaps overflow): values 0 and 5e-323 beside 1 gave NaN columns.
   const minGap = KNOT_GAP_SHARE * (boundary[1] - boundary[0]);
   for (let j = 0; j < knots.length; j++) {
     const clash =
