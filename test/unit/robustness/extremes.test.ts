@@ -433,6 +433,15 @@ describe("numeric extremes: many distinct labels", () => {
 });
 
 describe("numeric extremes: basis columns of data near 1e300 and 1e-300", () => {
+  test("ns whose quantile knots would fall a few subnormal steps apart (values 0, 5e-323, 1) is BASIS_TOO_FEW_VALUES, not NaN", () => {
+    const e = cellFailure(() => ODDS.basis([["a"], [0], [1], [5e-323]], [["a: ns(20)"]]));
+    expect([e.code, e.cellError]).toEqual(["BASIS_TOO_FEW_VALUES", "#VALUE!"]);
+  });
+
+  test("ns with a knot 1e-13 of the range from the boundary still gives finite columns", () => {
+    expectCleanSpill(ODDS.basis([["a"], [0], [1], [1e-13], [0.5]], [["a: ns(3)"]]), "ns near-boundary knot");
+  });
+
   // z, minmax, ns, rbf and bins depend on x only through (x - centre) / spread, so multiplying the
   // data by c leaves every column unchanged (poly's powers and log's shifts are not scale-free).
   const base = [0, 1, 2, 0.5, 3, 1.5, 2.5, 0.25];
