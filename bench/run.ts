@@ -80,6 +80,8 @@ interface Timing {
   cpu: number[];
   median: number;
   coldFirst: boolean;
+  /** Wall seconds of the untimed warm-up runs (ours only): the first one is a cold, un-JITted call. */
+  warmupTimes?: number[];
 }
 
 function median(xs: number[]): number {
@@ -92,6 +94,7 @@ function median(xs: number[]): number {
 function timeOurs<T>(fn: () => T, warmup: number, runs: number, budget: number): Timing & { last: T } {
   const times: number[] = [];
   const cpu: number[] = [];
+  const warmupTimes: number[] = [];
   let coldFirst = false;
   let done = 0;
   let last!: T;
@@ -104,6 +107,7 @@ function timeOurs<T>(fn: () => T, warmup: number, runs: number, budget: number):
     const c = process.cpuUsage(c0);
     if (done < warmup && !(dt > LONG_FIT_SECONDS && times.length === 0)) {
       done++;
+      warmupTimes.push(dt);
       continue;
     }
     if (done < warmup) {
@@ -114,7 +118,7 @@ function timeOurs<T>(fn: () => T, warmup: number, runs: number, budget: number):
     cpu.push((c.user + c.system) / 1e6);
     if (times.length >= runs || times.reduce((a, b) => a + b, 0) + dt > budget) break;
   }
-  return { times, cpu, median: median(times), coldFirst, last };
+  return { times, cpu, median: median(times), coldFirst, warmupTimes, last };
 }
 
 const INTERLEAVED_LONG_SECONDS = 10;
@@ -364,6 +368,7 @@ function runOurs(fit: () => ModelFit, p: RunPolicy): OursResult {
       cpu: t.cpu,
       median: t.median,
       coldFirst: t.coldFirst,
+      warmupTimes: t.warmupTimes,
       logLik: f.logLikelihood,
       iterations: f.iterations,
       converged: f.converged,
@@ -839,7 +844,7 @@ function caseTable(c: CaseResult): string[] {
   ];
   if (c.ours.ok) {
     lines.push(
-      `| **Oddsmith** | **${fmtS(c.ours.median)}** | ${c.ours.times.map((t) => t.toFixed(3)).join(", ")}${c.ours.coldFirst ? " (cold)" : ""} | ${cpuWall(c.ours)} | 1 | ${c.ours.logLik?.toFixed(6)} | ${fmtRel(relDiff(c.ours.logLik, ref?.logLik))} | ${c.ours.iterations}${c.ours.converged ? "" : " (not converged)"} |`,
+      `| **Oddsmith** | **${fmtS(c.ours.median)}** | ${c.ours.times.map((t) => t.toFixed(3)).join(", ")}${c.ours.coldFirst ? " (cold)" : ""}${c.ours.warmupTimes && c.ours.warmupTimes.length ? `; warm-up ${c.ours.warmupTimes.map((t) => t.toFixed(3)).join(", ")}` : ""} | ${cpuWall(c.ours)} | 1 | ${c.ours.logLik?.toFixed(6)} | ${fmtRel(relDiff(c.ours.logLik, ref?.logLik))} | ${c.ours.iterations}${c.ours.converged ? "" : " (not converged)"} |`,
     );
   } else lines.push(`| Oddsmith | not run: ${c.ours.error} | | | | | | |`);
   for (const p of c.peers) {
