@@ -23,7 +23,9 @@
  *   s_j the population standard deviation of column j (penaltyScale "standardized", weighted by
  *   w_i t_i) or 1 ("original"); no covariance, no p-values (PENALIZED_NO_P_VALUES note).
  * - Firth fits (biasReduction): estimates maximize l(b) + (1/2) log det I(b); standard errors from
- *   I(b*)^{-1} at the estimate with Wald z, p and intervals (as brglm2's summary for "AS_mean").
+ *   I(b*)^{-1} at the estimate with Wald z, p and intervals (as brglm2's summary for "AS_mean");
+ *   intervalMethod "profile" gives profile penalized-likelihood intervals instead (as Heinze &
+ *   Schemper 2002 propose; see profile.ts).
  *   logLikelihood is the ordinary log-likelihood at the Firth estimate; nullLogLikelihood the
  *   ordinary intercept-only maximum; lrTest is the penalized-likelihood ratio of the fit against the
  *   same penalized likelihood maximized with every non-intercept coefficient held at 0 (the
@@ -54,7 +56,7 @@ import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, weighted
 import { newtonLogistic, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
-import { PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
+import { firthProfileIntervals, PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
 import { separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
 import type { BinaryFitOptions, DesignMatrix, Diagnostic, ModelFit, Severity } from "./types";
 
@@ -552,17 +554,13 @@ export function fitBinaryModel(
   // ---- intervals ---------------------------------------------------------------------------
   let intervals: Interval[] | null = null;
   if (opt.intervalMethod === "profile" && !unusable) {
-    if (penalized || opt.biasReduction) {
-      diagnostics.push(
-        diag("PROFILE_NOT_AVAILABLE", "note", {
-          reason: penalized ? "penalized fits" : "bias-reduced (Firth) fits",
-          shown: penalized ? "no intervals" : "Wald intervals",
-        }),
-      );
+    if (penalized) {
+      diagnostics.push(diag("PROFILE_NOT_AVAILABLE", "note", { reason: "penalized (ridge) fits", shown: "no intervals" }));
     } else if (covK) {
       const seK = new Float64Array(k);
       for (let t = 0; t < k; t++) seK[t] = Math.sqrt(covK[t * k + t]);
-      const prof = profileIntervals(
+      // Firth fits profile the penalized likelihood (Heinze & Schemper 2002); others the likelihood.
+      const prof = (opt.biasReduction ? firthProfileIntervals : profileIntervals)(
         {
           rows: n,
           columns: kept.filter((j) => !(opt.intercept && j === 0)).map((j) => data.columns[j - off0]),

@@ -136,58 +136,143 @@ export function profileIntervals(data: ProfileData, level: number): ProfileInter
       const root = Math.sqrt(Math.max(0, dev));
       return c >= bHat ? root : -root;
     };
-    const se = data.standardError[j];
-    const half = zCrit * (Number.isFinite(se) && se > 0 ? se : Math.max(1, Math.abs(bHat)));
-    const ends: number[] = [];
-    const open: ("lower" | "upper")[] = [];
-    for (const side of [-1, 1] as const) {
+    out.push(findProfileEnds(bHat, data.standardError[j], zCrit, signedRoot, () => {
       warm = Float64Array.from(startFull);
-      const target = side * zCrit;
-      // Bracket: walk outwards from the estimate until |r| exceeds z.
-      let cIn = bHat;
-      let rIn = 0;
-      let step = half;
-      let cOut = bHat + side * step;
-      let rOut = signedRoot(cOut);
-      let found = side * rOut >= zCrit;
-      while (!found && step < PROFILE_SEARCH_LIMIT * half) {
-        cIn = cOut;
-        rIn = rOut;
-        step *= 2;
-        cOut = bHat + side * step;
-        rOut = signedRoot(cOut);
-        found = side * rOut >= zCrit;
-      }
-      if (!found || !Number.isFinite(rOut)) {
-        ends.push(NaN);
-        open.push(side < 0 ? "lower" : "upper");
-        continue;
-      }
-      // Illinois regula falsi on f(c) = r(c) - target within [cIn, cOut].
-      let fIn = rIn - target;
-      let fOut = rOut - target;
-      let c = cOut;
-      let lastSide = 0;
-      for (let it = 0; it < 100; it++) {
-        c = cOut - (fOut * (cOut - cIn)) / (fOut - fIn);
-        const f = signedRoot(c) - target;
-        if (Math.abs(f) < ROOT_TOLERANCE || Math.abs(cOut - cIn) < 1e-14 * (1 + Math.abs(c))) break;
-        if (f * fOut < 0) {
-          cIn = cOut;
-          fIn = fOut;
-          cOut = c;
-          fOut = f;
-          lastSide = 0;
-        } else {
-          cOut = c;
-          fOut = f;
-          if (lastSide === 1) fIn *= 0.5;
-          lastSide = 1;
-        }
-      }
-      ends.push(c);
+    }));
+  }
+  return out;
+}
+
+
+/**
+ * Solve r(c) = -z and r(c) = +z for a signed-root profile r (increasing through 0 at the estimate):
+ * bracket by walking out from the estimate in steps of z se (doubling, up to
+ * PROFILE_SEARCH_LIMIT half-widths), then Illinois regula falsi. `reset` runs before each side
+ * (the evaluator's warm start goes back to the estimate).
+ */
+function findProfileEnds(bHat: number, se: number, zCrit: number, signedRoot: (c: number) => number, reset: () => void): ProfileInterval {
+  const half = zCrit * (Number.isFinite(se) && se > 0 ? se : Math.max(1, Math.abs(bHat)));
+  const ends: number[] = [];
+  const open: ("lower" | "upper")[] = [];
+  for (const side of [-1, 1] as const) {
+    reset();
+    const target = side * zCrit;
+    let cIn = bHat;
+    let rIn = 0;
+    let step = half;
+    let cOut = bHat + side * step;
+    let rOut = signedRoot(cOut);
+    let found = side * rOut >= zCrit;
+    while (!found && step < PROFILE_SEARCH_LIMIT * half) {
+      cIn = cOut;
+      rIn = rOut;
+      step *= 2;
+      cOut = bHat + side * step;
+      rOut = signedRoot(cOut);
+      found = side * rOut >= zCrit;
     }
-    out.push({ lower: ends[0], upper: ends[1], open });
+    if (!found || !Number.isFinite(rOut)) {
+      ends.push(NaN);
+      open.push(side < 0 ? "lower" : "upper");
+      continue;
+    }
+    // Illinois regula falsi on f(c) = r(c) - target within [cIn, cOut].
+    let fIn = rIn - target;
+    let fOut = rOut - target;
+    let c = cOut;
+    let lastSide = 0;
+    for (let it = 0; it < 100; it++) {
+      c = cOut - (fOut * (cOut - cIn)) / (fOut - fIn);
+      const f = signedRoot(c) - target;
+      if (Math.abs(f) < ROOT_TOLERANCE || Math.abs(cOut - cIn) < 1e-14 * (1 + Math.abs(c))) break;
+      if (f * fOut < 0) {
+        cIn = cOut;
+        fIn = fOut;
+        cOut = c;
+        fOut = f;
+        lastSide = 0;
+      } else {
+        cOut = c;
+        fOut = f;
+        if (lastSide === 1) fIn *= 0.5;
+        lastSide = 1;
+      }
+    }
+    ends.push(c);
+  }
+  return { lower: ends[0], upper: ends[1], open };
+}
+
+/**
+ * Profile penalized-likelihood intervals for a Firth fit: { c : 2 [ l*(b*) - max_{b_j = c} l*(b) ]
+ * <= q } with l* = l + (1/2) log det I and I computed from the FULL design at every point (the
+ * definition of Heinze & Schemper 2002, which keeps the intervals finite under separation and
+ * makes them asymmetric where Wald intervals are not). Coordinates: the intercept and each column
+ * divided by its root mean square (not centred, so every original coefficient is one coordinate);
+ * the fixed coordinate is held by the Newton core's `free` mask while the others are refitted.
+ * `data.logLikelihood` is not used: the maximum of l* is recomputed in these coordinates.
+ */
+export function firthProfileIntervals(data: ProfileData, level: number): ProfileInterval[] {
+  const n = data.rows;
+  const p = data.estimate.length;
+  const zCrit = criticalZ(level);
+  const a = new Float64Array(n);
+  let sa = 0;
+  for (let i = 0; i < n; i++) {
+    a[i] = data.weights[i] * data.trials[i];
+    sa += a[i];
+  }
+  const columns: Float64Array[] = [];
+  const scale: number[] = [];
+  if (data.intercept) {
+    columns.push(new Float64Array(n).fill(1));
+    scale.push(1);
+  }
+  for (const x of data.columns) {
+    let ms = 0;
+    for (let i = 0; i < n; i++) ms += a[i] * x[i] * x[i];
+    let s = Math.sqrt(ms / sa);
+    if (!(s > 0) || !Number.isFinite(s)) s = 1;
+    columns.push(Float64Array.from(x, (v) => v / s));
+    scale.push(s);
+  }
+  // gamma_t = b_t * scale_t in these coordinates.
+  const gammaHat = Float64Array.from(data.estimate, (b, t) => b * scale[t]);
+  const problem: NewtonProblem = {
+    rows: n,
+    columns,
+    successes: data.successes,
+    trials: data.trials,
+    weights: data.weights,
+    offset: data.offset,
+    penalty: new Float64Array(p),
+    firth: true,
+    maxIterations: data.maxIterations,
+    tolerance: Math.min(data.tolerance, 1e-12),
+    start: gammaHat,
+  };
+  const best = newtonLogistic(problem);
+  const fMin = best.objective;
+  const out: ProfileInterval[] = [];
+  const free = new Uint8Array(p);
+  for (let j = 0; j < p; j++) {
+    free.fill(1);
+    free[j] = 0;
+    let warm = Float64Array.from(best.coefficients);
+    const bHat = best.coefficients[j] / scale[j];
+    const signedRoot = (c: number): number => {
+      const start = Float64Array.from(warm);
+      start[j] = c * scale[j];
+      const r = newtonLogistic({ ...problem, start, free });
+      if (r.converged && !r.singular) warm = Float64Array.from(r.coefficients);
+      const root = Math.sqrt(Math.max(0, 2 * (r.objective - fMin)));
+      return c >= bHat ? root : -root;
+    };
+    out.push(
+      findProfileEnds(bHat, data.standardError[j], zCrit, signedRoot, () => {
+        warm = Float64Array.from(best.coefficients);
+      }),
+    );
   }
   return out;
 }

@@ -102,11 +102,13 @@ describe("Firth fit properties", () => {
     expect(Math.abs(grouped.table[2].estimate)).toBeLessThan(Math.abs(ml.table[2].estimate));
   });
 
-  test("profile intervals are not offered for Firth fits: Wald intervals with a note", () => {
+  test("intervalMethod 'profile' on a Firth fit gives profile penalized-likelihood intervals (see profile.test.ts)", () => {
     const f = fitBinaryModel(design({ x: [0, 0, 0, 1, 1, 1] }), Float64Array.of(0, 0, 0, 1, 1, 1), { biasReduction: true, intervalMethod: "profile" });
-    expect(f.diagnostics.find((d) => d.code === "PROFILE_NOT_AVAILABLE")!.severity).toBe("note");
-    expect(Number.isFinite(f.table[1].lower)).toBe(true);
-    expect(f.intervalMethod).toBe("wald");
+    expect(f.intervalMethod).toBe("profile");
+    expect(f.diagnostics.some((d) => d.code === "PROFILE_NOT_AVAILABLE")).toBe(false);
+    // asymmetric around the estimate, unlike the Wald interval
+    const r = f.table[1];
+    expect(r.upper - r.estimate).toBeGreaterThan(r.estimate - r.lower + 1);
   });
 });
 

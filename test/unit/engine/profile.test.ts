@@ -11,6 +11,10 @@ const EXACT_TOL = 1e-8;
 const CONFINT_TOL = 1e-3;
 
 const ref = loadFixture("glm-references.json");
+const firthRef = loadFixture("firth-profile.json");
+/** The R reference maximizes with optim (reltol 1e-16) and uniroot (tol 1e-12): good to ~1e-8;
+ * observed agreement ~1e-11. */
+const FIRTH_PROFILE_TOL = 1e-7;
 const spector = loadFixture("spector.json");
 const spX = design({ GPA: spector.data.GPA, TUCE: spector.data.TUCE, PSI: spector.data.PSI });
 const spY = Float64Array.from(spector.data.GRADE);
@@ -100,6 +104,27 @@ describe("profile-likelihood intervals (intervalMethod 'profile')", () => {
       0.95,
     );
     expectClose(good.flatMap((p) => [p.lower, p.upper]), ref.spector.exactProfile95, EXACT_TOL, "direct call");
+  });
+
+  test("Firth fits: profile penalized-likelihood intervals match a direct R computation (endometrial, NV separates)", () => {
+    // Reference: firth-profile.R maximizes l + (1/2) log det I with optim and solves the ends with
+    // uniroot. From memory (not read from the paper here): Heinze & Schemper (2002) report NV's
+    // interval as about (0.61, 7.85); the two-decimal checks below hold with the R values too.
+    const en = ref.endometrial.data as { NV: number; PI: number; EH: number; HG: number }[];
+    const fit = fitBinaryModel(design({ NV: en.map((r) => r.NV), PI: en.map((r) => r.PI), EH: en.map((r) => r.EH) }), Float64Array.from(en.map((r) => r.HG)), {
+      biasReduction: true,
+      intervalMethod: "profile",
+    });
+    expectClose(ends(fit), firthRef.endometrial95.intervals, FIRTH_PROFILE_TOL, "Firth profile 95%");
+    expect(fit.table[1].upper).toBeCloseTo(7.85, 2);
+    expect(fit.table[1].lower).toBeCloseTo(0.61, 2);
+  });
+
+  test("Firth fits: the x = y = (0,0,0,1,1,1) intervals at 95% and 90% match the direct R computation", () => {
+    const X = design({ x: [0, 0, 0, 1, 1, 1] });
+    const y = Float64Array.of(0, 0, 0, 1, 1, 1);
+    expectClose(ends(fitBinaryModel(X, y, { biasReduction: true, intervalMethod: "profile" })), firthRef.tiny95.intervals, FIRTH_PROFILE_TOL, "95%");
+    expectClose(ends(fitBinaryModel(X, y, { biasReduction: true, intervalMethod: "profile", level: 0.9 })), firthRef.tiny90.intervals, FIRTH_PROFILE_TOL, "90%");
   });
 
   test("penalized fits get no profile intervals, with a note", () => {
