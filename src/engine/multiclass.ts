@@ -52,7 +52,16 @@ import {
   mcFaddenR2,
   penalizedNote,
 } from "./inference";
-import { cholesky, choleskyInverse, choleskySolve, mirrorUpper, rankRevealingCholesky, RANK_TOLERANCE, weightedCrossProduct } from "./linalg";
+import {
+  cholesky,
+  choleskyInverse,
+  choleskySolve,
+  mirrorUpper,
+  multiplyVector,
+  rankRevealingCholesky,
+  RANK_TOLERANCE,
+  weightedCrossProduct,
+} from "./linalg";
 import { formatMessage, listNames, problem } from "./messages";
 import type { Diagnostic, DesignMatrix, ModelFit, MulticlassFitOptions } from "./types";
 
@@ -813,8 +822,41 @@ const REUSE_INFORMATION_BELOW = 1e-6;
 const REUSE_MIN_WORK = 2e7;
 /** Newton decrement required, besides the deviance rule, when the information is being reused. */
 const REUSE_DECREMENT = 1e-8;
+/**
+ * Relative rounding allowance of the objective (a sum over all rows) when accepting the final
+ * polishing step, whose true effect on the objective is far below rounding.
+ */
+const POLISH_SLACK = 1e-11;
 /** At most this many steps in a row reuse one information matrix before it is recomputed. */
 const MAX_REUSED_STEPS = 8;
+
+/**
+ * BFGS update of an inverse-Hessian approximation B in place (Nocedal & Wright 2006, eq. 6.17):
+ * B <- B + ((s'y + y'By) / (s'y)^2) s s' - (B y s' + s y' B) / (s'y). Skipped when the curvature
+ * s'y is not clearly positive (B then stays positive definite).
+ */
+function bfgsInverseUpdate(B: Float64Array, M: number, s: Float64Array, y: Float64Array): void {
+  let sy = 0;
+  let ss = 0;
+  let yy = 0;
+  for (let r = 0; r < M; r++) {
+    sy += s[r] * y[r];
+    ss += s[r] * s[r];
+    yy += y[r] * y[r];
+  }
+  if (!(sy > 1e-12 * Math.sqrt(ss * yy))) return;
+  const By = multiplyVector(B, M, y);
+  let yBy = 0;
+  for (let r = 0; r < M; r++) yBy += y[r] * By[r];
+  const a = (sy + yBy) / (sy * sy);
+  for (let i = 0; i < M; i++) {
+    for (let j = i; j < M; j++) {
+      const v = B[i * M + j] + a * s[i] * s[j] - (By[i] * s[j] + s[i] * By[j]) / sy;
+      B[i * M + j] = v;
+      B[j * M + i] = v;
+    }
+  }
+}
 
 function maxAbs(a: Float64Array): number {
   let m = 0;
@@ -910,8 +952,17 @@ function runNewton(
   let lastChange = NaN;
   let lastStep: Float64Array | null = null;
 
+  // While the information is reused, its inverse gets a secant (BFGS) correction after every step
+  // (Nocedal & Wright, Numerical Optimization, 2nd ed., 2006, §6.1), which turns the linear
+  // convergence of the simplified Newton steps superlinear; null while the information is fresh.
+  let inverseApprox: Float64Array | null = null;
+  const solveStep = (): Float64Array =>
+    inverseApprox ? multiplyVector(inverseApprox, M, scoreP) : choleskySolve(chol.factor, M, scoreP);
+  const scoreBefore = new Float64Array(M);
+
   while (iterations < opts.maxIterations && chol.ok) {
-    const delta = choleskySolve(chol.factor, M, scoreP);
+    const delta = solveStep();
+    scoreBefore.set(scoreP);
     // Step halving: shrink the step until the penalized deviance does not increase.
     let step = 1;
     let newLl = NaN;
@@ -944,7 +995,7 @@ function runNewton(
       // the squared distance to the maximum in standard-error units) below REUSE_DECREMENT.
       // kernel.score is the score at theta here (the accepted trial was evaluated with it).
       penalizedSystem(theta, false);
-      const next = choleskySolve(chol.factor, M, scoreP);
+      const next = solveStep();
       let decrement = 0;
       for (let r = 0; r < M; r++) decrement += next[r] * scoreP[r];
       if (decrement < REUSE_DECREMENT) {
@@ -958,9 +1009,18 @@ function runNewton(
       !reuseAllowed || step < 1 || chordSteps >= MAX_REUSED_STEPS || (!warmStarted && lastChange >= REUSE_INFORMATION_BELOW);
     chordSteps = fresh ? 0 : chordSteps + 1;
     // Not fresh: the kernel's score is the one of the accepted trial point (evaluated last).
-    if (fresh) kernel.evaluate(theta, "information");
-    penalizedSystem(theta, fresh);
-    if (fresh) chol = cholesky(info, M);
+    if (fresh) {
+      kernel.evaluate(theta, "information");
+      penalizedSystem(theta, true);
+      chol = cholesky(info, M);
+      inverseApprox = null;
+    } else {
+      penalizedSystem(theta, false);
+      if (!inverseApprox) inverseApprox = choleskyInverse(chol.factor, M);
+      // Secant pair: the information maps the step s onto the fall of the score, y = g_old - g_new.
+      for (let r = 0; r < M; r++) scoreBefore[r] -= scoreP[r];
+      bfgsInverseUpdate(inverseApprox, M, lastStep, scoreBefore);
+    }
   }
   // Information, its inverse and one more Newton step at the final theta.
   logLik = kernel.evaluate(theta, "information");
@@ -981,7 +1041,8 @@ function runNewton(
       for (let r = 0; r < M; r++) trial[r] = theta[r] + finalStep[r];
       const ll = kernel.evaluate(trial, "value");
       const obj = objectiveOf(ll, trial);
-      if (Number.isFinite(obj) && obj <= objective) {
+      // Near the maximum the change is below the rounding of a sum over all rows: allow for it.
+      if (Number.isFinite(obj) && obj <= objective + POLISH_SLACK * (1 + Math.abs(objective))) {
         theta.set(trial);
         logLik = ll;
         objective = obj;
