@@ -21,9 +21,9 @@
  * hidden Markov models for information extraction", IDA 2001). Selection of the `limit` closest
  * rows uses Hoare's quickselect (Hoare, "Algorithm 65: Find", CACM 4 (1961) 321).
  *
- * Performance: one pass over typed arrays, a quickselect over the selected margins only when more
- * rows qualify than are listed, and objects only for the listed rows. 1,000,000 rows take a few
- * tens of milliseconds (see test/unit/engine/boundary.test.ts).
+ * Performance: one pass over the rows into typed arrays of the selected rows, a quickselect over
+ * their margins only when more rows qualify than are listed, and objects only for the listed rows.
+ * 1,000,000 rows take a few tens of milliseconds (see test/unit/engine/boundary.test.ts).
  */
 import { problem } from "./messages";
 import type { Prediction } from "./types";
@@ -141,9 +141,11 @@ export function nearBoundaryRows(prediction: Prediction, options: BoundaryOption
   const k = probs.length;
   const n = k > 0 ? probs[0].length : 0;
   const binary = k === 2;
-  const margins = new Float64Array(n);
-  // Per-row flags: bit 1 = within band, bit 2 = undecided; 0 = not selected; 4 = unscored.
-  const flags = new Uint8Array(n);
+  // Selected rows only, in row order: row index, margin and flags (bit 1 = within band,
+  // bit 2 = undecided). One pass over the rows fills them; later steps touch only selected rows.
+  const selRow = new Int32Array(n);
+  const selMargin = new Float64Array(n);
+  const selFlag = new Uint8Array(n);
   let withinBand = 0;
   let undecided = 0;
   let undecidedOnly = 0;
@@ -160,13 +162,11 @@ export function nearBoundaryRows(prediction: Prediction, options: BoundaryOption
     for (let i = 0; i < n; i++) {
       const p = p1[i];
       if (!(p >= 0 && p <= 1)) {
-        flags[i] = 4;
         unscored++;
         continue;
       }
       // No Math.abs in the hot loop: a global lookup per row is slow inside sandboxed contexts.
       const m = p >= threshold ? p - threshold : threshold - p;
-      margins[i] = m;
       let f = 0;
       if (m <= band) {
         f = 1;
@@ -179,8 +179,12 @@ export function nearBoundaryRows(prediction: Prediction, options: BoundaryOption
         undecided++;
         if (f === 2) undecidedOnly++;
       }
-      if (f !== 0) selected++;
-      flags[i] = f;
+      if (f !== 0) {
+        selRow[selected] = i;
+        selMargin[selected] = m;
+        selFlag[selected] = f;
+        selected++;
+      }
     }
   } else if (k > 0) {
     for (let i = 0; i < n; i++) {
@@ -201,14 +205,14 @@ export function nearBoundaryRows(prediction: Prediction, options: BoundaryOption
         }
       }
       if (bad) {
-        flags[i] = 4;
         unscored++;
         continue;
       }
       const m = k === 1 ? best : best - second;
-      margins[i] = m;
       if (m <= band) {
-        flags[i] = 1;
+        selRow[selected] = i;
+        selMargin[selected] = m;
+        selFlag[selected] = 1;
         withinBand++;
         selected++;
       }
@@ -217,41 +221,38 @@ export function nearBoundaryRows(prediction: Prediction, options: BoundaryOption
 
   // Rows to list: all selected rows when they fit, else the `limit` smallest margins.
   let cutoff = Infinity;
-  if (selected > limit && limit > 0) {
-    const pool = new Float64Array(selected);
-    let j = 0;
-    for (let i = 0; i < n; i++) if (flags[i] === 1 || flags[i] === 2 || flags[i] === 3) pool[j++] = margins[i];
-    cutoff = quickselect(pool, limit - 1);
-  }
+  if (selected > limit && limit > 0) cutoff = quickselect(selMargin.slice(0, selected), limit - 1);
   const take = Math.min(selected, limit);
+  // Positions (into the selected arrays) of the listed rows.
   const chosen = new Int32Array(take);
   let count = 0;
   if (take > 0) {
-    // Strictly below the cutoff first, then rows equal to it in row order until the list is full.
-    for (let i = 0; i < n && count < take; i++) {
-      const f = flags[i];
-      if (f !== 0 && f !== 4 && margins[i] < cutoff) chosen[count++] = i;
+    // Strictly below the cutoff, then rows equal to it in row order until the list is full.
+    let ties = 0;
+    const tied = new Int32Array(take);
+    for (let j = 0; j < selected; j++) {
+      const m = selMargin[j];
+      if (m < cutoff) chosen[count++] = j;
+      else if (m === cutoff && ties < take) tied[ties++] = j;
     }
-    for (let i = 0; i < n && count < take; i++) {
-      const f = flags[i];
-      if (f !== 0 && f !== 4 && margins[i] === cutoff) chosen[count++] = i;
-    }
+    for (let t = 0; t < ties && count < take; t++) chosen[count++] = tied[t];
   }
   const order = Array.from(chosen.subarray(0, count));
-  order.sort((a, b) => margins[a] - margins[b] || a - b);
+  order.sort((a, b) => selMargin[a] - selMargin[b] || selRow[a] - selRow[b]);
 
-  const rows: BoundaryRow[] = order.map((i) => {
+  const rows: BoundaryRow[] = order.map((j) => {
+    const i = selRow[j];
     if (binary) {
       const p = probs[1][i];
       const predicted = p >= threshold ? 1 : 0;
       return {
         row: i,
         probability: p,
-        margin: margins[i],
+        margin: selMargin[j],
         predicted,
         runnerUp: 1 - predicted,
-        withinBand: (flags[i] & 1) !== 0,
-        undecided: (flags[i] & 2) !== 0,
+        withinBand: (selFlag[j] & 1) !== 0,
+        undecided: (selFlag[j] & 2) !== 0,
       };
     }
     let best = 0;
@@ -267,7 +268,7 @@ export function nearBoundaryRows(prediction: Prediction, options: BoundaryOption
     return {
       row: i,
       probability: probs[best][i],
-      margin: margins[i],
+      margin: selMargin[j],
       predicted: best,
       runnerUp: second,
       withinBand: true,
