@@ -14,7 +14,7 @@ import type { CellValue, Diagnostic } from "../engine/types";
 import { fitFailure } from "../functions/modelCell";
 import { rectAddress } from "./a1";
 import { type DataTable, describeBlock, keyColumn } from "./dataTable";
-import { chooseRunner, FitCancelled, type FitOutcome, type FitPhase } from "./fitRunner";
+import { chooseRunner, FitCancelled, FitFailed, type FitOutcome, type FitPhase } from "./fitRunner";
 import {
   DEFAULT_CHOICE,
   layoutWrites,
@@ -119,7 +119,8 @@ export class PaneController {
 
   /** A failure as a status: catalogue problems keep their text; anything else is INTERNAL. */
   private fail(e: unknown, doing: string): void {
-    const message = e instanceof OddsmithError ? e.message : problem("INTERNAL", { doing }).message;
+    // A worker's failure already carries a catalogue message (or a plain one written for users).
+    const message = e instanceof OddsmithError || e instanceof FitFailed ? e.message : problem("INTERNAL", { doing }).message;
     this.setStatus({ phase: "failed", message });
   }
 
