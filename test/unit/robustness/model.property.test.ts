@@ -133,6 +133,47 @@ describe("trainModel and scoreRows on hostile ranges", () => {
     );
   });
 
+  test("label columns with 51 to 3,000 distinct labels are refused (TOO_MANY_LABELS) without fitting", () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 51, max: 3000 }), fc.integer({ min: 0, max: 500 }), (distinct, repeats) => {
+        const n = distinct + repeats;
+        const labels: Range = [["id"], ...Array.from({ length: n }, (_, i) => [`L${i % distinct}`])];
+        const predictors: Range = [["x"], ...Array.from({ length: n }, (_, i) => [(i * 37) % 101])];
+        const start = performance.now();
+        try {
+          trainModel(labels, predictors, {});
+          throw new Error(`${distinct} distinct labels were fitted`);
+        } catch (e) {
+          expectCatalogueError(e, `${distinct} labels`);
+          expect(e.code).toBe("TOO_MANY_LABELS");
+        }
+        // Counting labels is linear; a fit would take seconds to hours.
+        expect(performance.now() - start).toBeLessThan(1000);
+      }),
+      { seed: SEED, numRuns: 20 },
+    );
+  });
+
+  test("text predictors with 101 to 3,000 distinct values are refused (TOO_MANY_LEVELS) without fitting", () => {
+    fc.assert(
+      fc.property(fc.integer({ min: 101, max: 3000 }), fc.integer({ min: 0, max: 500 }), (distinct, repeats) => {
+        const n = distinct + repeats;
+        const labels: Range = [["y"], ...Array.from({ length: n }, (_, i) => [(i * 7) % 3 === 0 ? "yes" : "no"])];
+        const predictors: Range = [["id", "x"], ...Array.from({ length: n }, (_, i) => [`row ${i % distinct}`, (i * 37) % 101])];
+        const start = performance.now();
+        try {
+          trainModel(labels, predictors, {});
+          throw new Error(`${distinct} levels were fitted`);
+        } catch (e) {
+          expectCatalogueError(e, `${distinct} levels`);
+          expect(e.code).toBe("TOO_MANY_LEVELS");
+        }
+        expect(performance.now() - start).toBeLessThan(1000);
+      }),
+      { seed: SEED, numRuns: 20 },
+    );
+  });
+
   test.each(["constructor", "toString", "__proto__", "hasOwnProperty", "valueOf"])(
     "a text predictor column headed %p (an Object.prototype member) is encoded like any other column",
     (name) => {
