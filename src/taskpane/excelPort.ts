@@ -6,8 +6,8 @@
  * and lets the pane show progress and stay responsive. Whole-column addresses ("A:D") are cut to the
  * sheet's used range first, so they cost only the filled rows.
  *
- * Highlighting uses a fill colour of our own (OUR_FILL); removing the highlight clears the fill of
- * exactly the rows the pane marked and leaves every other cell's formatting alone.
+ * Highlighting uses a fill colour of our own (OUR_FILL); removing the highlight gives exactly the
+ * rows the pane marked their own solid fill back (or no fill) and leaves every other cell alone.
  *
  * Reference: Excel JavaScript API, Range.values / Range.formulas / Range.format.fill,
  * Worksheet.getUsedRange, Range.getSurroundingRegion, Worksheet.onChanged (Office Add-ins docs).
@@ -22,6 +22,10 @@ export const DEFAULT_CHUNK_CELLS = 50_000;
 export const OUR_FILL = "#FBE3B0";
 /** Row runs per request when highlighting many scattered rows. */
 const RUNS_PER_REQUEST = 500;
+/** Rows whose own fill is read per request before highlighting. */
+const ROWS_PER_FILL_READ = 2_000;
+/** Fill colours Excel reports for cells without a fill. */
+const NO_FILL = new Set(["#FFFFFF", "WHITE", ""]);
 
 /** Progress of a long read or write: cells done out of cells in total. */
 export interface TransferProgress {
@@ -65,6 +69,8 @@ export class ExcelPort implements WorkbookPort {
   readonly chunkCells: number;
   onProgress?: (progress: TransferProgress) => void;
   private readonly run: Runner;
+  /** Each highlighted row's own fill before we highlighted it (null = none or mixed). */
+  private readonly savedFills = new Map<string, string | null>();
 
   constructor(options: ExcelPortOptions = {}, run?: Runner) {
     this.chunkCells = Math.max(1, Math.floor(options.chunkCells ?? DEFAULT_CHUNK_CELLS));
@@ -199,16 +205,44 @@ export class ExcelPort implements WorkbookPort {
     });
   }
 
+  /**
+   * Highlight rows with OUR_FILL, remembering each row's own fill first; removing the highlight
+   * puts a remembered solid fill back and clears the fill of rows that had none (or a mix of fills,
+   * which one colour cannot restore).
+   */
   async highlightRows(sheet: string, address: string, rows: number[], on: boolean): Promise<void> {
     const rect = this.rect(address);
-    const runs = rowRuns(rows);
+    const key = (row: number) => `${sheet}!${rect.left}:${rect.right}!${row}`;
     await this.run(async (context) => {
       const ws = context.workbook.worksheets.getItem(sheet);
+      const rowRange = (row: number) => ws.getRange(rectAddress({ top: row, bottom: row, left: rect.left, right: rect.right }));
+      if (on) {
+        // Remember the fill of rows not yet highlighted by us (a re-highlight keeps the original).
+        const fresh = [...new Set(rows)].filter((r) => !this.savedFills.has(key(r)));
+        for (let start = 0; start < fresh.length; start += ROWS_PER_FILL_READ) {
+          const batch = fresh.slice(start, start + ROWS_PER_FILL_READ).map((r) => {
+            const range = rowRange(r);
+            range.load("format/fill/color");
+            return { r, range };
+          });
+          await context.sync();
+          for (const { r, range } of batch) this.savedFills.set(key(r), range.format.fill.color ?? null);
+        }
+      }
+      const runs = rowRuns(rows);
       for (let i = 0; i < runs.length; i++) {
         const [from, to] = runs[i];
-        const range = ws.getRange(rectAddress({ top: from, bottom: to, left: rect.left, right: rect.right }));
-        if (on) range.format.fill.color = OUR_FILL;
-        else range.format.fill.clear();
+        if (on) {
+          ws.getRange(rectAddress({ top: from, bottom: to, left: rect.left, right: rect.right })).format.fill.color = OUR_FILL;
+        } else {
+          for (let r = from; r <= to; r++) {
+            const saved = this.savedFills.get(key(r));
+            this.savedFills.delete(key(r));
+            const range = rowRange(r);
+            if (saved && !NO_FILL.has(saved.toUpperCase())) range.format.fill.color = saved;
+            else range.format.fill.clear();
+          }
+        }
         if ((i + 1) % RUNS_PER_REQUEST === 0) await context.sync();
       }
       await context.sync();

@@ -28,7 +28,7 @@ interface Created {
 }
 
 /** A mock Excel with one or more sheets held as grids from A1; records every range it hands out. */
-function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1") {
+function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1", fills: Record<string, string> = {}) {
   const created: Created[] = [];
   const added: string[] = [];
   const events: { sheet: string; handler: () => Promise<void> }[] = [];
@@ -75,7 +75,7 @@ function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1") {
       columnCount: parseAddress(address)!.right - parseAddress(address)!.left + 1,
       format: {
         fill: {
-          color: "#FFFFFF",
+          color: fills[address] ?? "#FFFFFF",
           clear: function (this: any) {
             this.cleared = true;
           },
@@ -154,7 +154,7 @@ function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1") {
     });
     sheetMocks[sheet] = ws;
   }
-  return { root, created, added, events, loads, run: (batch: any) => root.run(batch) };
+  return { root, created, added, events, loads, fills, run: (batch: any) => root.run(batch) };
 }
 
 /** A 12 x 3 grid: header row, then numbers with a blank at row 5, column B. */
@@ -278,16 +278,31 @@ describe("ExcelPort highlighting, selection and events", () => {
   test("highlighting fills runs of rows within the block's columns with our colour", async () => {
     const excel = mockExcel({ Data: sampleGrid() });
     await new ExcelPort({}, excel.run).highlightRows("Data", "A1:C12", [4, 5, 9], true);
-    expect(excel.created.map((c) => c.address)).toEqual(["A4:C5", "A9:C9"]);
-    for (const c of excel.created) expect(c.range.format.fill.color).toBe(OUR_FILL);
+    const painted = excel.created.filter((c) => c.range.format.fill.color === OUR_FILL);
+    expect(painted.map((c) => c.address)).toEqual(["A4:C5", "A9:C9"]);
   });
 
-  test("removing the highlight clears the fill of those rows only", async () => {
-    const excel = mockExcel({ Data: sampleGrid() });
-    await new ExcelPort({}, excel.run).highlightRows("Data", "A1:C12", [7], false);
-    expect(excel.created.map((c) => c.address)).toEqual(["A7:C7"]);
-    expect(excel.created[0].range.format.fill.cleared).toBe(true);
-    expect(excel.created[0].range.format.fill.color).not.toBe(OUR_FILL);
+  test("removing the highlight gives each row its own fill back, or clears it", async () => {
+    const excel = mockExcel({ Data: sampleGrid() }, "Data!A1", { "A7:C7": "#C6E0B4" });
+    const port = new ExcelPort({}, excel.run);
+    await port.highlightRows("Data", "A1:C12", [7, 8], true);
+    excel.created.length = 0;
+    await port.highlightRows("Data", "A1:C12", [7, 8], false);
+    const byAddress = Object.fromEntries(excel.created.map((c) => [c.address, c.range.format.fill]));
+    expect(byAddress["A7:C7"].color).toBe("#C6E0B4");
+    expect(byAddress["A7:C7"].cleared).toBeUndefined();
+    expect(byAddress["A8:C8"].cleared).toBe(true);
+  });
+
+  test("highlighting a row twice still restores its original fill", async () => {
+    const excel = mockExcel({ Data: sampleGrid() }, "Data!A1", { "A3:C3": "#BDD7EE" });
+    const port = new ExcelPort({}, excel.run);
+    await port.highlightRows("Data", "A1:C12", [3], true);
+    excel.fills["A3:C3"] = OUR_FILL; // what Excel now reports for that row
+    await port.highlightRows("Data", "A1:C12", [3], true);
+    excel.created.length = 0;
+    await port.highlightRows("Data", "A1:C12", [3], false);
+    expect(excel.created[0].range.format.fill.color).toBe("#BDD7EE");
   });
 
   test("selecting a row activates the sheet and selects the row within the block's columns", async () => {
