@@ -8,7 +8,8 @@ import fc from "fast-check";
 import * as ODDS from "../../../src/functions/functions";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import type { CellValue } from "../../../src/engine/types";
-import { anyCell, blankCell, EXTREME_NUMBERS, expectCatalogueError, expectCleanSpill, grid, hostileText, labelColumn, RUNS, SEED, trainingRanges, fittableRanges, type Range } from "./support";
+import { MESSAGES, type MessageCode } from "../../../src/engine/messages";
+import { anyCell, blankCell, EXTREME_NUMBERS, expectCatalogueError, expectCleanSpill, grid, hostileText, labelColumn, RUNS, SEED, templatePattern, trainingRanges, fittableRanges, type Range } from "./support";
 
 /** Call a cell function; check the spill or the failure; return the spill or the failure code. */
 function callCell(name: string, f: () => unknown, args: unknown[]): CellValue[][] | string {
@@ -231,5 +232,50 @@ describe("cell functions on hostile inputs (as Excel calls them)", () => {
         callCell("BASIS", () => ODDS.basis(a as Range, b as Range), args);
       }
     }
+  });
+});
+
+describe("inside Office (CustomFunctions.Error present)", () => {
+  /** Stand-in for the runtime's error class: records the error code and the message the cell shows. */
+  class FakeCustomFunctionsError {
+    constructor(
+      public code: string,
+      public message: string,
+    ) {}
+  }
+  const g = globalThis as unknown as Record<string, unknown>;
+  beforeAll(() => {
+    g.CustomFunctions = { Error: FakeCustomFunctionsError, ErrorCode: { invalidValue: "#VALUE!", notAvailable: "#N/A" } };
+  });
+  afterAll(() => {
+    delete g.CustomFunctions;
+  });
+
+  const CODES = (Object.keys(MESSAGES) as MessageCode[]).filter((c) => c !== "INTERNAL");
+
+  test("a failing FIT, PROB or LOGLOSS throws CustomFunctions.Error with the error kind and a catalogue message (never INTERNAL's)", () => {
+    fc.assert(
+      fc.property(fc.oneof(trainingRanges, fittableRanges), optionText, ({ labels, predictors }, options) => {
+        const calls: [string, () => unknown][] = [
+          ["FIT", () => ODDS.fit(labels, predictors, options as Range)],
+          ["PROB", () => ODDS.prob(labels, predictors, null as unknown as Range, options as Range)],
+          ["LOGLOSS", () => ODDS.logLoss(labels, predictors, options as Range)],
+        ];
+        for (const [name, f] of calls) {
+          let out: unknown;
+          try {
+            out = f();
+          } catch (e) {
+            if (!(e instanceof FakeCustomFunctionsError)) throw new Error(`${name}: threw ${String(e)} instead of CustomFunctions.Error`);
+            const code = CODES.find((c) => templatePattern(c).test(e.message));
+            if (!code) throw new Error(`${name}: message is not a catalogue message (or is INTERNAL's): ${e.message}`);
+            expect(e.code).toBe(MESSAGES[code].cellError);
+            continue;
+          }
+          expectCleanSpill(out, name);
+        }
+      }),
+      { seed: SEED, numRuns: RUNS.cell },
+    );
   });
 });
