@@ -4,6 +4,7 @@ import {
   chiSquareSurvival,
   criticalZ,
   normalCdf,
+  normalPdf,
   normalQuantile,
   normalUpperTail,
   regularizedGammaP,
@@ -47,6 +48,10 @@ describe("normal distribution vs R pnorm/qnorm", () => {
     expect(normalQuantile(0.5)).toBe(0);
     expect(normalQuantile(-0.1)).toBeNaN();
     expect(normalQuantile(NaN)).toBeNaN();
+  });
+  test("the density is 1/sqrt(2 pi) at 0 and symmetric", () => {
+    close(normalPdf(0), 1 / Math.sqrt(2 * Math.PI), 1e-15);
+    expect(normalPdf(1.3)).toBe(normalPdf(-1.3));
   });
   test("criticalZ(0.95) is the familiar 1.959963984540054", () => {
     close(criticalZ(0.95), 1.959963984540054, 1e-14);

@@ -4,6 +4,7 @@ import {
   likelihoodRatioTest,
   mcFaddenR2,
   penalizedNote,
+  standardErrors,
   waldInterval,
 } from "../../../src/engine/inference";
 
@@ -118,5 +119,13 @@ describe("fit summaries", () => {
     expect(d.code).toBe("PENALIZED_NO_P_VALUES");
     expect(d.severity).toBe("note");
     expect(d.message).toContain("penalty=0.25");
+  });
+});
+
+describe("standardErrors", () => {
+  test("are the square roots of the diagonal, NaN for a negative variance", () => {
+    const se = standardErrors(new Float64Array([4, 1, 1, -1e-3]), 2);
+    expect(se[0]).toBe(2);
+    expect(se[1]).toBeNaN();
   });
 });
