@@ -5,6 +5,7 @@
  */
 import fc from "fast-check";
 import { scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../../../src/engine/model";
+import { nearBoundaryRows } from "../../../src/engine/boundary";
 import { expectCatalogueDiagnostics, expectCatalogueError, grid, anyCell, RUNS, SEED, trainingRanges, fittableRanges, valueOrProblem, type Range } from "./support";
 
 /** Probabilities of a scored row add up to 1 up to rounding of K exponentials and one division. */
@@ -90,6 +91,36 @@ describe("trainModel and scoreRows on hostile ranges", () => {
         checkFit(m, context);
         checkScores(m, context);
       }),
+      { seed: SEED, numRuns: RUNS.fit },
+    );
+  });
+
+  test("borderline rows of any usable model: sorted by margin, within the band or undecided, counts that add up", () => {
+    fc.assert(
+      fc.property(
+        fc.oneof(trainingRanges, fittableRanges),
+        fc.double({ min: 0, max: 1, noNaN: true }),
+        fc.constantFrom(0.5, 0.01, 0.99, 1e-9),
+        fc.integer({ min: 0, max: 10 }),
+        ({ labels, predictors }, band, threshold, limit) => {
+          const m = valueOrProblem(() => trainModel(labels, predictors, {}), "trainModel");
+          if (!m || m.fit.diagnostics.some((d) => d.severity === "error")) return;
+          const s = scoreRows(m, null, { threshold });
+          const r = nearBoundaryRows(s.prediction, { band, threshold, limit });
+          expect(r.scored + r.unscored).toBe(s.rows);
+          expect(r.rows.length).toBe(Math.min(limit, r.total));
+          expect(r.truncated).toBe(r.total > r.rows.length);
+          if (m.kind === "binary") expect(r.withinBand + r.undecidedOnly).toBe(r.total);
+          else expect(r.withinBand).toBe(r.total);
+          for (let k = 0; k < r.rows.length; k++) {
+            const row = r.rows[k];
+            expect(Number.isFinite(row.margin) && Number.isFinite(row.probability)).toBe(true);
+            expect(row.withinBand || row.undecided).toBe(true);
+            if (row.withinBand) expect(row.margin).toBeLessThanOrEqual(band);
+            if (k > 0) expect(row.margin).toBeGreaterThanOrEqual(r.rows[k - 1].margin);
+          }
+        },
+      ),
       { seed: SEED, numRuns: RUNS.fit },
     );
   });
