@@ -83,6 +83,21 @@ describe("separation", () => {
     expectNoNumbers(fit);
   });
 
+  test("two groups of classes split by a column (a, b left of 0; c, d right) name the separated pairs and all rows", () => {
+    const x = [-3, -2.5, -2, -1.5, -1, -0.5, -2.8, -2.2, -1.7, -1.2, -0.8, -0.3, 0.4, 0.9, 1.5, 2.0, 2.6, 3.1, 0.6, 1.1, 1.6, 2.2, 2.7, 3.3];
+    const z = [0.2, 1.1, -0.4, 0.8, -1.0, 0.5, -0.3, 0.9, 1.4, -0.8, 0.1, 0.6, 0.7, -0.2, 1.0, -0.9, 0.4, 0.3, -0.6, 1.2, 0.0, -0.5, 0.9, -1.1];
+    const y = Int32Array.from([0, 1, 0, 1, 0, 1, 1, 0, 1, 0, 1, 0, 2, 3, 2, 3, 2, 3, 3, 2, 3, 2, 3, 2]);
+    const fit = fitMulticlassModel(designOf([x, z], ["x", "z"]), y, ["a", "b", "c", "d"]);
+    const sep = fit.diagnostics.find((d) => d.code === "CLASSES_SEPARATED")!;
+    expect(sep.severity).toBe("error");
+    // The gap between the groups lets the separating hyperplane tilt along z too: the diverging
+    // direction is not unique, so x must be named and z may be.
+    expect(sep.columns).toContain("x");
+    expect(sep.message).toContain('Classes "a" and "c", classes "a" and "d", classes "b" and "c" and classes "b" and "d"');
+    expect(sep.rows).toHaveLength(24);
+    expectNoNumbers(fit);
+  });
+
   test("two classes that never meet but are bridged by a third overlapping both are not separation", () => {
     // a: x in [0, 1]; b: x in [0.5, 2.5]; c: x in [2, 3]. A direction pushing a away from c would
     // have to push b away from a or c too, which the overlap forbids: the estimates are finite.
