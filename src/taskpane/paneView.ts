@@ -380,16 +380,25 @@ export class PaneView {
       return;
     }
     const highlighted = new Set(this.controller.highlighted);
+    const multi = r.review.kind === "multiclass";
+    // The threshold and the interval test apply to two classes only.
+    (this.byId("reviewThreshold") as HTMLInputElement).disabled = multi;
+    (this.byId("undecided") as HTMLInputElement).disabled = multi;
     summary.textContent = r.summary + (highlighted.size ? ` ${highlighted.size} rows are highlighted in the sheet.` : "");
     const head = h(
       "thead",
       {},
-      h("tr", {}, h("th", { scope: "col" }, "Row"), ...r.keyNames.map((k) => h("th", { scope: "col" }, k)), h("th", { scope: "col" }, r.probabilityLabel), h("th", { scope: "col" }, "Margin"), h("th", { scope: "col", title: "band: within the band of the threshold; interval: its probability interval contains the threshold" }, "Why")),
+      h("tr", {}, h("th", { scope: "col" }, "Row"), ...r.keyNames.map((k) => h("th", { scope: "col" }, k)), h("th", { scope: "col" }, r.probabilityLabel), h("th", { scope: "col" }, "Margin"), multi
+          ? h("th", { scope: "col", title: "most likely class / runner-up" }, "Between")
+          : h("th", { scope: "col", title: "band: within the band of the threshold; interval: its probability interval contains the threshold" }, "Why")),
     );
     const body = h("tbody");
     for (const line of r.lines) {
-      // "band": within the band; "interval": its probability interval contains the threshold.
-      const why = [line.withinBand ? "band" : "", line.undecided ? "interval" : ""].filter(Boolean).join(" + ");
+      // Two classes: "band" = within the band; "interval" = its probability interval contains the
+      // threshold. Several classes: the two classes that compete.
+      const why = multi
+        ? `${line.predicted} / ${line.runnerUp}`
+        : [line.withinBand ? "band" : "", line.undecided ? "interval" : ""].filter(Boolean).join(" + ");
       const tr = h(
         "tr",
         { "data-sheet-row": String(line.sheetRow), tabindex: "0", title: `Select row ${line.sheetRow} in the sheet` },

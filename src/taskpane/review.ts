@@ -97,7 +97,8 @@ export function buildReview(
       else parts.push(`${plural(review.undecidedOnly, "more row has", "more rows have")} a ${pct} interval that contains the threshold.`);
     }
   } else {
-    parts.push(`${plural(review.withinBand, "row has", "rows have")} its two most likely classes within ${fmt(settings.band)} of each other.`);
+    const has = review.withinBand === 1 ? "row has its" : "rows have their";
+    parts.push(`${review.withinBand.toLocaleString("en-US")} ${has} two most likely classes within ${fmt(settings.band)} of each other.`);
   }
   parts.push(`${plural(review.scored, "row", "rows")} scored${review.unscored ? `, ${plural(review.unscored, "row", "rows")} could not be scored` : ""}.`);
   if (review.truncated) parts.push(`The closest ${review.rows.length.toLocaleString("en-US")} are listed.`);

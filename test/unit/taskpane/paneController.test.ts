@@ -219,7 +219,7 @@ describe("pane with several classes", () => {
     const expected = nearBoundaryRows(controller.outcome!.scores.prediction, { band: 0.1, limit: 200 });
     expect(review.lines.map((l) => l.dataRow)).toEqual(expected.rows.map((r) => r.row));
     for (const l of review.lines) expect(l.predicted).not.toBe(l.runnerUp);
-    expect(review.summary).toMatch(/^\d+ rows have its two most likely classes within 0.10 of each other\./);
+    expect(review.summary).toMatch(/^\d+ rows have their two most likely classes within 0.10 of each other\./);
   });
 
   test("progress of a chunked read shows as a fraction with a count", async () => {
