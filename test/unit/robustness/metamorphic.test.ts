@@ -13,6 +13,7 @@
  */
 import fc from "fast-check";
 import { scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../../../src/engine/model";
+import { brierScore, logLoss, rocAuc } from "../../../src/engine/metrics";
 import type { CellValue } from "../../../src/engine/types";
 import { SEED, type Range } from "./support";
 
@@ -283,5 +284,69 @@ describe("metamorphic: affine rescaling of a column", () => {
     const m = fit(DATA.binary, DATA.names, rescaled(100, 0, 0), options);
     const b1 = coef(base, "sick", "dose").b;
     expect(Math.abs(coef(m, "sick", "dose").b - b1 / 100)).toBeGreaterThan(1e-3 * Math.abs(b1 / 100));
+  });
+});
+
+describe("metamorphic: metrics", () => {
+  // Metrics are sums over rows (log-loss, Brier) or over positive-negative pairs (AUC and its DeLong
+  // variance), so row order cannot matter; calling the other class positive maps (y, p) to
+  // (1 - y, 1 - p), which leaves each row's loss and each pair's ordering unchanged (DeLong, DeLong &
+  // Clarke-Pearson, Biometrics 44 (1988) 837-845, for the AUC as a two-sample statistic).
+  /** Same sums in another order: rounding only. */
+  const METRIC_REL_TOL = 1e-12;
+  const expectRel = (got: number, want: number, what: string) => {
+    if (!(Math.abs(got - want) <= METRIC_REL_TOL * Math.max(1, Math.abs(want)))) throw new Error(`${what}: expected ${want}, got ${got}`);
+  };
+  const sample = fc
+    .array(fc.tuple(fc.constantFrom(0, 1), fc.double({ min: 0, max: 1, noNaN: true }), fc.constantFrom(1, 2, 0.5)), { minLength: 4, maxLength: 40 })
+    .filter((rows) => rows.some((r) => r[0] === 1) && rows.some((r) => r[0] === 0));
+
+  test("log-loss, Brier score and AUC (with its standard error) do not depend on row order, and weight 2 equals a repeated row", () => {
+    fc.assert(
+      fc.property(sample, permutation(40), (rows, perm) => {
+        const order = perm.filter((i) => i < rows.length);
+        const y = Float64Array.from(rows, (r) => r[0]);
+        const p = Float64Array.from(rows, (r) => r[1]);
+        const w = Float64Array.from(rows, (r) => r[2]);
+        const yp = Float64Array.from(order, (i) => y[i]);
+        const pp = Float64Array.from(order, (i) => p[i]);
+        const wp = Float64Array.from(order, (i) => w[i]);
+        expectRel(logLoss(yp, pp, { weights: wp }).value, logLoss(y, p, { weights: w }).value, "log-loss");
+        expectRel(brierScore(yp, pp, { weights: wp }).value, brierScore(y, p, { weights: w }).value, "Brier");
+        const a = rocAuc(y, p);
+        const b = rocAuc(yp, pp);
+        expect(Math.abs(b.auc - a.auc)).toBeLessThanOrEqual(METRIC_REL_TOL);
+        if (Number.isFinite(a.standardError)) expect(Math.abs(b.standardError - a.standardError)).toBeLessThanOrEqual(METRIC_REL_TOL * Math.max(1, a.standardError));
+        // Weight 2 on the first row equals that row twice.
+        const w2 = Float64Array.from(rows, (_, i) => (i === 0 ? 2 : 1));
+        const yd = Float64Array.from([y[0], ...y]);
+        const pd = Float64Array.from([p[0], ...p]);
+        expectRel(logLoss(y, p, { weights: w2 }).value, logLoss(yd, pd).value, "log-loss weight 2");
+        expect(Math.abs(rocAuc(y, p, { weights: w2 }).auc - rocAuc(yd, pd).auc)).toBeLessThanOrEqual(METRIC_REL_TOL);
+      }),
+      { seed: SEED, numRuns: 200 },
+    );
+  });
+
+  // Probabilities on a grid of thousandths, so that 1 - p keeps distinct values distinct (1 - 5e-324
+  // rounds to 1 and would turn a strict order into a tie).
+  const gridSample = fc
+    .array(fc.tuple(fc.constantFrom(0, 1), fc.integer({ min: 0, max: 1000 }).map((k) => k / 1000)), { minLength: 4, maxLength: 40 })
+    .filter((rows) => rows.some((r) => r[0] === 1) && rows.some((r) => r[0] === 0));
+
+  test("calling the other class positive, (y, p) -> (1 - y, 1 - p), leaves log-loss, Brier score and AUC unchanged", () => {
+    fc.assert(
+      fc.property(gridSample, (rows) => {
+        const y = Float64Array.from(rows, (r) => r[0]);
+        const p = Float64Array.from(rows, (r) => r[1]);
+        const y1 = y.map((v) => 1 - v);
+        const p1 = p.map((v) => 1 - v);
+        // 1 - p is rounded once, so compare with room for that rounding inside the logarithm.
+        expect(Math.abs(logLoss(y1, p1).value - logLoss(y, p).value)).toBeLessThanOrEqual(1e-9 * Math.max(1, logLoss(y, p).value));
+        expect(Math.abs(brierScore(y1, p1).value - brierScore(y, p).value)).toBeLessThanOrEqual(1e-12);
+        expect(Math.abs(rocAuc(y1, p1).auc - rocAuc(y, p).auc)).toBeLessThanOrEqual(METRIC_REL_TOL);
+      }),
+      { seed: SEED, numRuns: 200 },
+    );
   });
 });
