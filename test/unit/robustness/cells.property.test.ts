@@ -9,7 +9,7 @@ import * as ODDS from "../../../src/functions/functions";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import type { CellValue } from "../../../src/engine/types";
 import { MESSAGES, type MessageCode } from "../../../src/engine/messages";
-import { anyCell, blankCell, EXTREME_NUMBERS, expectCatalogueError, expectCleanSpill, grid, hostileText, labelColumn, RUNS, SEED, templatePattern, trainingRanges, fittableRanges, type Range } from "./support";
+import { anyCell, blankCell, EXTREME_NUMBERS, expectCatalogueError, expectCleanSpill, grid, hostileText, labelColumn, raggedGrid, RUNS, SEED, templatePattern, trainingRanges, fittableRanges, type Range } from "./support";
 
 /** Call a cell function; check the spill or the failure; return the spill or the failure code. */
 function callCell(name: string, f: () => unknown, args: unknown[]): CellValue[][] | string {
@@ -212,6 +212,21 @@ describe("cell functions on hostile inputs (as Excel calls them)", () => {
     fc.assert(
       fc.property(data, recipe, fc.option(data, { nil: null }), (d, r, training) => {
         callCell("BASIS", () => ODDS.basis(d, [[r]], training as Range), [d, r, training]);
+      }),
+      { seed: SEED, numRuns: RUNS.cheap },
+    );
+  });
+
+  test("ragged selections in any argument are RAGGED_RANGE or another catalogue error, never a crash", () => {
+    fc.assert(
+      fc.property(raggedGrid(anyCell, 6, 4), raggedGrid(anyCell, 6, 4), (a, b) => {
+        const args = [a, b];
+        callCell("FIT", () => ODDS.fit(a, b), args);
+        callCell("PROB", () => ODDS.prob(a, b, b, null as unknown as Range), args);
+        callCell("AUC", () => ODDS.auc(a, b), args);
+        callCell("CALIBRATION", () => ODDS.calibration(a, b), args);
+        callCell("SCORE", () => ODDS.score(a, b), args);
+        callCell("BASIS", () => ODDS.basis(a, b, a), args);
       }),
       { seed: SEED, numRuns: RUNS.cheap },
     );
