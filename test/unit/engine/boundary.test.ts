@@ -3,28 +3,6 @@ import { DEFAULT_BOUNDARY_LIMIT, nearBoundaryRows } from "../../../src/engine/bo
 import { OddsmithError } from "../../../src/engine/messages";
 import type { Prediction } from "../../../src/engine/types";
 
-/**
- * Time budget for 1,000,000 rows, from the requirement ("well under 200 ms"). Measured on a 2-core
- * machine: about 30 ms of CPU time per call (35-70 ms wall time when idle). The machine is shared
- * (load averages near 10 while other suites run, which stretches wall time 2-5x), so the test
- * compares the CPU time this process spends in the call (process.cpuUsage), taking the fastest of
- * five runs after two warm-up runs: waiting for a core is not the function's cost.
- */
-const MILLION_ROW_BUDGET_MS = 200;
-
-/** Fastest CPU time (ms) of `runs` calls after `warmUp` untimed calls (JIT compilation excluded). */
-function fastestTime(fn: () => unknown, warmUp = 2, runs = 5): number {
-  for (let i = 0; i < warmUp; i++) fn();
-  let best = Infinity;
-  for (let i = 0; i < runs; i++) {
-    const start = process.cpuUsage();
-    fn();
-    const used = process.cpuUsage(start);
-    best = Math.min(best, (used.user + used.system) / 1000);
-  }
-  return best;
-}
-
 function binaryPrediction(p: number[], lower?: number[], upper?: number[]): Prediction {
   const p1 = Float64Array.from(p);
   return {
@@ -261,7 +239,8 @@ describe("nearBoundaryRows, input checks", () => {
   });
 });
 
-describe("nearBoundaryRows, speed", () => {
+/** Speed at this size is measured by the benchmark (bench/, case "boundary"), not here: tests are not timed. */
+describe("nearBoundaryRows at 1,000,000 rows", () => {
   function lcg(seed: number): () => number {
     let s = seed >>> 0;
     return () => {
@@ -270,7 +249,7 @@ describe("nearBoundaryRows, speed", () => {
     };
   }
 
-  test(`handles 1,000,000 binary rows with intervals in under ${MILLION_ROW_BUDGET_MS} ms`, () => {
+  test("lists the closest rows first and counts every borderline binary row", () => {
     const n = 1_000_000;
     const rand = lcg(42);
     const p1 = new Float64Array(n);
@@ -289,14 +268,12 @@ describe("nearBoundaryRows, speed", () => {
       upper,
     };
     const r = nearBoundaryRows(prediction, { band: 0.2 });
-    const elapsed = fastestTime(() => nearBoundaryRows(prediction, { band: 0.2 }));
     expect(r.total).toBeGreaterThan(350_000); // about 40% of uniform p lie within 0.2 of 0.5
     expect(r.rows).toHaveLength(DEFAULT_BOUNDARY_LIMIT);
     expect(r.rows[0].margin).toBeLessThanOrEqual(r.rows[r.rows.length - 1].margin);
-    expect(elapsed).toBeLessThan(MILLION_ROW_BUDGET_MS);
   });
 
-  test(`handles 1,000,000 rows of 4 classes in under ${MILLION_ROW_BUDGET_MS} ms`, () => {
+  test("counts borderline rows of 4 classes", () => {
     const n = 1_000_000;
     const rand = lcg(7);
     const probabilities = Array.from({ length: 4 }, () => new Float64Array(n));
@@ -307,8 +284,6 @@ describe("nearBoundaryRows, speed", () => {
     }
     const prediction: Prediction = { probabilities, predicted: new Int32Array(n), margin: new Float64Array(n) };
     const r = nearBoundaryRows(prediction, { band: 0.05 });
-    const elapsed = fastestTime(() => nearBoundaryRows(prediction, { band: 0.05 }));
     expect(r.total).toBeGreaterThan(0);
-    expect(elapsed).toBeLessThan(MILLION_ROW_BUDGET_MS);
   });
 });

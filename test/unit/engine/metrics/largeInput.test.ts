@@ -1,17 +1,14 @@
 /**
- * A million rows: the sort-based metrics stay O(n log n). Measured on the 2-core development machine
+ * A million rows: the sort-based metrics give exact results at scale. Measured on the 2-core development machine
  * (idle): rocAuc about 0.25 s, rocCurve 0.24 s, calibrationTable / hosmerLemeshow 0.22 s.
  */
 import { calibrationTable, rocAuc, rocCurve } from "../../../../src/engine/metrics";
 import { expectClose } from "./close";
 
 /**
- * Wall-clock bound per call. Measured 0.25 s on an idle core and up to 3.3 s while other jobs loaded
- * the shared 2-core machine; an accidental O(n^2) pass would take hours at this size, so a loose
- * bound still catches it without failing on a busy machine.
+ * Jest's per-test timeout: a hang guard only (an accidental O(n^2) pass would take hours at this size).
+ * Speed itself is measured by the benchmark (bench/), not asserted here.
  */
-const MILLION_ROW_BUDGET_MS = 20000;
-/** Jest's per-test timeout for these tests (data set-up plus two calls under load). */
 const TEST_TIMEOUT_MS = 90000;
 /** Sums of a million weights in a different order. */
 const LARGE_SUM_REL_TOL = 1e-10;
@@ -54,23 +51,15 @@ function mannWhitneyAuc(y: Float64Array, s: Float64Array): number {
   return sum / pos.length / neg.length;
 }
 
-test("ROC AUC of 1,000,000 tied rows matches an independent Mann-Whitney count, within the time budget", () => {
-  const t0 = Date.now();
+test("ROC AUC of 1,000,000 tied rows matches an independent Mann-Whitney count", () => {
   const r = rocAuc(labels, scores);
-  const elapsed = Date.now() - t0;
   expectClose(r.auc, mannWhitneyAuc(labels, scores), LARGE_SUM_REL_TOL, "AUC");
   expect(r.variance).toBeGreaterThan(0);
-  expect(elapsed).toBeLessThan(MILLION_ROW_BUDGET_MS);
 }, TEST_TIMEOUT_MS);
 
-test("the ROC curve and the calibration table of 1,000,000 rows finish within the time budget", () => {
-  const t0 = Date.now();
+test("the ROC curve and the calibration table of 1,000,000 rows are complete", () => {
   const c = rocCurve(labels, scores);
-  const t1 = Date.now();
   const table = calibrationTable(labels, scores);
-  const t2 = Date.now();
   expect(c.truePositiveRate[c.truePositiveRate.length - 1]).toBe(1);
   expect(table.groups.reduce((a, g) => a + g.rows, 0)).toBe(n);
-  expect(t1 - t0).toBeLessThan(MILLION_ROW_BUDGET_MS);
-  expect(t2 - t1).toBeLessThan(MILLION_ROW_BUDGET_MS);
 }, TEST_TIMEOUT_MS);
