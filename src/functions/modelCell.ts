@@ -50,6 +50,20 @@ export function modelCache() {
   return sharedFitCache<TrainedModel>();
 }
 
+/** Version tag in every model key: change it when trainModel gives other results for the same inputs. */
+export const MODEL_KEY_VERSION = "trainModel/1";
+
+/**
+ * The shared-cache key of the model of labels x predictors under the fit options `model`: a hash of
+ * every cell (value and type, header row included) and of every fit option (the threshold is not one:
+ * it only changes scoring). The cell functions and the task pane both key fits with this function, so
+ * a model the pane fitted (on its own thread or in its worker) is the one its formulas find.
+ * @example modelCacheKey([["y"], ["a"]], [["x"], [1]], { penalty: 0 }) === modelCacheKey([["y"], ["a"]], [["x"], [1]], { penalty: 0 })
+ */
+export function modelCacheKey(labels: CellValue[][], predictors: CellValue[][], model: ModelOptions): string {
+  return contentKey(MODEL_KEY_VERSION, labels, predictors, model as unknown as Record<string, unknown>);
+}
+
 /**
  * Train (or fetch from the cache) the model of labels x predictors under `options`.
  * @param extraOutputCells - cells the calling function will return, for the payload estimate
@@ -68,8 +82,7 @@ export function fittedModel(
     [{ argument: "labels", cells: l }, { argument: "predictors", cells: p }, ...extraInputs],
     extraOutputCells,
   );
-  const key = contentKey("trainModel/1", l, p, options.model as unknown as Record<string, unknown>);
-  return modelCache().getOrCreate(key, cellCount(l, p), () => trainModel(l, p, options.model));
+  return modelCache().getOrCreate(modelCacheKey(l, p, options.model), cellCount(l, p), () => trainModel(l, p, options.model));
 }
 
 /** The first diagnostic of severity "error" (the fit has no usable estimates), or null. */

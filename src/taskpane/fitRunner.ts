@@ -8,14 +8,24 @@
  * - InlineFitRunner: the fit runs on the pane's own thread after yielding to the page, through the
  *   fit cache shared with the cell functions (so the formulas the pane writes reuse the fit). Used for
  *   small tables, where a fit takes milliseconds, and where Web Workers are unavailable.
+ *
+ * One fit for pane and cells: both runners leave the trained model in the shared fit cache
+ * (sharedFitCache) under `modelCacheKey` of the job's cells and options, the key the ODDS formulas
+ * the pane writes compute over the same ranges. The inline runner fits through the cache; the worker
+ * (whose own globals are not the pane's) posts the model back, and the runner stores it. A trained
+ * model is plain data (numbers, strings, typed arrays; no functions or class instances), so the
+ * structured clone of postMessage carries it whole.
+ * The pane's fits skip the cell functions' payload guard: the pane reads large tables in chunks.
  * `chooseRunner` picks the worker above INLINE_CELL_LIMIT input cells when workers exist.
  *
  * Both report progress in phases and honour an AbortSignal: a cancelled run rejects with FitCancelled
  * and its result is never used.
  */
-import { scoreRows, type RowScores, type TrainedModel } from "../engine/model";
+import { OddsmithError } from "../engine/messages";
+import { scoreRows, trainModel, type RowScores, type TrainedModel } from "../engine/model";
 import type { CellValue } from "../engine/types";
-import { fittedModel, type ModelCallOptions } from "../functions/modelCell";
+import { modelCache, modelCacheKey, type ModelCallOptions } from "../functions/modelCell";
+import { cellCount } from "../shared/fitCache";
 
 /** Above this many input cells the pane fits in a worker (when the page can start one). */
 export const INLINE_CELL_LIMIT = 50_000;
@@ -60,6 +70,23 @@ function checkAbort(signal: AbortSignal): void {
   if (signal.aborted) throw new FitCancelled();
 }
 
+/** The shared-cache key of a job's model: the key the pane's formulas compute over the same ranges. */
+export function jobCacheKey(job: FitJob): string {
+  return modelCacheKey(job.labels, job.predictors, job.options.model);
+}
+
+/** Train the job's model, or take it from the shared cache where a formula or an earlier fit left it. */
+export function fitThroughSharedCache(job: FitJob): TrainedModel {
+  return modelCache().getOrCreate(jobCacheKey(job), cellCount(job.labels, job.predictors), () =>
+    trainModel(job.labels, job.predictors, job.options.model),
+  );
+}
+
+/** Store a model trained elsewhere (in the worker) in the shared cache under the job's key. */
+export function shareModel(job: FitJob, model: TrainedModel): void {
+  modelCache().set(jobCacheKey(job), model, cellCount(job.labels, job.predictors));
+}
+
 /** Fits on the page's thread between yields, through the shared fit cache. */
 export class InlineFitRunner implements FitRunner {
   readonly kind = "inline" as const;
@@ -69,7 +96,7 @@ export class InlineFitRunner implements FitRunner {
     onPhase("fitting");
     await yieldToPage();
     checkAbort(signal);
-    const model = fittedModel(job.labels, job.predictors, job.options, 0);
+    const model = fitThroughSharedCache(job);
     onPhase("scoring");
     await yieldToPage();
     checkAbort(signal);
@@ -85,6 +112,28 @@ export type WorkerReply =
   | { id: number; phase: FitPhase }
   | { id: number; outcome: { model: TrainedModel; scores: RowScores; elapsedMs: number } }
   | { id: number; failure: { name: string; message: string; code?: string } };
+
+/**
+ * The worker's side of the protocol, apart from the worker's wiring so tests can run it in-process:
+ * train (without a cache: the worker's globals die with it) and score, posting the phases, then the
+ * outcome or the failure. A failure travels as its catalogue message, never as raw internals.
+ */
+export function answerFitRequest(request: WorkerRequest, post: (reply: WorkerReply) => void): void {
+  const { id, job } = request;
+  const start = performance.now();
+  try {
+    const model = trainModel(job.labels, job.predictors, job.options.model);
+    post({ id, phase: "scoring" });
+    const scores = scoreRows(model, null, { threshold: job.threshold });
+    post({ id, outcome: { model, scores, elapsedMs: performance.now() - start } });
+  } catch (e) {
+    const failure =
+      e instanceof OddsmithError
+        ? { name: e.name, message: e.message, code: e.code }
+        : { name: "Error", message: "The fit stopped on an unexpected problem. Your data is unchanged." };
+    post({ id, failure });
+  }
+}
 
 /** The failure a worker reports: a catalogue problem keeps its message; anything else is generic. */
 export class FitFailed extends Error {
@@ -127,6 +176,8 @@ export class WorkerFitRunner implements FitRunner {
         if ("phase" in reply) onPhase(reply.phase);
         else if ("outcome" in reply) {
           end();
+          // The formulas the pane writes next compute this same key: they find the model, not refit.
+          shareModel(job, reply.outcome.model);
           resolve({ ...reply.outcome, runner: "worker" });
         } else {
           end();

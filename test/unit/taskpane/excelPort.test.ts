@@ -5,18 +5,6 @@
  */
 import { OfficeMockObject } from "office-addin-mock";
 
-// The shared stub of office-addin-manifest (jest moduleNameMapper) is empty, but the mock reads the
-// host names from its OfficeApp enum; the values below are that enum's (office-addin-manifest 2.x).
-jest.mock("office-addin-manifest", () => ({
-  OfficeApp: {
-    Excel: "excel",
-    OneNote: "onenote",
-    Outlook: "outlook",
-    PowerPoint: "powerpoint",
-    Project: "project",
-    Word: "word",
-  },
-}));
 import { columnNumber, parseAddress, rectAddress } from "../../../src/taskpane/a1";
 import { ExcelPort, OUR_FILL, rowRuns, type TransferProgress } from "../../../src/taskpane/excelPort";
 
