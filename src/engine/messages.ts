@@ -165,6 +165,12 @@ export const MESSAGES = {
     template:
       "Only {rows} usable rows for {parameters} parameters. Add rows, remove predictors, or set a penalty.",
   },
+  TOO_MANY_PARAMETERS: {
+    cellError: "#VALUE!",
+    title: "Too many coefficients",
+    template:
+      "The model would estimate {parameters} coefficients ({detail}), more than the {limit} a fit here can handle in reasonable time. Use fewer predictor or basis columns, pool rare categories (option pool), or merge classes.",
+  },
   NO_USABLE_ROWS: {
     cellError: "#N/A",
     title: "No complete rows",
