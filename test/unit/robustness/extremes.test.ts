@@ -7,7 +7,7 @@
  * Nelder, Generalized Linear Models, 2nd ed., 1989, §4.4.2; multinomial: Agresti, Categorical Data
  * Analysis, 3rd ed., 2013, §8.1.4), and against exact invariances of that estimate.
  */
-import { scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../../../src/engine/model";
+import { MAX_PARAMETERS, scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../../../src/engine/model";
 import { brierScore, calibrationSlope, logLoss, rocAuc } from "../../../src/engine/metrics";
 import { DEFAULT_LOG_CLIP } from "../../../src/engine/numerics";
 import { ALIAS_TOLERANCE } from "../../../src/engine/binary";
@@ -485,5 +485,37 @@ describe("numeric extremes: text predictors with many distinct values", () => {
     const pooled: Range = [["g"], ...Array.from({ length: 150 * 3 + 50 * 30 }, (_, i): CellValue[] => [i < 450 ? `rare${i % 150}` : `common${i % 50}`])];
     const m = trainModel([["y"], ...pooled.slice(1).map((_, i): CellValue[] => [i % 2])], pooled, { penalty: 1, minLevelCount: 5 });
     expect(m.fit.terms.length).toBe(51);
+  });
+});
+
+describe("numeric extremes: models too large to fit in reasonable time", () => {
+  test("2,000 predictor columns over 30 rows with a penalty are TOO_MANY_PARAMETERS at once (not 33 s or out of memory)", () => {
+    const names = Array.from({ length: 2000 }, (_, j) => `c${j}`);
+    const predictors: Range = [names, ...Array.from({ length: 30 }, (_, i): CellValue[] => names.map((_, j) => ((i * 31 + j * 7) % 13) / 13))];
+    const start = performance.now();
+    const e = cellFailure(() => ODDS.fit(col("y", Array.from({ length: 30 }, (_, i) => i % 2)), predictors, [["penalty=1"]]));
+    expect([e.code, e.cellError]).toEqual(["TOO_MANY_PARAMETERS", "#VALUE!"]);
+    expect(e.message).toContain("2001 coefficients (2001 terms)");
+    expect(performance.now() - start).toBeLessThan(2000);
+  });
+
+  test("50 classes x 20 predictors (1,029 coefficients) are TOO_MANY_PARAMETERS at once (not 31 s)", () => {
+    const names = Array.from({ length: 20 }, (_, j) => `x${j}`);
+    const predictors: Range = [names, ...Array.from({ length: 2000 }, (_, i): CellValue[] => names.map((_, j) => ((i * 17 + j * 5) % 29) / 29))];
+    const start = performance.now();
+    expect(() => trainModel(col("y", Array.from({ length: 2000 }, (_, i) => `c${i % 50}`)), predictors, {})).toThrow(
+      expect.objectContaining({ code: "TOO_MANY_PARAMETERS", message: expect.stringContaining("49 class equations of 21 terms each") }),
+    );
+    expect(performance.now() - start).toBeLessThan(2000);
+  });
+
+  test(`exactly ${MAX_PARAMETERS} coefficients are fitted; one more is refused`, () => {
+    const fitWith = (p: number) => {
+      const names = Array.from({ length: p }, (_, j) => `x${j}`);
+      const predictors: Range = [names, ...Array.from({ length: 40 }, (_, i): CellValue[] => names.map((_, j) => ((i * 17 + j * 5) % 29) / 29 + (i === j ? 1 : 0)))];
+      return trainModel(col("y", Array.from({ length: 40 }, (_, i) => i % 2)), predictors, { penalty: 1 });
+    };
+    expect(fitWith(MAX_PARAMETERS - 1).fit.terms.length).toBe(MAX_PARAMETERS);
+    expect(() => fitWith(MAX_PARAMETERS)).toThrow(expect.objectContaining({ code: "TOO_MANY_PARAMETERS" }));
   });
 });
