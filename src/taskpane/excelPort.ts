@@ -15,6 +15,7 @@
 import type { CellValue } from "../engine/types";
 import { type CellRect, MAX_COLUMNS, MAX_ROWS, parseAddress, rectAddress, splitSheet } from "./a1";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "./port";
+import { grownRowCount, isBlankRow } from "./tableExtent";
 
 /** Cells per request when reading or writing large blocks. */
 export const DEFAULT_CHUNK_CELLS = 50_000;
@@ -134,6 +135,38 @@ export class ExcelPort implements WorkbookPort {
       }
       return { sheet, address: rectAddress(rect), top: rect.top, left: rect.left, values };
     });
+  }
+
+  /**
+   * The table's rows as they are now (rule in tableExtent.ts): the block as it was, then, when its
+   * last row is still filled, the rows below it in chunks until the first blank row or the end of the
+   * sheet's used range (values only).
+   */
+  async readGrownBlock(sheet: string, address: string): Promise<SheetBlock> {
+    const first = await this.readBlock(sheet, address);
+    const rect = this.rect(first.address);
+    const originalRows = first.values.length;
+    const values = first.values;
+    let kept = grownRowCount(values, originalRows);
+    if (kept === originalRows && originalRows > 0 && !isBlankRow(values[originalRows - 1])) {
+      const usedBottom = await this.run(async (context) => {
+        const used = context.workbook.worksheets.getItem(sheet).getUsedRangeOrNullObject(true);
+        used.load("address");
+        await context.sync();
+        return used.isNullObject ? rect.bottom : (parseAddress(splitSheet(used.address).address)?.bottom ?? rect.bottom);
+      });
+      const rowsPerChunk = Math.max(1, Math.floor(this.chunkCells / (rect.right - rect.left + 1)));
+      for (let top = rect.bottom + 1; top <= usedBottom && kept === values.length; top += rowsPerChunk) {
+        const part = await this.readBlock(
+          sheet,
+          rectAddress({ top, bottom: Math.min(usedBottom, top + rowsPerChunk - 1), left: rect.left, right: rect.right }),
+        );
+        values.push(...part.values);
+        kept = grownRowCount(values, originalRows);
+      }
+    }
+    const grown = { ...rect, bottom: rect.top + kept - 1 };
+    return { sheet, address: rectAddress(grown), top: grown.top, left: grown.left, values: values.slice(0, kept) };
   }
 
   async sheetNames(): Promise<string[]> {

@@ -15,6 +15,7 @@
 import type { CellValue } from "../engine/types";
 import { type CellRect, MAX_COLUMNS, MAX_ROWS, parseAddress, rectAddress } from "./a1";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "./port";
+import { grownRowCount } from "./tableExtent";
 
 /** What a formula evaluator may read: ranges of any sheet (sheet null = the formula's own sheet). */
 export interface EvaluationContext {
@@ -434,6 +435,17 @@ export class MemoryPort implements WorkbookPort {
   async readBlock(sheet: string, address: string): Promise<SheetBlock> {
     const rect = resolve(this.workbook, sheet, address);
     return { sheet, address: rectAddress(rect), top: rect.top, left: rect.left, values: this.workbook.read(sheet, rect) };
+  }
+
+  /** The table's rows as they are now: grown by rows entered below it, shrunk by rows cleared (tableExtent.ts). */
+  async readGrownBlock(sheet: string, address: string): Promise<SheetBlock> {
+    const rect = resolve(this.workbook, sheet, address);
+    // Rows below the block can only continue it up to the last used row of the sheet.
+    const below = Math.max(rect.bottom, this.workbook.usedRect(sheet).bottom);
+    const values = this.workbook.read(sheet, { ...rect, bottom: below });
+    const kept = grownRowCount(values, rect.bottom - rect.top + 1);
+    const grown = { ...rect, bottom: rect.top + kept - 1 };
+    return { sheet, address: rectAddress(grown), top: grown.top, left: grown.left, values: values.slice(0, kept) };
   }
 
   async sheetNames(): Promise<string[]> {

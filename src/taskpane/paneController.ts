@@ -13,7 +13,7 @@ import { scoreRows, type RowScores } from "../engine/model";
 import type { CellValue, Diagnostic } from "../engine/types";
 import { fitFailure } from "../functions/modelCell";
 import { rectAddress } from "./a1";
-import { type DataTable, describeBlock, keyColumn } from "./dataTable";
+import { type DataTable, describeBlock, keyColumn, tableReference } from "./dataTable";
 import { chooseRunner, FitCancelled, FitFailed, type FitOutcome, type FitPhase } from "./fitRunner";
 import {
   DEFAULT_CHOICE,
@@ -263,7 +263,8 @@ export class PaneController {
         this.setStatus({ phase: "failed", message: failure.message });
         return;
       }
-      const key = JSON.stringify([data.sheet, data.block.address, choice, classCount]);
+      // The formulas' ranges follow the table's rows (tableReference), so a grown table rewrites them.
+      const key = JSON.stringify([data.sheet, tableReference(data), choice, classCount]);
       if (write && this.writtenFor !== key) {
         this.setStatus({ phase: "writing", message: "Writing the formulas onto the results sheet...", busy: true });
         await this.writeResults(data, choice, outcome.model.fit.classes.length);
@@ -419,14 +420,26 @@ export class PaneController {
     }, this.options.refreshDelayMs);
   }
 
-  /** Re-read the table after an edit and refit (keeping the formulas, which recalculate themselves). */
+  /**
+   * Re-read the table after an edit and refit. Rows appended directly below the table or deleted
+   * from its bottom change its extent (WorkbookPort.readGrownBlock; ports without it re-read the same
+   * block). Edits inside the table keep the formulas, which recalculate themselves; a table whose rows
+   * changed gets its formulas rewritten over the new ranges (explicit ranges rather than whole
+   * columns: they carry only the table's cells, stay under the cell functions' payload limit, and key
+   * the same shared fit as the pane's own cells).
+   */
   async refresh(): Promise<void> {
     if (!this.data) return;
     try {
-      const block = await this.port.readBlock(this.data.sheet, rectAddress(this.data.rect));
+      const before = this.data;
+      const address = rectAddress(before.rect);
+      const block = this.port.readGrownBlock
+        ? await this.port.readGrownBlock(before.sheet, address)
+        : await this.port.readBlock(before.sheet, address);
       await this.adoptBlock(describeBlock(block), { listen: false, keepChoice: true });
       if (this.outcome) {
-        await this.fit(false);
+        const resized = tableReference(before) !== tableReference(this.data);
+        await this.fit(resized && this.layout !== null);
         if (this.highlighted.length) await this.highlightAll();
       }
     } catch (e) {

@@ -36,6 +36,13 @@ export interface WorkbookPort {
   selectedBlock(): Promise<SheetBlock>;
   /** Read a block by sheet and address. Large blocks are read in chunks by the Excel implementation. */
   readBlock(sheet: string, address: string): Promise<SheetBlock>;
+  /**
+   * Optional. Re-read a table whose rows may have been appended or deleted: the columns of `address`,
+   * from its top row down to its last row that is not blank across those columns, continued through
+   * the rows directly below that are not blank either (the first blank row ends the table). The
+   * returned address is the table's new extent. Without this method the pane re-reads `address`.
+   */
+  readGrownBlock?(sheet: string, address: string): Promise<SheetBlock>;
   /** Names of the sheets, in order. */
   sheetNames(): Promise<string[]>;
   /** Add a sheet and return its final name (a suffix is added when the name is taken). */

@@ -152,6 +152,19 @@ function sampleGrid(): Grid {
   return grid;
 }
 
+describe("office-addin-mock under jest (office-addin-manifest stand-in)", () => {
+  test("the stand-in gives the mock the real host names, so a mock object's host is recognised", () => {
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
+    const { OfficeApp } = require("office-addin-manifest");
+    expect(OfficeApp).toEqual({ Excel: "excel", OneNote: "onenote", Outlook: "outlook", PowerPoint: "powerpoint", Project: "project", Word: "word" });
+    // The mock skips load() for an Outlook host and only for it: both need the enum's values.
+    const outlook = new OfficeMockObject({ host: "outlook", item: { subject: "s" } }) as any;
+    const excel = new OfficeMockObject({ host: "excel", range: { values: [[1]] } }) as any;
+    expect(outlook.load("item")).toBeUndefined();
+    expect(excel.load("range")).toBe(excel);
+  });
+});
+
 describe("ExcelPort reading", () => {
   test("reads a block in chunks of at most chunkCells cells and reports progress to the end", async () => {
     const excel = mockExcel({ Data: sampleGrid() });
@@ -212,6 +225,44 @@ describe("ExcelPort reading", () => {
       '"not an address" is not a cell address.',
     );
     expect(excel.created).toHaveLength(0);
+  });
+});
+
+describe("ExcelPort.readGrownBlock: rows appended below or deleted from the bottom", () => {
+  test("rows entered below the table are read in chunks up to the first blank row", async () => {
+    const grid = sampleGrid();
+    grid.push([12, 6, "yes"], [13, 6.5, "no"], ["", "", ""], ["notes", "", ""]);
+    const excel = mockExcel({ Data: grid });
+    const port = new ExcelPort({ chunkCells: 6 }, excel.run);
+    const block = await port.readGrownBlock("Data", "A1:C12");
+    expect(block.address).toBe("A1:C14");
+    expect(block.values.slice(12)).toEqual([
+      [12, 6, "yes"],
+      [13, 6.5, "no"],
+    ]);
+    // 6 cells per chunk = 2 rows: the block (6 chunks), the used range (A1:C16, for where to stop),
+    // then rows 13-14, then 15-16 where the blank row ends the table.
+    expect(excel.created.map((c) => c.address).slice(-4)).toEqual(["A11:C12", "A1:C16", "A13:C14", "A15:C16"]);
+  });
+
+  test("with nothing below, only the block is read and its address stays", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const block = await new ExcelPort({}, excel.run).readGrownBlock("Data", "A1:C12");
+    expect(block.address).toBe("A1:C12");
+    // The block, then the used range, which ends at the block: no further read.
+    expect(excel.created.map((c) => c.address)).toEqual(["A1:C12", "A1:C12"]);
+  });
+
+  test("rows cleared at the bottom shrink the table and nothing below is read", async () => {
+    const grid = sampleGrid();
+    grid[10] = ["", "", ""];
+    grid[11] = ["", "", ""];
+    grid.push([99, 1, "yes"]);
+    const excel = mockExcel({ Data: grid });
+    const block = await new ExcelPort({}, excel.run).readGrownBlock("Data", "A1:C12");
+    expect(block.address).toBe("A1:C10");
+    expect(block.values).toHaveLength(10);
+    expect(excel.created.map((c) => c.address)).toEqual(["A1:C12"]);
   });
 });
 

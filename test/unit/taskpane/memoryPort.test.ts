@@ -194,3 +194,64 @@ describe("MemoryPort", () => {
     expect(calls).toBe(1);
   });
 });
+
+describe("MemoryPort.readGrownBlock: the table's rows as they are now", () => {
+  /** A 4-row table at B2:C5 (header and three rows), a note in B9 (rows 6-8 blank). */
+  function table() {
+    const t = book();
+    t.wb.setValues(t.s, 2, 2, [["x", "y"], [1, "a"], [2, "b"], [3, "a"]]);
+    t.wb.setCell(t.s, 9, 2, "note below the table");
+    return t;
+  }
+
+  test("an unchanged table keeps its address and values", async () => {
+    const { port, s } = table();
+    const block = await port.readGrownBlock(s, "B2:C5");
+    expect(block.address).toBe("B2:C5");
+    expect(block.values).toEqual([["x", "y"], [1, "a"], [2, "b"], [3, "a"]]);
+  });
+
+  test("rows entered directly below are taken in, up to the first blank row", async () => {
+    const { port, s, wb } = table();
+    wb.setValues(s, 6, 2, [[4, "b"], [5, null]]);
+    const block = await port.readGrownBlock(s, "B2:C5");
+    expect(block.address).toBe("B2:C7");
+    expect(block.values.slice(4)).toEqual([[4, "b"], [5, null]]);
+  });
+
+  test("a row with only one filled cell in the table's columns still continues the table", async () => {
+    const { port, s, wb } = table();
+    wb.setCell(s, 6, 3, "b");
+    expect((await port.readGrownBlock(s, "B2:C5")).address).toBe("B2:C6");
+  });
+
+  test("cells beside the table's columns do not grow it", async () => {
+    const { port, s, wb } = table();
+    wb.setCell(s, 6, 4, 99);
+    expect((await port.readGrownBlock(s, "B2:C5")).address).toBe("B2:C5");
+  });
+
+  test("rows cleared at the bottom are dropped, and what lies below the new gap is not taken", async () => {
+    const { port, s, wb } = table();
+    wb.clearRect(s, { top: 5, left: 2, bottom: 5, right: 3 });
+    wb.setValues(s, 6, 2, [[9, "z"]]);
+    const block = await port.readGrownBlock(s, "B2:C5");
+    expect(block.address).toBe("B2:C4");
+    expect(block.values).toEqual([["x", "y"], [1, "a"], [2, "b"]]);
+  });
+
+  test("a blank row inside the chosen block stays part of it", async () => {
+    const { port, s, wb } = table();
+    wb.clearRect(s, { top: 4, left: 2, bottom: 4, right: 3 });
+    wb.setValues(s, 6, 2, [[4, "b"]]);
+    const block = await port.readGrownBlock(s, "B2:C5");
+    expect(block.address).toBe("B2:C6");
+    expect(block.values[2]).toEqual([null, null]);
+  });
+
+  test("an emptied table keeps its header row only", async () => {
+    const { port, s, wb } = table();
+    wb.clearRect(s, { top: 2, left: 2, bottom: 5, right: 3 });
+    expect((await port.readGrownBlock(s, "B2:C5")).address).toBe("B2:C2");
+  });
+});

@@ -11,6 +11,10 @@ import { loadDemo } from "../../../src/preview/demo";
 import { PaneController } from "../../../src/taskpane/paneController";
 import { InlineFitRunner } from "../../../src/taskpane/fitRunner";
 import { nearBoundaryRows } from "../../../src/engine/boundary";
+import { scoreRows, trainModel } from "../../../src/engine/model";
+import type { CellValue } from "../../../src/engine/types";
+import { readModelOptions } from "../../../src/functions/modelCell";
+import { DEMO_SHEETS } from "../../../src/preview/demo";
 
 /**
  * Agreement with statsmodels: both fits converge to |relative change| < 1e-10 on the deviance, so
@@ -26,6 +30,13 @@ async function setUp() {
   const controller = new PaneController({ port, runner: "inline", refreshDelayMs: 0 });
   await controller.useSelection();
   return { workbook, sheet, port, controller };
+}
+
+/** The engine's borderline rows of the demo layout (label G, predictors C:F), 0.5 threshold, 0.1 band. */
+function engineReview(values: CellValue[][]) {
+  const options = readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]);
+  const model = trainModel(values.map((r) => [r[6]]), values.map((r) => r.slice(2, 6)), options.model);
+  return nearBoundaryRows(scoreRows(model, null, { threshold: 0.5 }).prediction, { threshold: 0.5, band: 0.1, undecided: true, limit: 200 });
 }
 
 /** Wait until the controller reports a settled status after a refresh. */
@@ -171,6 +182,61 @@ describe("pane fit and borderline review", () => {
     const newFormulaValue = workbook.value("Oddsmith results", firstRow, 1) as number;
     expect(newFormulaValue).toBeGreaterThan(oldFormulaValue + 0.2);
     expect(newFormulaValue).toBeCloseTo(controller.outcome!.scores.prediction.probabilities[1][firstRow - 2], 12);
+  });
+
+  test("rows appended directly below the table are taken in: new extent, refit, list and rewritten formulas", async () => {
+    const { controller, workbook } = await setUp();
+    await controller.fit();
+    // Two new crates typed under the table (rows 242 and 243).
+    const added: CellValue[][] = [
+      ["C-241", "Hilltop", 30, 55, 14.5, 1, "yes", "market"],
+      ["C-242", "River bend", 20, 52, 14.0, 3, "no", "juice"],
+    ];
+    workbook.setValues("Crates", 242, 1, added);
+    await new Promise((r) => setTimeout(r, 10));
+    await settle(controller);
+    expect(controller.data!.block.address).toBe("A1:H243");
+    expect(controller.data!.table.rows).toBe(242);
+    expect(controller.outcome!.model.fit.rowsUsed).toBe(242);
+    // The list and counts are the engine's on the grown data.
+    const values = [...DEMO_SHEETS[0].values, ...added];
+    const expected = engineReview(values);
+    expect(controller.review!.review.total).toBe(expected.total);
+    expect(controller.review!.review.withinBand).toBe(expected.withinBand);
+    expect(controller.review!.lines.map((l) => l.dataRow)).toEqual(expected.rows.map((r) => r.row));
+    // The formulas were rewritten over the grown ranges and show the new rows' probabilities.
+    expect(workbook.input("Oddsmith results", 1, 1)).toBe(
+      '=ODDS.PROB(Crates!$G$1:$G$243, Crates!$C$1:$F$243, , "penalty=0; level=0.95; threshold=0.5")',
+    );
+    const p = controller.outcome!.scores.prediction.probabilities[1];
+    expect(workbook.value("Oddsmith results", 243, 1)).toBe(p[241]);
+  });
+
+  test("rows deleted from the bottom of the table leave it: smaller extent, refit and shorter formulas", async () => {
+    const { controller, workbook } = await setUp();
+    await controller.fit();
+    workbook.clearRect("Crates", { top: 240, left: 1, bottom: 241, right: 8 });
+    await new Promise((r) => setTimeout(r, 10));
+    await settle(controller);
+    expect(controller.data!.block.address).toBe("A1:H239");
+    expect(controller.outcome!.model.fit.rowsUsed).toBe(238);
+    const expected = engineReview(DEMO_SHEETS[0].values.slice(0, 239));
+    expect(controller.review!.review.total).toBe(expected.total);
+    expect(controller.review!.lines.map((l) => l.dataRow)).toEqual(expected.rows.map((r) => r.row));
+    expect(workbook.input("Oddsmith results", 1, 1)).toContain("Crates!$G$1:$G$239, Crates!$C$1:$F$239");
+    expect(workbook.value("Oddsmith results", 239, 1)).toBe(controller.outcome!.scores.prediction.probabilities[1][237]);
+    expect(workbook.value("Oddsmith results", 240, 1)).toBeNull();
+  });
+
+  test("an edit inside the table keeps the formulas as written (no rewrite)", async () => {
+    const { controller, workbook, port } = await setUp();
+    await controller.fit();
+    const writes = jest.spyOn(port, "write");
+    workbook.setCell("Crates", 5, 4, 40);
+    await new Promise((r) => setTimeout(r, 10));
+    await settle(controller);
+    expect(controller.data!.block.address).toBe("A1:H241");
+    expect(writes).not.toHaveBeenCalled();
   });
 
   test("a cancelled fit writes nothing and says so", async () => {
