@@ -6,6 +6,10 @@
  * No network, no dependencies: the page must work offline.
  */
 /* eslint-env node */
+// The page carries the same Content-Security-Policy meta as the pane and workbench pages (and as the
+// development server's header): no inline style or script at all. Its look comes from the add-in's
+// own style sheet, taskpane.css (the `.osm-help` rules), which the build copies beside help.html.
+const { CONTENT_SECURITY_POLICY } = require("./static-server.cjs");
 
 function escapeHtml(text) {
   return text.replace(/&/g, "&amp;").replace(/</g, "&lt;").replace(/>/g, "&gt;").replace(/"/g, "&quot;");
@@ -85,12 +89,11 @@ function renderHelpPage(markdown) {
   return [
     "<!doctype html>",
     '<html lang="en"><head><meta charset="utf-8">',
+    `<meta http-equiv="Content-Security-Policy" content="${escapeHtml(CONTENT_SECURITY_POLICY)}">`,
     `<title>${escapeHtml(title)}</title>`,
-    "<style>body{font:15px/1.5 system-ui,sans-serif;max-width:52em;margin:1em auto;padding:0 1em;color:#1d2a33}" +
-      "code,pre{font-family:ui-monospace,monospace;background:#eef3f1}pre{padding:.6em;overflow:auto}" +
-      "table{border-collapse:collapse}td,th{border:1px solid #b9c7c2;padding:.2em .5em;text-align:left}" +
-      "h2{border-top:2px solid #2e7d6b;padding-top:.4em}</style>",
-    "</head><body>",
+    '<link rel="icon" href="assets/icon-32.png">',
+    '<link rel="stylesheet" href="taskpane.css">',
+    '</head><body class="osm-help">',
     ...out,
     "</body></html>",
     "",

@@ -21,7 +21,13 @@ function files(dir: string): string[] {
 
 /** True when every output exists and is newer than every input. */
 export function buildIsCurrent(): boolean {
-  const inputs = [...files(path.join(ROOT, "src")), path.join(ROOT, "webpack.config.js")];
+  // The help page is rendered at build time from docs/functions.md by scripts/help-page.js.
+  const inputs = [
+    ...files(path.join(ROOT, "src")),
+    path.join(ROOT, "webpack.config.js"),
+    path.join(ROOT, "scripts", "help-page.js"),
+    path.join(ROOT, "docs", "functions.md"),
+  ];
   const newest = Math.max(...inputs.map((f) => fs.statSync(f).mtimeMs));
   return OUTPUTS.map((f) => path.join(DIST, f)).every((f) => fs.existsSync(f) && fs.statSync(f).mtimeMs >= newest);
 }

@@ -56,3 +56,24 @@ test("outside Office the task pane page explains where to open it, and nothing l
   for (const v of violations) expect(v).toMatch(/telemetry|inline style/i);
   await page.close();
 });
+
+test("the help page is styled by our style sheet under the same strict policy, with no policy violation", async () => {
+  const page = await context.newPage();
+  const violations: string[] = [];
+  page.on("console", (m) => {
+    if (m.type() === "error") violations.push(m.text());
+  });
+  const response = await page.goto(`${base}/help.html`);
+  const header = response!.headers()["content-security-policy"];
+  const meta = await page.getAttribute('meta[http-equiv="Content-Security-Policy"]', "content");
+  // The page's meta and the server's header are one policy, and it allows no inline style.
+  expect(meta).toBe(header);
+  expect(header).toMatch(/(^|; )style-src 'self'(;|$)/);
+  expect(await page.$$eval("style, [style]", (els) => els.length)).toBe(0);
+  // The .osm-help rules of taskpane.css applied: a 52em (15px font) column, centred.
+  const look = await page.$eval("body", (b) => ({ maxWidth: getComputedStyle(b).maxWidth, fontSize: getComputedStyle(b).fontSize }));
+  expect(look).toEqual({ maxWidth: `${52 * 15}px`, fontSize: "15px" });
+  expect(await page.$$eval("h2[id]", (hs) => hs.length)).toBeGreaterThan(5);
+  expect(violations).toEqual([]);
+  await page.close();
+});

@@ -174,6 +174,36 @@ describe("preview workbench", () => {
     await page.close();
   });
 
+  test("a row typed directly below the table joins it: refit, list, counts and formulas follow", async () => {
+    const page = await openWorkbench();
+    await fitDemo(page);
+    const values = DEMO_SHEETS[0].values;
+    // A new crate with the measurements of the closest call so far: it lands in the list itself.
+    const closest = engineBorderline(values).rows[0].row + 1;
+    const added: CellValue[] = ["C-241", ...values[closest].slice(1, 7)];
+    for (const [k, v] of added.entries()) {
+      await page.click(`.ledger-table td[data-row="242"][data-col="${k + 1}"]`);
+      await page.fill("#entry", String(v));
+      await page.press("#entry", "Enter");
+    }
+    await page.waitForFunction(() => /^Fitted on 241 rows/.test(document.querySelector("#osm-status")?.textContent ?? ""), null, {
+      timeout: FIT_WAIT_MS,
+    });
+    const expected = engineBorderline([...values, added]);
+    expect(expected.rows.map((r) => r.row)).toContain(240); // data row 240 = sheet row 242
+    expect((await listedRows(page)).map((l) => l.row)).toEqual(expected.rows.map((r) => r.row + 2));
+    const summary = await page.textContent("#osm-review-summary");
+    expect(summary).toContain(`${expected.withinBand} rows lie within 0.10 of the threshold 0.50.`);
+    expect(summary).toContain("241 rows scored.");
+    // The formulas were rewritten over the grown table: their spill reaches the new row.
+    await page.click('.ledger-tab[data-sheet="Oddsmith results"]');
+    const options = readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]);
+    const grown = [...values, added];
+    const p = scoreRows(trainModel(grown.map((r) => [r[6]]), grown.map((r) => r.slice(2, 6)), options.model), null).prediction.probabilities[1][240];
+    expect(Number(await page.textContent('.ledger-table td[data-row="242"][data-col="1"]'))).toBeCloseTo(p, 5);
+    await page.close();
+  });
+
   test("the boundary plot draws every row, the borderline rings and the boundary line", async () => {
     const page = await openWorkbench();
     await fitDemo(page);
