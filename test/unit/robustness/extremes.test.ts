@@ -7,7 +7,7 @@
  * Nelder, Generalized Linear Models, 2nd ed., 1989, §4.4.2; multinomial: Agresti, Categorical Data
  * Analysis, 3rd ed., 2013, §8.1.4), and against exact invariances of that estimate.
  */
-import { MAX_PARAMETERS, scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../../../src/engine/model";
+import { MAX_PARAMETERS, PROFILE_BUDGET, scoreRows, trainModel, type ModelOptions, type TrainedModel } from "../../../src/engine/model";
 import { brierScore, calibrationSlope, logLoss, rocAuc } from "../../../src/engine/metrics";
 import { DEFAULT_LOG_CLIP } from "../../../src/engine/numerics";
 import { ALIAS_TOLERANCE } from "../../../src/engine/binary";
@@ -507,6 +507,21 @@ describe("numeric extremes: models too large to fit in reasonable time", () => {
       expect.objectContaining({ code: "TOO_MANY_PARAMETERS", message: expect.stringContaining("49 class equations of 21 terms each") }),
     );
     expect(performance.now() - start).toBeLessThan(2000);
+  });
+
+  test(`profile intervals beyond rows x terms^3 = ${PROFILE_BUDGET} fall back to Wald intervals with PROFILE_NOT_AVAILABLE (2,000 rows x 100 terms: not 38 s)`, () => {
+    let state = 9;
+    const u = () => (state = (Math.imul(state, 1664525) + 1013904223) >>> 0) / 4294967296;
+    const names = Array.from({ length: 99 }, (_, j) => `x${j}`);
+    const rows = Array.from({ length: 2000 }, (): CellValue[] => names.map(() => u()));
+    const y = rows.map((r) => (u() < 1 / (1 + Math.exp(-((r[0] as number) - (r[1] as number)))) ? 1 : 0));
+    const start = performance.now();
+    const m = train(y, [names, ...rows], { intervalMethod: "profile" });
+    expect(performance.now() - start).toBeLessThan(10000);
+    expect(codes(m)).toEqual(["PROFILE_NOT_AVAILABLE"]);
+    expect(m.fit.intervalMethod).toBe("wald");
+    // Small models keep their profile intervals.
+    expect(train(Y10, col("x", X10), { intervalMethod: "profile" }).fit.intervalMethod).toBe("profile");
   });
 
   test(`exactly ${MAX_PARAMETERS} coefficients are fitted; one more is refused`, () => {
