@@ -2,7 +2,7 @@
  * Fit runners: which one is chosen, cancel semantics, and the worker message protocol (driven with a
  * stand-in Worker class here; the real worker runs in the browser tests).
  */
-import { readModelOptions } from "../../../src/functions/modelCell";
+import { fittedModel, readModelOptions } from "../../../src/functions/modelCell";
 import {
   chooseRunner,
   FitCancelled,
@@ -14,6 +14,12 @@ import {
   type WorkerReply,
   type WorkerRequest,
 } from "../../../src/taskpane/fitRunner";
+
+/**
+ * Time allowed for the payload-limit test: hashing 6 million characters for the cache key takes about
+ * 5 s under jest's module sandbox (0.1 s in plain Node) and the fit about 1 s; the machine is shared.
+ */
+const LARGE_INPUT_TIMEOUT_MS = 60_000;
 
 function job(rows = 20): FitJob {
   const labels = [["y"], ...Array.from({ length: rows }, (_, i) => [i % 3 === 0 ? "a" : "b"])];
@@ -69,6 +75,21 @@ describe("inline runner", () => {
     expect(out.scores.rows).toBe(20);
     expect(out.runner).toBe("inline");
   });
+
+  test("the pane fits tables beyond a cell call's payload limit (it reads them in chunks itself)", async () => {
+    // 60,000 labels of 100 characters: about 6.2 MB as a call's JSON, above the 5 MB a formula may carry.
+    const rows = 60_000;
+    const names = ["a".repeat(100), "b".repeat(100)];
+    const big: FitJob = {
+      labels: [["y"], ...Array.from({ length: rows }, (_, i) => [names[(i * 7) % 11 < 5 ? 0 : 1]])],
+      predictors: [["x"], ...Array.from({ length: rows }, (_, i) => [((i * 7) % 11) + (i % 3)])],
+      options: readModelOptions("test", null),
+      threshold: 0.5,
+    };
+    expect(() => fittedModel(big.labels, big.predictors, big.options, 0)).toThrow(expect.objectContaining({ code: "RANGE_TOO_LARGE" }));
+    const out = await new InlineFitRunner().run(big, () => undefined, new AbortController().signal);
+    expect(out.model.fit.rowsUsed).toBe(rows);
+  }, LARGE_INPUT_TIMEOUT_MS);
 
   test("a run cancelled before it starts fitting rejects with FitCancelled", async () => {
     const abort = new AbortController();
