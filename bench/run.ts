@@ -955,7 +955,7 @@ function renderMarkdown(r: RunRecord, history: RunRecord[], notes: string): stri
       const cellOf = (prefix: string) => {
         const t = tv(prefix);
         if (!t) return "-";
-        const m = /ratio ([0-9.]+)|overhead ([0-9.]+%)|scoring \+ selection ([0-9.]+ [a-z]+)/.exec(t.measured);
+        const m = /ratio ([0-9.]+)|overhead (-?[0-9.]+%)|^selection ([0-9.]+ m?s)/.exec(t.measured);
         return `${m ? (m[1] ?? m[2] ?? m[3]) : t.status} (${t.status})`;
       };
       L.push(
