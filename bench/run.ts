@@ -315,6 +315,8 @@ interface OursResult extends Timing {
   iterations?: number;
   converged?: boolean;
   diagnostics?: string[];
+  /** Rows that entered our fit (must equal the data set's rows for a like-for-like comparison). */
+  rowsUsed?: number;
 }
 
 interface CaseResult {
@@ -373,6 +375,7 @@ function runOurs(fit: () => ModelFit, p: RunPolicy): OursResult {
       iterations: f.iterations,
       converged: f.converged,
       diagnostics: f.diagnostics.map((d) => `${d.severity}:${d.code}`),
+      rowsUsed: f.rowsUsed,
     };
   } catch (e) {
     return missing(`threw: ${(e as Error).message.split("\n")[0]}`);
@@ -860,6 +863,7 @@ function caseTable(c: CaseResult): string[] {
   const warned = c.peers.filter((p) => p.ok && p.warnings && p.warnings.length > 0);
   for (const p of warned) lines.push("", `${p.label} warned: ${p.warnings!.map((w) => `"${w}"`).join("; ")}`);
   if (c.ours.ok && c.ours.diagnostics && c.ours.diagnostics.length) lines.push("", `Oddsmith diagnostics: ${c.ours.diagnostics.join(", ")}`);
+  if (c.ours.ok && c.ours.rowsUsed !== undefined && c.ours.rowsUsed !== c.rows) lines.push("", `WARNING: our fit used ${c.ours.rowsUsed} of ${c.rows} rows, so this is not a like-for-like comparison.`);
   if (c.skipped && c.skipped.length) lines.push("", `Left out of this case to bound the run time: ${c.skipped.join(", ")} (timed at the smaller sizes).`);
   lines.push("");
   return lines;
