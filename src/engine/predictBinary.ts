@@ -10,6 +10,7 @@
  * predicted = -1 for that row; other rows are unaffected.
  */
 
+import { checkScoringDesign } from "./checkScoringDesign";
 import { criticalZ } from "./distributions";
 import { cholesky, subMatrix } from "./linalg";
 import { problem } from "./messages";
@@ -54,19 +55,7 @@ export function predictBinary(fit: ModelFit, X: DesignMatrix, options: PredictBi
     throw problem("BAD_OPTION_VALUE", { name: "level", value: level, expected: "Use a number between 0 and 1, such as 0.95." });
   }
   const off0 = fit.intercept ? 1 : 0;
-  const predictors = fit.terms.slice(off0);
-  if (X.columns.length !== predictors.length) {
-    throw problem("COLUMN_COUNT_MISMATCH", {
-      argument: "predictors",
-      got: X.columns.length,
-      expected: predictors.length,
-      columns: predictors.join(", "),
-    });
-  }
-  const n = X.rows;
-  for (const col of X.columns) {
-    if (col.length !== n) throw problem("RANGE_SHAPE_MISMATCH", { argument: "predictor column", got: col.length, expectedArgument: "the rows", expected: n });
-  }
+  const n = checkScoringDesign(fit, X);
   const offset = options.offset ?? null;
   if (offset && offset.length !== n) {
     throw problem("RANGE_SHAPE_MISMATCH", { argument: "offset", got: offset.length, expectedArgument: "predictors", expected: n });

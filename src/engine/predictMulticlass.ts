@@ -10,6 +10,7 @@
  * Reference: A. Agresti, Categorical Data Analysis, 3rd ed. (2013), §8.1 (baseline-category logits).
  */
 
+import { checkScoringDesign } from "./checkScoringDesign";
 import { problem } from "./messages";
 import type { DesignMatrix, ModelFit, Prediction } from "./types";
 
@@ -32,21 +33,7 @@ export function predictMulticlass(fit: ModelFit, X: DesignMatrix): Prediction {
     throw problem("BAD_OPTION_VALUE", { name: "model", value: fit.kind, expected: "predictMulticlass needs a multi-class model." });
   }
   const off0 = fit.intercept ? 1 : 0;
-  const predictors = fit.terms.slice(off0);
-  if (X.columns.length !== predictors.length) {
-    throw problem("COLUMN_COUNT_MISMATCH", {
-      argument: "predictors",
-      got: X.columns.length,
-      expected: predictors.length,
-      columns: predictors.join(", "),
-    });
-  }
-  const n = X.rows;
-  for (const col of X.columns) {
-    if (col.length !== n) {
-      throw problem("RANGE_SHAPE_MISMATCH", { argument: "predictor column", got: col.length, expectedArgument: "the rows", expected: n });
-    }
-  }
+  const n = checkScoringDesign(fit, X);
   const K = fit.classes.length;
   const p = fit.terms.length;
   // Linear predictors per class, columnar; classes without an equation (reference) stay at 0.

@@ -2,16 +2,8 @@ import { compareText, readLabels, matchClass } from "../../../src/engine/labels"
 import { OddsmithError } from "../../../src/engine/messages";
 import { readTable } from "../../../src/engine/table";
 import type { CellValue } from "../../../src/engine/types";
+import { caught } from "../../support/caught";
 
-function caught(fn: () => unknown): OddsmithError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof OddsmithError) return e;
-    throw e;
-  }
-  throw new Error("expected an OddsmithError, nothing was thrown");
-}
 
 const column = (values: CellValue[]) =>
   readTable(

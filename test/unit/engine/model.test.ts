@@ -3,6 +3,7 @@ import { fitBinaryModel } from "../../../src/engine/binary";
 import { trainModel, scoreRows, GROUPED_CLASSES } from "../../../src/engine/model";
 import { OddsmithError } from "../../../src/engine/messages";
 import type { CellValue, DesignMatrix } from "../../../src/engine/types";
+import { caught } from "../../support/caught";
 
 /**
  * Agreement with R's glm: both iterate Newton/IRLS to full convergence (R: glm.control(epsilon =
@@ -17,15 +18,6 @@ const GLM_REL_TOL = 1e-9;
  */
 const MULTINOM_REL_TOL = 1e-5;
 
-function caught(fn: () => unknown): OddsmithError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof OddsmithError) return e;
-    throw e;
-  }
-  throw new Error("expected an OddsmithError, nothing was thrown");
-}
 
 function expectClose(got: ArrayLike<number>, want: ArrayLike<number>, rel: number, what: string) {
   expect([what, got.length]).toEqual([what, want.length]);

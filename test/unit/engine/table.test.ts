@@ -1,17 +1,7 @@
-import { OddsmithError } from "../../../src/engine/messages";
 import { detectHeader, parseNumericText, readTable, type NumericColumn, type TextColumn } from "../../../src/engine/table";
 import type { CellValue } from "../../../src/engine/types";
+import { caught } from "../../support/caught";
 
-/** Run `fn`, expect an OddsmithError, and return it so its code and message can be asserted. */
-function caught(fn: () => unknown): OddsmithError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof OddsmithError) return e;
-    throw e;
-  }
-  throw new Error("expected an OddsmithError, nothing was thrown");
-}
 
 const read = (cells: CellValue[][], headers: "auto" | "yes" | "no" = "auto") =>
   readTable(cells, { argument: "predictors", headers });

@@ -1,4 +1,3 @@
-import { OddsmithError } from "../../../src/engine/messages";
 import {
   describeOptions,
   expectedText,
@@ -13,16 +12,8 @@ import {
   parseBaselines,
   parseOptions,
 } from "../../../src/functions/options";
+import { caught } from "../../support/caught";
 
-function caught(fn: () => unknown): OddsmithError {
-  try {
-    fn();
-  } catch (e) {
-    if (e instanceof OddsmithError) return e;
-    throw e;
-  }
-  throw new Error("expected an OddsmithError, nothing was thrown");
-}
 
 const SCHEMA = [OPT_PENALTY, OPT_LEVEL, OPT_FIRTH, OPT_INTERVAL, OPT_BASELINE, OPT_POOL] as const;
 const parse = (raw: unknown) => parseOptions("ODDS.FIT", SCHEMA, raw);
