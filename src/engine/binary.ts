@@ -54,7 +54,7 @@ import {
 } from "./inference";
 import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, weightedCrossProduct } from "./linalg";
 import { newtonLogistic, type NewtonProblem, type NewtonResult } from "./logisticNewton";
-import { formatMessage, listNames, problem, type MessageCode } from "./messages";
+import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
 import { firthProfileIntervals, PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
 import { separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
@@ -95,7 +95,7 @@ function badOption(name: string, value: unknown, expected: string): never {
 }
 
 function diag(code: MessageCode, severity: Severity, params: Record<string, unknown>, extra: Partial<Diagnostic> = {}): Diagnostic {
-  return { code, severity, message: formatMessage(code, params), ...extra };
+  return { code, severity, message: formatMessage(code, params), params, ...extra };
 }
 
 /** Validate shapes and values; throw problem(...) for invalid input; compact the usable rows. */
@@ -464,7 +464,7 @@ export function fitBinaryModel(
   if (separation) {
     const colNames = separation.columns.map((t) => terms[kept[t]]);
     const rows = rowsToCaller(separation.rows);
-    const example = rows.slice(0, 5).map((r) => r + 1).join(", ");
+    const example = exampleRows(rows);
     if (!penalized && !opt.biasReduction) {
       const code: MessageCode = separation.complete ? "SEPARATION_COMPLETE" : "SEPARATION_QUASI";
       diagnostics.push(

@@ -381,6 +381,36 @@ export const MESSAGES = {
     template:
       "The cells {address} on sheet \"{sheet}\" are not empty. Choose another place or a new sheet, or confirm that they may be overwritten.",
   },
+  BASIS_FOLLOWED_ROWS: {
+    cellError: "#N/A",
+    title: "Basis formula follows the table",
+    template:
+      "The table now has {rows} data rows, so the basis formula at {sheet}!{anchor} was rewritten over {source}: its knots, centres, levels and scales are refitted on all {rows} rows, and the fit uses the new rows.",
+  },
+  BASIS_VALUES_NOT_REFRESHED: {
+    cellError: "#N/A",
+    title: "Basis values not refreshed",
+    template:
+      "The basis columns at {sheet}!{address} hold values, not a live formula, so they were not refreshed after {change}. Rows without basis values are skipped from the fit and edited rows keep their old basis values. Remove the generated columns and add them again, or add them as a live formula.",
+  },
+  BASIS_FOLLOW_BLOCKED: {
+    cellError: "#N/A",
+    title: "Basis formula not extended: cells in the way",
+    template:
+      "The basis formula at {sheet}!{anchor} was not extended to the table's new rows, because the cells {address} it would fill are not empty; the new rows have no basis values and are skipped from the fit. Clear or move those cells, then edit the table again (or remove the generated columns and add them again).",
+  },
+  BASIS_FOLLOW_LOST: {
+    cellError: "#N/A",
+    title: "Generated basis columns changed",
+    template:
+      "The basis columns written at {sheet}!{address} were changed or removed (their header row no longer reads {names}), so they were not rewritten for the table's new rows. Add them again from the basis section if you still need them.",
+  },
+  BASIS_FOLLOW_FAILED: {
+    cellError: "#N/A",
+    title: "Basis formula not extended: recipe fails on the new rows",
+    template:
+      "The basis formula at {sheet}!{anchor} was kept over its old rows, because its recipe cannot be computed over the table's new rows: {reason}",
+  },
   // ---- metrics (#VALUE!) -----------------------------------------------------------------------
   BAD_PROBABILITY: {
     cellError: "#VALUE!",
@@ -517,4 +547,17 @@ export function listNames(names: readonly string[], max = 5): string {
   if (quoted.length <= 1) return quoted.join("");
   if (quoted.length > max) return `${quoted.slice(0, max).join(", ")} and ${quoted.length - max} more`;
   return `${quoted.slice(0, -1).join(", ")} and ${quoted[quoted.length - 1]}`;
+}
+
+/** How many rows a message names as examples ("for example rows 3, 4, 7, 9, 12, ..."). */
+export const EXAMPLE_ROWS = 5;
+
+/**
+ * The example rows of a message: the first EXAMPLE_ROWS of `rows`, each shown as `show(row)` (by
+ * default 0-based index + 1), with ", ..." when there are more.
+ * @example exampleRows([0, 1, 4]) // "1, 2, 5"
+ */
+export function exampleRows(rows: readonly number[], show: (row: number) => number = (r) => r + 1): string {
+  const shown = rows.slice(0, EXAMPLE_ROWS).map(show).join(", ");
+  return rows.length > EXAMPLE_ROWS ? `${shown}, ...` : shown;
 }

@@ -34,7 +34,7 @@
 import { fitBinaryModel } from "./binary";
 import { buildDesign, encodeRows, skippedDetail, type DesignEncoding, type EncodedRows, type RowProblem, type SkippedRows } from "./design";
 import { readLabels, type LabelInfo } from "./labels";
-import { formatMessage, listNames, problem } from "./messages";
+import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { fitMulticlassModel } from "./multiclass";
 import { predictMulticlass } from "./predictMulticlass";
 import { predictBinary } from "./predictBinary";
@@ -427,17 +427,14 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     };
   }
 
-  // Diagnostic rows from the fitter index design rows: map them back to the caller's data rows,
-  // and the 1-based example rows in its message (e.g. "rows 1, 2, 5") to rows of the user's range.
+  // Diagnostic rows from the fitter index design rows: map them back to the caller's data rows, and
+  // format the message again with the example rows numbered as in the user's range.
   for (const d of fit.diagnostics) {
     if (!d.rows || d.rows.length === 0) continue;
-    const fitted = d.rows;
-    d.rows = fitted.map((r) => (r >= 0 && r < inputRows.length ? inputRows[r] : r));
-    const example = fitted.slice(0, 5).map((r) => r + 1).join(", ");
-    const shown = (d.rows as number[]).slice(0, 5).map((r) => rangeRow(predTable, r)).join(", ");
-    const at = d.message.indexOf(`rows ${example}`);
-    if (at >= 0 && d.message.indexOf(`rows ${example}`, at + 1) < 0) {
-      d.message = d.message.slice(0, at) + `rows ${shown}` + d.message.slice(at + 5 + example.length);
+    d.rows = d.rows.map((r) => (r >= 0 && r < inputRows.length ? inputRows[r] : r));
+    if (d.params && "rows" in d.params) {
+      d.params = { ...d.params, rows: exampleRows(d.rows, (r) => rangeRow(predTable, r)) };
+      d.message = formatMessage(d.code as MessageCode, d.params);
     }
   }
   const added: Diagnostic[] = [...readNotes, ...built.notes];

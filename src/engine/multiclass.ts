@@ -65,7 +65,7 @@ import {
   RANK_TOLERANCE,
   weightedCrossProduct,
 } from "./linalg";
-import { formatMessage, listNames, problem } from "./messages";
+import { exampleRows, formatMessage, listNames, problem } from "./messages";
 import type { Diagnostic, DesignMatrix, ModelFit, MulticlassFitOptions } from "./types";
 
 /** Defaults of {@link fitMulticlassModel}. */
@@ -96,8 +96,6 @@ const MIN_DIVERGING_MARGIN = 0.1;
 const MARGIN_SHARE = 1e-3;
 /** A column belongs to the separating direction when its standardized component exceeds this share of the largest. */
 const DIRECTION_COLUMN_SHARE = 1e-2;
-/** Rows listed by number in a message (all rows are in the diagnostic's `rows`). */
-const ROWS_IN_MESSAGE = 5;
 
 /** Data prepared for the Newton loop: used rows only, internal (centred, scaled) kept columns. */
 interface Prepared {
@@ -1214,16 +1212,17 @@ function findSeparation(
     if (terms[prep.termOfColumn[j]] === INTERCEPT_TERM) continue;
     if (comp[j] >= DIRECTION_COLUMN_SHARE * maxComp && comp[j] > 0) columns.push(terms[prep.termOfColumn[j]]);
   }
-  const shown = namedRows.slice(0, ROWS_IN_MESSAGE).map((r) => r + 1).join(", ");
+  const params = {
+    separated: joinParts(parts),
+    columns: columns.length > 0 ? listNames(columns) : "the intercept alone",
+    count: namedRows.length,
+    rows: exampleRows(namedRows),
+  };
   return {
     code: "CLASSES_SEPARATED",
     severity: "error",
-    message: formatMessage("CLASSES_SEPARATED", {
-      separated: joinParts(parts),
-      columns: columns.length > 0 ? listNames(columns) : "the intercept alone",
-      count: namedRows.length,
-      rows: namedRows.length > ROWS_IN_MESSAGE ? `${shown}, ...` : shown,
-    }),
+    message: formatMessage("CLASSES_SEPARATED", params),
+    params,
     columns,
     rows: namedRows,
   };

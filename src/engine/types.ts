@@ -39,6 +39,11 @@ export interface Diagnostic {
   columns?: string[];
   /** 0-based row indices (into the caller's rows) involved, when the finding is about rows. */
   rows?: number[];
+  /**
+   * The values the message was formatted with, so a caller that maps `rows` to the user's own row
+   * numbers can format the message again (see exampleRows in messages.ts).
+   */
+  params?: Record<string, unknown>;
 }
 
 /** Options shared by binary and multi-class fits. Every field is optional; defaults are in brackets. */

@@ -1,4 +1,4 @@
-import { formatMessage, listNames, MESSAGES, OddsmithError, problem } from "../../../src/engine/messages";
+import { exampleRows, formatMessage, listNames, MESSAGES, OddsmithError, problem } from "../../../src/engine/messages";
 
 describe("message catalogue", () => {
   test("fills every placeholder it is given and marks missing ones with ?", () => {
@@ -27,5 +27,11 @@ describe("message catalogue", () => {
     expect(listNames(["a"])).toBe('"a"');
     expect(listNames(["a", "b", "c"])).toBe('"a", "b" and "c"');
     expect(listNames(["a", "b", "c", "d"], 2)).toBe('"a", "b" and 2 more');
+  });
+
+  test("exampleRows names at most five rows, 1-based by default, and marks that more exist", () => {
+    expect(exampleRows([0, 1, 4])).toBe("1, 2, 5");
+    expect(exampleRows([0, 1, 2, 3, 4, 5])).toBe("1, 2, 3, 4, 5, ...");
+    expect(exampleRows([10, 11], (r) => r + 2)).toBe("12, 13");
   });
 });
