@@ -14,15 +14,23 @@
  * - Values mode writes what ODDS.BASIS would return (the same adapter computes both).
  * - Warning rule: fewer than 10 data rows per generated column (MIN_ROWS_PER_COLUMN).
  * - Undo = clear the written rectangle; a sheet the builder added is named so the user can delete it.
+ * - Following the table (followTableRows): when the table's rows change, a generated formula is
+ *   rewritten over the table's new rows with the same recipe and no training range, so its knots,
+ *   centres, levels and scales are refitted on all rows (the "live" behaviour); cells the longer
+ *   result would newly cover must be empty, else nothing is written and a note says which cells.
+ *   Values are never rewritten: a note says they were not refreshed.
  */
 import { applyRecipe, fitRecipe, parseRecipe, TRANSFORM_NAMES, type RecipeState } from "../engine/basis/recipe";
 import type { BasisColumn } from "../engine/basis/common";
-import { formatMessage, OddsmithError, problem, type MessageCode } from "../engine/messages";
+import { formatMessage, listNames, OddsmithError, problem, type MessageCode } from "../engine/messages";
 import { readTable, type Table } from "../engine/table";
 import type { CellValue } from "../engine/types";
 import { basisCell, tableToBasisColumns } from "../functions/basisCell";
+import { sourcesOf } from "../engine/basis";
 import { absoluteReference, cellAddress, parseAddress, rectAddress, type CellRect } from "./a1";
+import type { DerivedColumns } from "./plotGeometry";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "./port";
+import { isBlankRow } from "./tableExtent";
 
 // ---- reading and summarising --------------------------------------------------------------------
 
@@ -275,6 +283,8 @@ export interface WritePlan {
   formula: string | null;
   names: string[];
   warnings: BuilderMessage[];
+  /** The recipe the plan was made for. */
+  recipe: string;
 }
 
 /** The undo of a write: clear what was written. */
@@ -299,15 +309,25 @@ export function formulaString(s: string): string {
   return pieces.map((p) => `"${p.replace(/"/g, '""')}"`).join("&");
 }
 
+/** The source's header and data rows as a sheet rectangle (trailing blank rows left out). */
+export function sourceRect(source: BasisSource): CellRect {
+  const bottom = source.rect.top + source.table.firstRow - 1 + source.table.rows - 1;
+  return { ...source.rect, bottom };
+}
+
 /** Absolute reference to the source's header and data rows (trailing blank rows left out). */
 export function sourceReference(source: BasisSource): string {
-  const bottom = source.rect.top + source.table.firstRow - 1 + source.table.rows - 1;
-  return absoluteReference(source.block.sheet, { ...source.rect, bottom });
+  return absoluteReference(source.block.sheet, sourceRect(source));
+}
+
+/** The =ODDS.BASIS formula over a sheet range (no training range: transforms fit on that range). */
+function formulaOver(sheet: string, rect: CellRect, recipe: string): string {
+  return `=ODDS.BASIS(${absoluteReference(sheet, rect)}, ${formulaString(recipe)})`;
 }
 
 /** The =ODDS.BASIS formula for a source and recipe. */
 export function basisFormula(source: BasisSource, recipe: string): string {
-  return `=ODDS.BASIS(${sourceReference(source)}, ${formulaString(recipe)})`;
+  return formulaOver(source.block.sheet, sourceRect(source), recipe);
 }
 
 /**
@@ -339,6 +359,7 @@ export function planWrite(source: BasisSource, recipe: string, options: WriteOpt
     formula,
     names: state.names,
     warnings,
+    recipe,
   };
 }
 
@@ -380,4 +401,194 @@ export async function executeWrite(port: WorkbookPort, plan: WritePlan, confirmO
 /** Undo a write: clear the generated columns (values, formulas and formats). */
 export async function undoWrite(port: WorkbookPort, undo: UndoPlan): Promise<void> {
   await port.clear(undo.sheet, undo.address);
+}
+
+// ---- following the table's rows -----------------------------------------------------------------
+
+/**
+ * Generated columns the pane wrote, remembered so they can follow the table when its rows change.
+ * `note` holds what the pane last had to say about them (refreshed, not refreshed and why).
+ */
+export interface GeneratedBasis {
+  /** Sheet and range (header row and data rows of the source columns) the columns are built from. */
+  sourceSheet: string;
+  source: CellRect;
+  /** Sheet and rectangle of the generated columns, header row included. */
+  sheet: string;
+  rect: CellRect;
+  recipe: string;
+  mode: "formula" | "values";
+  /** Generated column names (the block's header row). */
+  names: string[];
+  /** Headers of the source columns the recipe reads. */
+  uses: string[];
+  note: BuilderMessage | null;
+}
+
+/** The record of a write that went through, for {@link followTableRows}. */
+export function generatedBasis(source: BasisSource, plan: WritePlan, written: { sheet: string; address: string }): GeneratedBasis {
+  const rect = parseAddress(written.address);
+  if (!rect) throw problem("INTERNAL", { doing: `remembering the basis columns at "${written.address}"` });
+  return {
+    sourceSheet: source.block.sheet,
+    source: sourceRect(source),
+    sheet: written.sheet,
+    rect,
+    recipe: plan.recipe,
+    mode: plan.mode,
+    names: plan.names,
+    uses: recipeSources(plan.recipe, source.columns),
+    note: null,
+  };
+}
+
+/** Headers of the columns a recipe reads, in the order its steps name them. */
+function recipeSources(recipe: string, columns: BasisColumn[]): string[] {
+  const state = fitRecipe(parseRecipe(recipe), columns, "data");
+  return [...new Set(state.states.flatMap((s) => sourcesOf(s)))];
+}
+
+/**
+ * How generated columns are recomputed for the boundary plot: fitted on `training` (header row and
+ * rows of the source columns, as the formula reads them), applied to the rows asked for.
+ */
+export function basisDerived(recipe: string, training: CellValue[][]): DerivedColumns {
+  const columns = tableToBasisColumns(readTable(training, { argument: "data", headers: "yes" }));
+  return {
+    outputs: fitRecipe(parseRecipe(recipe), columns, "data").names,
+    sources: recipeSources(recipe, columns),
+    compute: (rows) => basisCell(rows, recipe, training),
+  };
+}
+
+/** Result of {@link followTableRows}; `basis` is the record as it stands afterwards. */
+export type BasisFollow =
+  | { status: "unchanged"; basis: GeneratedBasis }
+  | { status: "rewritten"; basis: GeneratedBasis; previous: GeneratedBasis; formula: string; training: CellValue[][] }
+  | { status: "values" | "blocked" | "lost" | "failed"; basis: GeneratedBasis };
+
+function note(code: MessageCode, params: Record<string, unknown>): BuilderMessage {
+  return { code, message: formatMessage(code, params) };
+}
+
+/** Cells of `next` outside `old` (below it and right of it), as at most two rectangles. */
+function newlyCovered(old: CellRect, next: CellRect): CellRect[] {
+  const out: CellRect[] = [];
+  if (next.bottom > old.bottom) out.push({ top: old.bottom + 1, bottom: next.bottom, left: next.left, right: next.right });
+  if (next.right > old.right) out.push({ top: next.top, bottom: Math.min(old.bottom, next.bottom), left: old.right + 1, right: next.right });
+  return out;
+}
+
+/** What changed, in words, for the values note. */
+function changeText(oldBottom: number, newBottom: number): string {
+  const d = newBottom - oldBottom;
+  if (d > 0) return `${d} row${d === 1 ? " was" : "s were"} added to the table (rows ${oldBottom + 1} to ${newBottom})`;
+  if (d < 0) return `${-d} row${d === -1 ? " was" : "s were"} removed from the bottom of the table`;
+  return "cells of their source columns were edited";
+}
+
+/**
+ * The source range's rows as the table now holds them: header row down to the last row where a source
+ * column is not blank (trailing blank rows are left out, as ODDS.BASIS leaves them out of its result,
+ * so the formula never reaches over rows it would spill blanks for). Taken from `table` (a fresh read
+ * of the table) when it holds the source columns, else read through the port.
+ */
+async function grownSource(port: WorkbookPort, basis: GeneratedBasis, table: SheetBlock): Promise<{ rect: CellRect; values: CellValue[][] }> {
+  const tableRect = parseAddress(table.address);
+  const inside =
+    tableRect !== null &&
+    table.sheet === basis.sourceSheet &&
+    tableRect.top <= basis.source.top &&
+    tableRect.left <= basis.source.left &&
+    tableRect.right >= basis.source.right;
+  let values: CellValue[][];
+  if (inside) {
+    values = table.values.slice(basis.source.top - tableRect.top).map((row) => row.slice(basis.source.left - tableRect.left, basis.source.right - tableRect.left + 1));
+  } else {
+    const bottom = Math.max(basis.source.bottom, tableRect?.bottom ?? basis.source.bottom);
+    values = (await port.readBlock(basis.sourceSheet, rectAddress({ ...basis.source, bottom }))).values;
+  }
+  let last = values.length - 1;
+  while (last > 0 && isBlankRow(values[last])) last--;
+  values = values.slice(0, Math.max(last + 1, 1));
+  return { rect: { ...basis.source, bottom: basis.source.top + values.length - 1 }, values };
+}
+
+/**
+ * Let generated columns follow the table after it was re-read (`table`: the fresh read, which holds
+ * the source columns in the usual case of columns written beside their table).
+ *
+ * The source range's new extent runs from its header row to the last row where a source column is
+ * not blank. When it is unchanged: status "unchanged". Otherwise, formula mode: rewrite the formula
+ * over the new extent with the same recipe. The formula has no training range, so the transforms are
+ * refitted on all rows, new ones included (docs/basis-recipes.md, "When the table grows"). Before
+ * writing: the block's header row must still show the generated names (else the user changed or
+ * removed it: "lost"); the recipe must compute on the new rows ("failed", with the reason); and every
+ * cell the result newly covers must be empty ("blocked", naming the cells). Nothing is written in
+ * those cases. Values mode: nothing is rewritten; status "values" with a note that says so.
+ */
+export async function followTableRows(port: WorkbookPort, basis: GeneratedBasis, table: SheetBlock): Promise<BasisFollow> {
+  const grown = await grownSource(port, basis, table);
+  if (grown.rect.bottom === basis.source.bottom) return { status: "unchanged", basis };
+  const anchor = cellAddress(basis.rect.top, basis.rect.left);
+  const where = { sheet: basis.sheet, anchor, address: rectAddress(basis.rect) };
+  if (basis.mode === "values") {
+    const n = note("BASIS_VALUES_NOT_REFRESHED", { ...where, change: changeText(basis.source.bottom, grown.rect.bottom) });
+    return { status: "values", basis: { ...basis, note: n } };
+  }
+  const head = await port.readBlock(basis.sheet, rectAddress({ ...basis.rect, bottom: basis.rect.top }));
+  const shown = (head.values[0] ?? []).map((v) => (v === null || v === undefined ? "" : String(v)));
+  if (shown.length !== basis.names.length || shown.some((v, j) => v !== basis.names[j])) {
+    return { status: "lost", basis: { ...basis, note: note("BASIS_FOLLOW_LOST", { ...where, names: listNames(basis.names, 3) }) } };
+  }
+  let result: (number | string)[][];
+  try {
+    // What the rewritten formula will return: its shape decides the cells it covers.
+    result = basisCell(grown.values, basis.recipe, null);
+  } catch (e) {
+    const reason = e instanceof OddsmithError ? e.message : formatMessage("INTERNAL", { doing: "computing the basis columns" });
+    return { status: "failed", basis: { ...basis, note: note("BASIS_FOLLOW_FAILED", { ...where, reason }) } };
+  }
+  const rect: CellRect = {
+    top: basis.rect.top,
+    left: basis.rect.left,
+    bottom: basis.rect.top + result.length - 1,
+    right: basis.rect.left + (result[0]?.length ?? 1) - 1,
+  };
+  for (const r of newlyCovered(basis.rect, rect)) {
+    if (!(await port.isEmpty(basis.sheet, rectAddress(r)))) {
+      return { status: "blocked", basis: { ...basis, note: note("BASIS_FOLLOW_BLOCKED", { ...where, address: rectAddress(r) }) } };
+    }
+  }
+  const formula = formulaOver(basis.sourceSheet, grown.rect, basis.recipe);
+  await port.write({ sheet: basis.sheet, at: anchor, values: [[formula]], formulas: true });
+  const rows = result.length - 1;
+  const n = note("BASIS_FOLLOWED_ROWS", { ...where, rows, source: absoluteReference(basis.sourceSheet, grown.rect) });
+  const next: GeneratedBasis = { ...basis, source: grown.rect, rect, names: result[0].map(String), note: n };
+  return { status: "rewritten", basis: next, previous: basis, formula, training: grown.values };
+}
+
+/**
+ * True when a cell of a column the recipe reads (`uses`, found by header) differs between two reads
+ * of the same table (same top-left corner), within the rows the generated columns were built from.
+ */
+export function sourceCellsChanged(basis: GeneratedBasis, before: SheetBlock, after: SheetBlock): boolean {
+  if (before.sheet !== basis.sourceSheet || before.top !== after.top || before.left !== after.left) return false;
+  const header = before.values[basis.source.top - before.top] ?? [];
+  const rows = Math.min(basis.source.bottom, before.top + before.values.length - 1, after.top + after.values.length - 1);
+  for (let c = basis.source.left; c <= basis.source.right; c++) {
+    const name = header[c - before.left];
+    if (name === null || name === undefined || !basis.uses.includes(String(name).trim())) continue;
+    for (let r = basis.source.top; r <= rows; r++) {
+      const a = before.values[r - before.top]?.[c - before.left] ?? null;
+      const b = after.values[r - after.top]?.[c - after.left] ?? null;
+      if (a !== b) return true;
+    }
+  }
+  return false;
+}
+
+/** The values note for generated values whose source cells were edited in place. */
+export function staleValuesNote(basis: GeneratedBasis): BuilderMessage {
+  return note("BASIS_VALUES_NOT_REFRESHED", { sheet: basis.sheet, address: rectAddress(basis.rect), change: changeText(0, 0) });
 }

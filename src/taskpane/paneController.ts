@@ -13,6 +13,7 @@ import { scoreRows, type RowScores } from "../engine/model";
 import type { CellValue, Diagnostic } from "../engine/types";
 import { fitFailure } from "../functions/modelCell";
 import { rectAddress } from "./a1";
+import { basisDerived, followTableRows, type GeneratedBasis, sourceCellsChanged, staleValuesNote, type BuilderMessage } from "./basisBuilder";
 import { type DataTable, describeBlock, keyColumn, tableReference } from "./dataTable";
 import { chooseRunner, FitCancelled, FitFailed, type FitOutcome, type FitPhase } from "./fitRunner";
 import {
@@ -25,7 +26,7 @@ import {
   type SetupChoice,
 } from "./modelSetup";
 import { axisCandidates, buildPlot, type DerivedColumns, type PlotModel } from "./plotGeometry";
-import type { WorkbookPort } from "./port";
+import type { SheetBlock, WorkbookPort } from "./port";
 import { borderlineSheetRows, buildReview, DEFAULT_REVIEW, type ReviewResult, type ReviewSettings } from "./review";
 
 export type StatusPhase = "idle" | "reading" | "writing" | "fitting" | "scoring" | "done" | "cancelled" | "failed";
@@ -40,7 +41,7 @@ export interface PaneStatus {
   busy: boolean;
 }
 
-export type PaneChange = "data" | "choice" | "status" | "fit" | "review" | "highlight";
+export type PaneChange = "data" | "choice" | "status" | "fit" | "review" | "highlight" | "basis";
 
 export interface PaneOptions {
   port: WorkbookPort;
@@ -84,6 +85,11 @@ export class PaneController {
   status: PaneStatus = { phase: "idle", message: "Select the data table in the sheet, then press Use selection.", progress: null, busy: false };
   /** Diagnostics of the last fit (warnings and notes), shown under the status. */
   diagnostics: Diagnostic[] = [];
+  /**
+   * Basis columns the pane generated, kept in step with the table's rows on refresh
+   * (basisBuilder.followTableRows); each carries the note the pane shows about it.
+   */
+  generated: GeneratedBasis[] = [];
 
   private readonly port: WorkbookPort;
   private readonly options: Required<Omit<PaneOptions, "port">>;
@@ -91,6 +97,9 @@ export class PaneController {
   private abort: AbortController | null = null;
   private stopListening: (() => void) | null = null;
   private refreshTimer: ReturnType<typeof setTimeout> | null = null;
+  /** The refresh under way, and whether another change arrived meanwhile (refreshes never overlap). */
+  private refreshing: Promise<void> | null = null;
+  private refreshAgain = false;
   /** The formulas on the results sheet match this set-up (no rewrite needed on refresh). */
   private writtenFor: string | null = null;
 
@@ -410,6 +419,77 @@ export class PaneController {
     );
   }
 
+  // ---- generated basis columns -------------------------------------------------------------
+
+  /**
+   * Remember basis columns the pane wrote (replacing a record for the same block), with how the plot
+   * recomputes them. They then follow the table's rows on refresh.
+   */
+  trackBasis(basis: GeneratedBasis, derived: DerivedColumns): void {
+    this.generated = [...this.generated.filter((g) => !sameBlock(g, basis)), basis];
+    this.derived = [...this.derived.filter((d) => !sameNames(d.outputs, basis.names)), derived];
+    this.emit("basis");
+  }
+
+  /** Forget basis columns (they were removed); returns the record as it stands, with its current extent. */
+  untrackBasis(sheet: string, address: string): GeneratedBasis | null {
+    const found = this.generated.find((g) => g.sheet === sheet && rectAddress(g.rect).split(":")[0] === address.split(":")[0]) ?? null;
+    if (found) {
+      this.generated = this.generated.filter((g) => g !== found);
+      this.derived = this.derived.filter((d) => !sameNames(d.outputs, found.names));
+      this.emit("basis");
+    }
+    return found;
+  }
+
+  /** Notes about generated basis columns (refreshed, or not refreshed and why), for the pane. */
+  basisNotes(): BuilderMessage[] {
+    return this.generated.flatMap((g) => (g.note ? [g.note] : []));
+  }
+
+  /**
+   * Bring the generated basis columns in step with a re-read table: formulas follow a change of their
+   * source rows' extent (rewritten over the new rows); values get a note when the rows changed or
+   * their source cells were edited. Returns true when something was written (re-read the table).
+   */
+  private async followBasis(before: DataTable, after: DataTable): Promise<boolean> {
+    let wrote = false;
+    let changed = false;
+    const next: GeneratedBasis[] = [];
+    for (const g of this.generated) {
+      if (g.sourceSheet !== after.sheet) {
+        next.push(g);
+        continue;
+      }
+      const out = await followTableRows(this.port, g, after.block);
+      if (out.status === "unchanged") {
+        // Same rows: formulas recalculate by themselves; values go stale when their source cells change.
+        if (g.mode === "values" && !g.note && sourceCellsChanged(g, before.block, after.block)) {
+          next.push({ ...g, note: staleValuesNote(g) });
+          changed = true;
+        } else next.push(g);
+        continue;
+      }
+      next.push(out.basis);
+      changed = true;
+      if (out.status === "rewritten") {
+        wrote = true;
+        this.derived = [...this.derived.filter((d) => !sameNames(d.outputs, out.previous.names)), basisDerived(out.basis.recipe, out.training)];
+        if (!sameNames(out.previous.names, out.basis.names) && this.choice) {
+          // The recipe now makes other columns (a new level, merged bins): tick them when the old ones were.
+          const ticked = this.choice.predictors.some((p) => out.previous.names.includes(before.columns[p]?.name));
+          if (ticked) this.pendingTicks.push(...out.basis.names);
+        }
+      }
+    }
+    this.generated = next;
+    if (changed) this.emit("basis");
+    return wrote;
+  }
+
+  /** Generated column names to tick as predictors once the table is re-read. */
+  private pendingTicks: string[] = [];
+
   // ---- refresh on change -------------------------------------------------------------------
 
   private scheduleRefresh(): void {
@@ -426,19 +506,54 @@ export class PaneController {
    * block). Edits inside the table keep the formulas, which recalculate themselves; a table whose rows
    * changed gets its formulas rewritten over the new ranges (explicit ranges rather than whole
    * columns: they carry only the table's cells, stay under the cell functions' payload limit, and key
-   * the same shared fit as the pane's own cells).
+   * the same shared fit as the pane's own cells). Generated basis formulas follow the new rows first
+   * (followBasis), so the refit sees the new rows' basis values. A re-read that finds nothing changed
+   * (e.g. the change event of the pane's own write) does nothing. Refreshes never overlap: a change
+   * that arrives during one runs one more after it.
    */
   async refresh(): Promise<void> {
+    if (this.refreshing) {
+      this.refreshAgain = true;
+      return this.refreshing;
+    }
+    const run = (async () => {
+      do {
+        this.refreshAgain = false;
+        await this.refreshOnce();
+      } while (this.refreshAgain);
+    })();
+    this.refreshing = run;
+    try {
+      await run;
+    } finally {
+      this.refreshing = null;
+    }
+  }
+
+  private async refreshOnce(): Promise<void> {
     if (!this.data) return;
     try {
       const before = this.data;
       const address = rectAddress(before.rect);
-      const block = this.port.readGrownBlock
-        ? await this.port.readGrownBlock(before.sheet, address)
-        : await this.port.readBlock(before.sheet, address);
-      await this.adoptBlock(describeBlock(block), { listen: false, keepChoice: true });
+      const read = (a: string) => (this.port.readGrownBlock ? this.port.readGrownBlock(before.sheet, a) : this.port.readBlock(before.sheet, a));
+      let block = await read(address);
+      if (sameBlockValues(before.block, block)) return;
+      let data = describeBlock(block);
+      if (this.generated.length && (await this.followBasis(before, data))) {
+        // The rewritten basis formulas filled the new rows (and may be wider): read the table again.
+        const right = Math.max(data.rect.right, ...this.generated.filter((g) => g.sheet === data.sheet).map((g) => g.rect.right));
+        block = await this.port.readBlock(data.sheet, rectAddress({ ...data.rect, right }));
+        data = describeBlock(block);
+      }
+      await this.adoptBlock(data, { listen: false, keepChoice: true });
+      if (this.pendingTicks.length && this.choice && this.data) {
+        const names = this.pendingTicks;
+        this.pendingTicks = [];
+        const add = this.data.columns.filter((c) => names.includes(c.name)).map((c) => c.index);
+        this.setChoice({ predictors: [...new Set([...this.choice.predictors, ...add])].sort((a, b) => a - b) });
+      }
       if (this.outcome) {
-        const resized = tableReference(before) !== tableReference(this.data);
+        const resized = tableReference(before) !== tableReference(this.data!);
         await this.fit(resized && this.layout !== null);
         if (this.highlighted.length) await this.highlightAll();
       }
@@ -453,4 +568,29 @@ export class PaneController {
     if (this.refreshTimer) clearTimeout(this.refreshTimer);
     this.listeners.clear();
   }
+}
+
+/** Last sheet row of the table's data (the header row when it has no data rows). */
+function lastRow(data: DataTable): number {
+  return data.firstSheetRow + data.table.rows - 1;
+}
+
+function sameNames(a: readonly string[], b: readonly string[]): boolean {
+  return a.length === b.length && a.every((n, i) => n === b[i]);
+}
+
+function sameBlock(a: GeneratedBasis, b: GeneratedBasis): boolean {
+  return a.sheet === b.sheet && a.rect.top === b.rect.top && a.rect.left === b.rect.left;
+}
+
+/** Same address and the same cell values. */
+function sameBlockValues(a: SheetBlock, b: SheetBlock): boolean {
+  if (a.sheet !== b.sheet || a.address !== b.address || a.values.length !== b.values.length) return false;
+  for (let i = 0; i < a.values.length; i++) {
+    const x = a.values[i];
+    const y = b.values[i];
+    if (x.length !== y.length) return false;
+    for (let j = 0; j < x.length; j++) if (x[j] !== y[j]) return false;
+  }
+  return true;
 }

@@ -6,14 +6,13 @@
  * Sections (top to bottom): cautions; 1 Data and model; 2 Basis columns; 3 Borderline rows;
  * 4 Boundary plot.
  */
-import { fitRecipe, parseRecipe } from "../engine/basis/recipe";
-import { sourcesOf } from "../engine/basis";
 import type { CellValue } from "../engine/types";
-import { basisCell } from "../functions/basisCell";
 import { parseAddress, rectAddress } from "./a1";
 import {
+  basisDerived,
   type BasisSource,
   executeWrite,
+  generatedBasis,
   planWrite,
   previewBasis,
   readBasisSource,
@@ -23,7 +22,6 @@ import {
 import { CAUTIONS, CAUTIONS_TITLE } from "./cautions";
 import type { PaneController, PaneChange } from "./paneController";
 import { renderPlot } from "./plot";
-import type { DerivedColumns } from "./plotGeometry";
 import type { WorkbookPort } from "./port";
 
 type Attrs = Record<string, string>;
@@ -177,6 +175,8 @@ export class PaneView {
     write.addEventListener("click", () => void this.writeBasis());
     const undo = this.keep("basisUndo", h("button", { id: "osm-basis-undo", type: "button" }, "Remove generated columns"));
     undo.addEventListener("click", () => void this.undoBasis());
+    const asValues = this.keep("basisValues", h("input", { id: "osm-basis-values", type: "checkbox" }));
+    const notes = this.keep("basisNotes", h("ul", { id: "osm-basis-notes", class: "osm-basis-notes" }));
     return this.section(
       "osm-basis",
       "2",
@@ -184,8 +184,10 @@ export class PaneView {
       h("p", { class: "osm-note" }, "Give a column a curved effect: the new columns are written beside the table as one live formula and ticked as predictors in place of their source."),
       columns,
       h("label", { class: "osm-field" }, h("span", {}, "Recipe"), recipe),
+      h("label", { class: "osm-inline" }, asValues, " Write fixed values instead of a live formula (values do not follow new rows)"),
       preview,
       h("div", { class: "osm-row" }, write, undo),
+      notes,
     );
   }
 
@@ -288,6 +290,9 @@ export class PaneView {
         break;
       case "highlight":
         this.renderReview();
+        break;
+      case "basis":
+        this.renderBasisNotes();
         break;
     }
   }
@@ -564,24 +569,20 @@ export class PaneView {
     }
     try {
       if (this.basisUndo) await this.undoBasis();
-      const plan = planWrite(source, recipe, { place: "beside", mode: "formula" });
+      const mode = (this.byId("basisValues") as HTMLInputElement).checked ? "values" : "formula";
+      const plan = planWrite(source, recipe, { place: "beside", mode });
       const result = await executeWrite(this.port, plan);
       if (result.status === "blocked") {
         out.textContent = result.message.message;
         return;
       }
       this.basisUndo = result.undo;
-      // Teach the plot how to recompute the generated columns from their sources.
-      const state = fitRecipe(parseRecipe(recipe), source.columns, "data");
-      const sources = [...new Set(state.states.flatMap((s) => sourcesOf(s)))];
+      // Remember the columns (they follow the table's rows) and teach the plot how to recompute them.
       const start = source.table.firstRow - 2;
       const training = source.block.values.slice(start, start + source.table.rows + 1);
-      const derived: DerivedColumns = {
-        outputs: plan.names,
-        sources,
-        compute: (rows) => basisCell(rows, recipe, training),
-      };
-      this.controller.derived = [derived];
+      const derived = basisDerived(recipe, training);
+      const sources = derived.sources;
+      this.controller.trackBasis(generatedBasis(source, plan, result), derived);
       // Widen the pane's table over the generated block and tick the new columns instead of their sources.
       const tableRect = parseAddress(d.block.address)!;
       const genRect = parseAddress(result.address)!;
@@ -602,11 +603,13 @@ export class PaneView {
   }
 
   private async undoBasis(): Promise<void> {
-    const undo = this.basisUndo;
-    if (!undo) return;
+    const written = this.basisUndo;
+    if (!written) return;
+    // The columns may have followed the table's rows since they were written: remove them as they stand.
+    const current = this.controller.untrackBasis(written.sheet, written.address);
+    const undo = current ? { ...written, address: rectAddress(current.rect) } : written;
     await undoWrite(this.port, undo);
     this.basisUndo = null;
-    this.controller.derived = [];
     const d = this.controller.data;
     if (d) {
       const rect = parseAddress(d.block.address)!;
@@ -614,5 +617,15 @@ export class PaneView {
       if (rect.right >= gen.left) await this.controller.useTable(d.sheet, rectAddress({ ...rect, right: gen.left - 2 }), true);
     }
     this.byId("basisPreview").textContent = "Generated columns removed.";
+  }
+
+  /** What the pane has to say about generated columns after the table changed (followed, or not and why). */
+  private renderBasisNotes(): void {
+    const list = this.byId("basisNotes");
+    list.replaceChildren(
+      ...this.controller.basisNotes().map((n) =>
+        h("li", { class: n.code === "BASIS_FOLLOWED_ROWS" ? "osm-note" : "osm-note is-error", "data-code": n.code }, n.message),
+      ),
+    );
   }
 }
