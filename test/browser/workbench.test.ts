@@ -278,6 +278,33 @@ describe("preview workbench", () => {
     expect(straightLineDeviation(boundaries.join(""))).toBeGreaterThan(CURVE_MIN_DEVIATION_PX);
     expect(await page.textContent("#osm-plot-caption")).not.toContain("ns(firmness)");
     saveArtifact("workbench-plot-spline.png", await page.locator("#osm-plot").screenshot());
+
+    // A crate typed under the table: the basis formula follows the new row and the refit uses it.
+    const added: CellValue[] = ["C-241", "Hilltop", 30, 55, 14.5, 1, "yes", "market"];
+    for (const [k, v] of added.entries()) {
+      await page.click(`.ledger-table td[data-row="242"][data-col="${k + 1}"]`);
+      await page.fill("#entry", String(v));
+      await page.press("#entry", "Enter");
+    }
+    await page.waitForFunction(() => /^Fitted on 241 rows/.test(document.querySelector("#osm-status")?.textContent ?? ""), null, {
+      timeout: FIT_WAIT_MS,
+    });
+    const grown = [...values, added];
+    const grownBasis = basisCell(grown, "firmness: ns(df=3)", null);
+    for (let j = 0; j < 3; j++) {
+      const shown = Number(await page.textContent(`.ledger-table td[data-row="242"][data-col="${10 + j}"]`));
+      expect(shown).toBeCloseTo(grownBasis[241][j] as number, 3);
+    }
+    expect(await page.textContent('#osm-basis-notes li[data-code="BASIS_FOLLOWED_ROWS"]')).toContain(
+      "rewritten over Crates!$A$1:$H$242: its knots, centres, levels and scales are refitted on all 241 rows",
+    );
+    const grownModel = trainModel(
+      grown.map((r) => [r[6]]),
+      grown.map((r, i) => [r[2], r[4], r[5], ...grownBasis[i]]),
+      options.model,
+    );
+    const grownExpected = nearBoundaryRows(scoreRows(grownModel, null).prediction, { threshold: 0.5, band: 0.1, limit: 200 });
+    expect((await listedRows(page)).map((l) => l.row)).toEqual(grownExpected.rows.map((r) => r.row + 2));
     await page.close();
   });
 
