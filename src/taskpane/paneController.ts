@@ -457,7 +457,9 @@ export class PaneController {
     let changed = false;
     const next: GeneratedBasis[] = [];
     for (const g of this.generated) {
-      if (g.sourceSheet !== after.sheet) {
+      // Only columns built from this table follow it (the table holds their source columns).
+      const holds = g.sourceSheet === after.sheet && g.source.left >= after.rect.left && g.source.right <= after.rect.right && g.source.top >= after.rect.top;
+      if (!holds) {
         next.push(g);
         continue;
       }
@@ -541,7 +543,9 @@ export class PaneController {
       let data = describeBlock(block);
       if (this.generated.length && (await this.followBasis(before, data))) {
         // The rewritten basis formulas filled the new rows (and may be wider): read the table again.
-        const right = Math.max(data.rect.right, ...this.generated.filter((g) => g.sheet === data.sheet).map((g) => g.rect.right));
+        // A block beside the table that the table already spans may have grown wider (a new level).
+        const spanned = this.generated.filter((g) => g.sheet === data.sheet && g.rect.left <= data.rect.right);
+        const right = Math.max(data.rect.right, ...spanned.map((g) => g.rect.right));
         block = await this.port.readBlock(data.sheet, rectAddress({ ...data.rect, right }));
         data = describeBlock(block);
       }

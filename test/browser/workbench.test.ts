@@ -308,6 +308,31 @@ describe("preview workbench", () => {
     await page.close();
   });
 
+  test("basis columns written as values do not follow a new row, and the pane says so", async () => {
+    const page = await openWorkbench();
+    await page.click("#osm-use");
+    await page.waitForSelector('#osm-basis-columns select[data-column="firmness"]');
+    await page.selectOption('#osm-basis-columns select[data-column="firmness"]', "ns");
+    await page.check("#osm-basis-values");
+    await page.click("#osm-basis-write");
+    await page.waitForFunction(() => /^Added 3 columns/.test(document.querySelector("#osm-basis-preview")?.textContent ?? ""));
+    // Values, not a formula: the first generated cell holds the header text itself (a formula would show "=ODDS.BASIS(...").
+    await page.click('.ledger-table td[data-row="1"][data-col="10"]');
+    expect(await page.inputValue("#entry")).toBe("ns(firmness)1");
+    await page.click("#osm-fit");
+    await page.waitForFunction(() => /^Fitted on 240 rows/.test(document.querySelector("#osm-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+    const added: CellValue[] = ["C-241", "Hilltop", 30, 55, 14.5, 1, "yes", "market"];
+    for (const [k, v] of added.entries()) {
+      await page.click(`.ledger-table td[data-row="242"][data-col="${k + 1}"]`);
+      await page.fill("#entry", String(v));
+      await page.press("#entry", "Enter");
+    }
+    const note = await page.waitForSelector('#osm-basis-notes li[data-code="BASIS_VALUES_NOT_REFRESHED"]', { timeout: FIT_WAIT_MS });
+    expect(await note.textContent()).toContain("hold values, not a live formula, so they were not refreshed after 1 row was added to the table");
+    expect(await page.textContent('.ledger-table td[data-row="242"][data-col="10"]')).toBe("");
+    await page.close();
+  });
+
   test("the fit can run in the background worker with the same result", async () => {
     const page = await openWorkbench("?runner=worker");
     await fitDemo(page);

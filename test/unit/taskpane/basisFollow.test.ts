@@ -25,6 +25,7 @@ import { basisCell } from "../../../src/functions/basisCell";
 import { readModelOptions } from "../../../src/functions/modelCell";
 import { trainModel } from "../../../src/engine/model";
 import type { CellValue } from "../../../src/engine/types";
+import { rectAddress } from "../../../src/taskpane/a1";
 
 /**
  * The pane's refit and the reference fit run the same engine on the same numbers; they may differ
@@ -225,6 +226,32 @@ describe("generated basis formulas follow the table's rows (through the in-memor
     workbook.setCell(sheet, 5, 6, 4); // bruises: not a source of the basis
     await settle(controller);
     expect(controller.basisNotes()).toEqual([]);
+  });
+});
+
+describe("removing generated columns after they followed the table", () => {
+  test("the pane forgets them and hands back their current extent, so removal clears the grown block", async () => {
+    const { workbook, sheet, controller, port } = await paneWithBasis("formula");
+    workbook.setValues(sheet, 242, 1, ADDED);
+    await settle(controller);
+    const record = controller.untrackBasis(sheet, "J1:L241");
+    expect(record && rectAddress(record.rect)).toBe("J1:L243");
+    expect(controller.generated).toEqual([]);
+    expect(controller.derived).toEqual([]);
+    await port.clear(sheet, rectAddress(record!.rect));
+    expect(await port.isEmpty(sheet, "J1:L243")).toBe(true);
+  });
+
+  test("columns built from another table on the sheet do not follow this one", async () => {
+    const { workbook, sheet, controller, port } = await paneWithBasis("formula");
+    // The pane now works on a narrower table that does not hold the basis source (A:H).
+    await controller.useTable(sheet, "A1:C241");
+    const writes = jest.spyOn(port, "write").mockClear();
+    workbook.setValues(sheet, 242, 1, [ADDED[0].slice(0, 3)]);
+    await settle(controller);
+    expect(controller.data!.block.address).toBe("A1:C242");
+    expect(writes).not.toHaveBeenCalledWith(expect.objectContaining({ at: "J1" }));
+    expect(workbook.input(sheet, 1, 10)).toContain("$A$1:$H$241");
   });
 });
 
