@@ -100,6 +100,8 @@ export class PaneController {
   /** The refresh under way, and whether another change arrived meanwhile (refreshes never overlap). */
   private refreshing: Promise<void> | null = null;
   private refreshAgain = false;
+  /** Generated column names to tick as predictors once the table is re-read (a recipe made new ones). */
+  private pendingTicks: string[] = [];
   /** The formulas on the results sheet match this set-up (no rewrite needed on refresh). */
   private writtenFor: string | null = null;
 
@@ -489,9 +491,6 @@ export class PaneController {
     return wrote;
   }
 
-  /** Generated column names to tick as predictors once the table is re-read. */
-  private pendingTicks: string[] = [];
-
   // ---- refresh on change -------------------------------------------------------------------
 
   private scheduleRefresh(): void {
@@ -572,11 +571,6 @@ export class PaneController {
     if (this.refreshTimer) clearTimeout(this.refreshTimer);
     this.listeners.clear();
   }
-}
-
-/** Last sheet row of the table's data (the header row when it has no data rows). */
-function lastRow(data: DataTable): number {
-  return data.firstSheetRow + data.table.rows - 1;
 }
 
 function sameNames(a: readonly string[], b: readonly string[]): boolean {

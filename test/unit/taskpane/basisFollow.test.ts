@@ -229,6 +229,41 @@ describe("generated basis formulas follow the table's rows (through the in-memor
   });
 });
 
+describe("a recipe that makes other columns on the grown rows", () => {
+  test("a new level's indicator column is written, read into the table and ticked like the old ones", async () => {
+    // Invented: parcels delivered late (y) by distance and depot; depots North and South at first.
+    const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
+    const sheet = workbook.addSheet("Parcels");
+    const depots = ["North", "South", "North", "South", "North", "North", "South", "North", "South", "South", "North", "South"];
+    const late = ["no", "yes", "yes", "no", "no", "yes", "yes", "no", "no", "yes", "no", "yes"];
+    workbook.setValues(sheet, 1, 1, [["km", "depot", "late"], ...depots.map((d, i) => [3 + ((i * 7) % 11), d, late[i]])]);
+    const port = new MemoryPort(workbook);
+    const controller = new PaneController({ port, runner: "inline", refreshDelayMs: 0 });
+    await controller.useTable(sheet, "A1:C13");
+    const source = await readBasisSource(port, { sheet, address: "A1:C13" });
+    const recipe = "depot: levels(ref=North)";
+    const plan = planWrite(source, recipe, { place: "beside", mode: "formula" });
+    const written = await executeWrite(port, plan);
+    if (written.status !== "written") throw new Error("not written");
+    controller.trackBasis(generatedBasis(source, plan, written), basisDerived(recipe, source.block.values));
+    await controller.useTable(sheet, "A1:E13", true);
+    const col = (name: string) => controller.data!.columns.findIndex((c) => c.name === name);
+    controller.setChoice({ label: col("late"), predictors: [col("km"), col("depot=South")] });
+    await controller.fit();
+    expect(controller.status.phase).toBe("done");
+    workbook.setValues(sheet, 14, 1, [
+      [9, "East", "yes"],
+      [4, "East", "no"],
+    ]);
+    await settle(controller);
+    expect(workbook.read(sheet, { top: 1, left: 5, bottom: 1, right: 6 })[0]).toEqual(["depot=South", "depot=East"]);
+    expect(controller.data!.block.address).toBe("A1:F15");
+    const ticked = controller.choice!.predictors.map((p) => controller.data!.columns[p].name);
+    expect(ticked).toEqual(["km", "depot=South", "depot=East"]);
+    expect(controller.outcome!.model.fit.rowsUsed).toBe(14);
+  });
+});
+
 describe("removing generated columns after they followed the table", () => {
   test("the pane forgets them and hands back their current extent, so removal clears the grown block", async () => {
     const { workbook, sheet, controller, port } = await paneWithBasis("formula");
