@@ -52,8 +52,8 @@ import {
   penalizedNote,
   type Interval,
 } from "./inference";
-import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, weightedCrossProduct } from "./linalg";
-import { newtonLogistic, type NewtonProblem, type NewtonResult } from "./logisticNewton";
+import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix } from "./linalg";
+import { fittingColumns, newtonLogistic, problemGram, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
 import { firthProfileIntervals, PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
@@ -360,8 +360,10 @@ export function fitBinaryModel(
   const centre = new Float64Array(q);
   const scale = new Float64Array(q);
   const sd = new Float64Array(q);
-  const z: Float64Array[] = [];
-  if (opt.intercept) z.push(new Float64Array(n).fill(1));
+  // Fitting columns z_j = (x_j - centre_j) / scale_j are formed a row block at a time inside the
+  // Newton core (no scaled copy of the design); the intercept column passes through unchanged.
+  const raw: Float64Array[] = [];
+  if (opt.intercept) raw.push(new Float64Array(n).fill(1));
   for (let j = 0; j < q; j++) {
     const x = data.columns[j];
     // Sums on x / max|x| so that neither 1e200 nor 1e-200 overflows or underflows when squared.
@@ -386,18 +388,13 @@ export function fitBinaryModel(
     const s = opt.intercept ? sd[j] : big * Math.sqrt(ms / sumA);
     scale[j] = s > 0 ? s : 1;
     centre[j] = opt.intercept ? m : 0;
-    const col = new Float64Array(n);
-    const c = centre[j];
-    const sc = scale[j];
-    const inv = 1 / sc;
-    if (Number.isFinite(inv)) {
-      for (let i = 0; i < n; i++) col[i] = (x[i] - c) * inv;
-    } else {
-      for (let i = 0; i < n; i++) col[i] = (x[i] - c) / sc;
-    }
-    z.push(col);
+    raw.push(x);
   }
   const off0 = opt.intercept ? 1 : 0;
+  const centreAll = new Float64Array(p);
+  const scaleAll = new Float64Array(p).fill(1);
+  centreAll.set(centre, off0);
+  scaleAll.set(scale, off0);
   const penaltyAll = new Float64Array(p);
   if (penalized) {
     for (let j = 0; j < q; j++) {
@@ -407,7 +404,7 @@ export function fitBinaryModel(
   }
 
   // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
-  const unitGram = weightedCrossProduct(z, a, n, new Float64Array(p * p));
+  const unitGram = problemGram({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a);
   // A ridge penalty makes collinear columns estimable, so it enters the rank decision; Firth's
   // penalty needs log det of the unpenalized information, so with bias reduction it does not.
   const gram = Float64Array.from(unitGram);
@@ -422,14 +419,21 @@ export function fitBinaryModel(
   }
   const kept = rr.independent;
   const k = kept.length;
-  const zk = kept.map((j) => z[j]);
+  const keptDesign = {
+    rows: n,
+    columns: kept.map((j) => raw[j]),
+    centre: Float64Array.from(kept, (j) => centreAll[j]),
+    scale: Float64Array.from(kept, (j) => scaleAll[j]),
+  };
+  // Firth's hat values need whole columns: form the scaled copy once for the fits below.
+  const firthColumns = opt.biasReduction ? fittingColumns(keptDesign) : null;
   const interceptIndex = opt.intercept && !aliased[0] ? 0 : -1;
   const response: BinaryResponse = { rows: n, successes: data.successes, trials: data.trials };
 
   // ---- main fit ----------------------------------------------------------------------------
   const problemK: NewtonProblem = {
     rows: n,
-    columns: zk,
+    ...(firthColumns ? { columns: firthColumns } : keptDesign),
     successes: data.successes,
     trials: data.trials,
     weights: data.weights,
@@ -454,7 +458,7 @@ export function fitBinaryModel(
     if (u) univariate.push({ col: t, rows: u.rows, complete: u.complete });
   }
   if (!penalized && !opt.biasReduction) {
-    separation = separationFromIterates(zk, fit.history, fit.eta, response, interceptIndex, fit.converged);
+    separation = separationFromIterates(() => fittingColumns(keptDesign), fit.history, fit.eta, response, interceptIndex, fit.converged);
   }
   if (!separation && univariate.length > 0) {
     // Certify the first univariate finding in the fitting coordinates (it is already exact).

@@ -16,7 +16,7 @@
  */
 
 import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
-import { cholesky, choleskySolve, dot, subMatrix, weightedCrossProduct, type SquareMatrix } from "./linalg";
+import { accumulateBlockCrossProduct, cholesky, choleskySolve, mirrorUpper, subMatrix, type SquareMatrix } from "./linalg";
 
 /** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
 export interface NewtonProblem {
@@ -52,6 +52,14 @@ export interface NewtonProblem {
    * which saves one pass of p(p+1)/2 dot products.
    */
   unitGram?: SquareMatrix | null;
+  /**
+   * Optional centring and scaling applied on the fly: when given, `columns` hold the original
+   * values and fitting column j is (columns[j] - centre[j]) / scale[j], formed a row block at a
+   * time into a small buffer (no full scaled copy of the design). Firth fits, whose hat values need
+   * whole columns, form the scaled copy once at the start.
+   */
+  centre?: Float64Array | null;
+  scale?: Float64Array | null;
 }
 
 /** What the Newton core returns. */
@@ -86,30 +94,172 @@ const FIRTH_STEP_TOLERANCE = 1e-11;
 /** Halvings tried before a step is declared unable to improve the objective. */
 const MAX_HALVINGS = 30;
 
+/** Rows per block of the blocked kernels: k columns of this many rows (80 KB at k = 20) stay in the L2 cache. */
+export const ROW_BLOCK = 512;
+
+/** The part of a problem the blocked kernels read: the columns and their on-the-fly scaling. */
+export type BlockDesign = Pick<NewtonProblem, "rows" | "columns" | "centre" | "scale">;
+
+/** Scratch of the blocked kernels: the fitting columns of one row block, and a weighted copy. */
+interface BlockBuffers {
+  z: Float64Array;
+  wz: Float64Array;
+}
+
+function blockBuffers(k: number): BlockBuffers {
+  return { z: new Float64Array(Math.max(k, 1) * ROW_BLOCK), wz: new Float64Array(Math.max(k, 1) * ROW_BLOCK) };
+}
+
+/**
+ * Fitting column j for rows i0 .. i0+len-1 into z[j*ROW_BLOCK ..]: the column itself, or
+ * (x - centre) / scale (multiplying by the reciprocal unless it overflows, as the caller's scaled
+ * copy would).
+ */
+function fillBlock(p: BlockDesign, i0: number, len: number, z: Float64Array): void {
+  const k = p.columns.length;
+  for (let j = 0; j < k; j++) {
+    const x = p.columns[j];
+    const base = j * ROW_BLOCK - i0;
+    if (!p.centre || !p.scale) {
+      for (let i = i0; i < i0 + len; i++) z[base + i] = x[i];
+      continue;
+    }
+    const c = p.centre[j];
+    const sc = p.scale[j];
+    const inv = 1 / sc;
+    if (Number.isFinite(inv)) {
+      for (let i = i0; i < i0 + len; i++) z[base + i] = (x[i] - c) * inv;
+    } else {
+      for (let i = i0; i < i0 + len; i++) z[base + i] = (x[i] - c) / sc;
+    }
+  }
+}
+
+/**
+ * Z' diag(weights) Z of the problem's fitting columns (k*k, exactly symmetric), accumulated a row
+ * block at a time (see accumulateBlockCrossProduct); with `residual`, also Z'residual into
+ * `vectorOut` in the same pass over the data.
+ */
+function crossProducts(
+  p: BlockDesign,
+  weights: Float64Array,
+  out: SquareMatrix,
+  buffers: BlockBuffers,
+  residual: Float64Array | null = null,
+  vectorOut: Float64Array | null = null,
+): SquareMatrix {
+  const n = p.rows;
+  const k = p.columns.length;
+  const { z, wz } = buffers;
+  out.fill(0);
+  if (vectorOut) vectorOut.fill(0);
+  for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
+    const len = Math.min(ROW_BLOCK, n - i0);
+    fillBlock(p, i0, len, z);
+    for (let j = 0; j < k; j++) {
+      const base = j * ROW_BLOCK;
+      for (let r = 0; r < len; r++) wz[base + r] = weights[i0 + r] * z[base + r];
+      if (residual && vectorOut) {
+        let s0 = 0;
+        let s1 = 0;
+        let r = 0;
+        for (; r + 1 < len; r += 2) {
+          s0 += residual[i0 + r] * z[base + r];
+          s1 += residual[i0 + r + 1] * z[base + r + 1];
+        }
+        for (; r < len; r++) s0 += residual[i0 + r] * z[base + r];
+        vectorOut[j] += s0 + s1;
+      }
+    }
+    accumulateBlockCrossProduct(wz, z, k, len, ROW_BLOCK, out);
+  }
+  return mirrorUpper(out, k);
+}
+
+/** Z'v of the problem's fitting columns into out (length k), a row block at a time. */
+function crossVector(p: BlockDesign, v: Float64Array, out: Float64Array, buffers: BlockBuffers): Float64Array {
+  const n = p.rows;
+  const k = p.columns.length;
+  const z = buffers.z;
+  out.fill(0);
+  for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
+    const len = Math.min(ROW_BLOCK, n - i0);
+    fillBlock(p, i0, len, z);
+    for (let j = 0; j < k; j++) {
+      const base = j * ROW_BLOCK;
+      let s0 = 0;
+      let s1 = 0;
+      let r = 0;
+      for (; r + 1 < len; r += 2) {
+        s0 += v[i0 + r] * z[base + r];
+        s1 += v[i0 + r + 1] * z[base + r + 1];
+      }
+      for (; r < len; r++) s0 += v[i0 + r] * z[base + r];
+      out[j] += s0 + s1;
+    }
+  }
+  return out;
+}
+
+/**
+ * Z' diag(weights) Z of a problem's fitting columns (k*k, exactly symmetric), computed a row block
+ * at a time with the problem's centring and scaling applied on the fly; the weighted Gram matrix
+ * of the IRLS step (McCullagh & Nelder 1989, ch. 2) for given weights.
+ */
+export function problemGram(p: BlockDesign, weights: Float64Array, out: SquareMatrix = new Float64Array(p.columns.length ** 2)): SquareMatrix {
+  return crossProducts(p, weights, out, blockBuffers(p.columns.length));
+}
+
+/**
+ * The fitting columns of a problem as whole columns: the columns themselves, or their centred and
+ * scaled copies when the problem centres and scales on the fly.
+ */
+export function fittingColumns(p: BlockDesign): Float64Array[] {
+  if (!p.centre || !p.scale) return p.columns;
+  const n = p.rows;
+  return p.columns.map((x, j) => {
+    const col = new Float64Array(n);
+    const c = p.centre![j];
+    const sc = p.scale![j];
+    const inv = 1 / sc;
+    if (Number.isFinite(inv)) {
+      for (let i = 0; i < n; i++) col[i] = (x[i] - c) * inv;
+    } else {
+      for (let i = 0; i < n; i++) col[i] = (x[i] - c) / sc;
+    }
+    return col;
+  });
+}
+
 /**
  * Evaluate l(g) into eta/mu buffers; returns the kernel log-likelihood (sum over rows).
- * No allocation.
+ * The linear predictor is formed a row block at a time. No allocation.
  */
-function evaluate(p: NewtonProblem, g: Float64Array, eta: Float64Array, mu: Float64Array): number {
+function evaluate(p: NewtonProblem, g: Float64Array, eta: Float64Array, mu: Float64Array, buffers: BlockBuffers): number {
   const n = p.rows;
   eta.set(p.offset.subarray(0, n));
-  // Three columns per pass over eta (fewer loads and stores of eta than one column at a time).
   const k = p.columns.length;
-  let j = 0;
-  for (; j + 2 < k; j += 3) {
-    const ga = g[j];
-    const gb = g[j + 1];
-    const gc = g[j + 2];
-    const za = p.columns[j];
-    const zb = p.columns[j + 1];
-    const zc = p.columns[j + 2];
-    for (let i = 0; i < n; i++) eta[i] += ga * za[i] + gb * zb[i] + gc * zc[i];
-  }
-  for (; j < k; j++) {
-    const gj = g[j];
-    if (gj === 0) continue;
-    const zj = p.columns[j];
-    for (let i = 0; i < n; i++) eta[i] += gj * zj[i];
+  const z = buffers.z;
+  for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
+    const len = Math.min(ROW_BLOCK, n - i0);
+    fillBlock(p, i0, len, z);
+    // Three columns per pass over the block of eta (fewer loads and stores of eta).
+    let j = 0;
+    for (; j + 2 < k; j += 3) {
+      const ga = g[j];
+      const gb = g[j + 1];
+      const gc = g[j + 2];
+      const a = j * ROW_BLOCK;
+      const b = a + ROW_BLOCK;
+      const c = b + ROW_BLOCK;
+      for (let r = 0; r < len; r++) eta[i0 + r] += ga * z[a + r] + gb * z[b + r] + gc * z[c + r];
+    }
+    for (; j < k; j++) {
+      const gj = g[j];
+      if (gj === 0) continue;
+      const a = j * ROW_BLOCK;
+      for (let r = 0; r < len; r++) eta[i0 + r] += gj * z[a + r];
+    }
   }
   const y = p.successes;
   const t = p.trials;
@@ -140,10 +290,10 @@ function evaluate(p: NewtonProblem, g: Float64Array, eta: Float64Array, mu: Floa
 }
 
 /** I = Z'WZ (upper triangle then mirrored) with W_i = w_i t_i mu_i (1 - mu_i); fills fisherW. */
-function information(p: NewtonProblem, mu: Float64Array, fisherW: Float64Array, work: Float64Array, out: SquareMatrix): SquareMatrix {
+function information(p: NewtonProblem, mu: Float64Array, fisherW: Float64Array, buffers: BlockBuffers, out: SquareMatrix): SquareMatrix {
   const n = p.rows;
   for (let i = 0; i < n; i++) fisherW[i] = p.weights[i] * p.trials[i] * mu[i] * (1 - mu[i]);
-  return weightedCrossProduct(p.columns, fisherW, n, out, work);
+  return crossProducts(p, fisherW, out, buffers);
 }
 
 function penaltyValue(p: NewtonProblem, g: Float64Array): number {
@@ -159,7 +309,9 @@ function penaltyValue(p: NewtonProblem, g: Float64Array): number {
  * Reference: McCullagh & Nelder (1989), ch. 2 (Fisher scoring = Newton for the canonical logit link);
  * Firth (1993) for the bias-reduced objective.
  */
-export function newtonLogistic(p: NewtonProblem): NewtonResult {
+export function newtonLogistic(problem: NewtonProblem): NewtonResult {
+  // Firth's hat values need whole fitting columns: form the scaled copy once.
+  const p = problem.firth && problem.centre && problem.scale ? { ...problem, columns: fittingColumns(problem), centre: null, scale: null } : problem;
   const n = p.rows;
   const k = p.columns.length;
   const eta = new Float64Array(n);
@@ -168,6 +320,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   const muTry = new Float64Array(n);
   const fisherW = new Float64Array(n);
   const work = new Float64Array(n);
+  const buffers = blockBuffers(k);
   const hat = p.firth ? new Float64Array(n) : work;
   const fisherWTry = p.firth ? new Float64Array(n) : work;
   const info = new Float64Array(k * k);
@@ -183,7 +336,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   const g = new Float64Array(k);
   if (p.start) {
     g.set(p.start);
-  } else if (k > 0 && isInterceptColumn(p.columns[0], n) && (!p.free || p.free[0])) {
+  } else if (k > 0 && isInterceptColumn(p, n) && (!p.free || p.free[0])) {
     let sy = 0;
     let st = 0;
     for (let i = 0; i < n; i++) {
@@ -195,7 +348,7 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   }
 
   // State at g: log-likelihood, objective (needs log det I for Firth), information and its factor.
-  let ll = evaluate(p, g, eta, mu);
+  let ll = evaluate(p, g, eta, mu, buffers);
   let constantMu = !!p.unitGram;
   for (let i = 1; constantMu && i < n; i++) if (mu[i] !== mu[0]) constantMu = false;
   if (constantMu && n > 0) {
@@ -203,8 +356,9 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
     for (let i = 0; i < n; i++) fisherW[i] = p.weights[i] * p.trials[i] * v;
     for (let j = 0; j < k * k; j++) info[j] = v * p.unitGram![j];
   } else {
-    information(p, mu, fisherW, work, info);
+    information(p, mu, fisherW, buffers, info);
   }
+  let scoreReady = false; // true when the score's Z' part at g is already in `score` (computed with I)
   let factor = firthFactor(p, info, k);
   let singular = factor === null && p.firth;
   let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
@@ -216,8 +370,12 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
   while (!singular && iterations < p.maxIterations) {
     iterations++;
     // Score U = Z'(w (y - t mu)) - pen .* g  [+ Firth adjustment].
-    for (let i = 0; i < n; i++) work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * mu[i]);
-    for (let j = 0; j < k; j++) score[j] = dot(work, p.columns[j], n) - p.penalty[j] * g[j];
+    if (!scoreReady) {
+      for (let i = 0; i < n; i++) work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * mu[i]);
+      crossVector(p, work, score, buffers);
+    }
+    scoreReady = false;
+    for (let j = 0; j < k; j++) score[j] -= p.penalty[j] * g[j];
     if (p.firth && factor) {
       hatValues(p.columns, factor, fisherW, n, work, hat);
       addFirthScoreAdjustment(p.columns, hat, mu, n, score);
@@ -271,10 +429,10 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
     const infoTry = infoPen; // reuse as scratch for the candidate's information (infoPen is consumed)
     for (let h = 0; h <= MAX_HALVINGS; h++) {
       for (let j = 0; j < k; j++) gTry[j] = g[j] + scale * step[j];
-      llTry = evaluate(p, gTry, etaTry, muTry);
+      llTry = evaluate(p, gTry, etaTry, muTry, buffers);
       objTry = -llTry + penaltyValue(p, gTry);
       if (p.firth) {
-        information(p, muTry, fisherWTry, hat, infoTry);
+        information(p, muTry, fisherWTry, buffers, infoTry);
         factorTry = firthFactor(p, infoTry, k);
         objTry = factorTry ? objTry - 0.5 * logDetFromCholesky(factorTry, k) : Infinity;
       }
@@ -323,7 +481,14 @@ export function newtonLogistic(p: NewtonProblem): NewtonResult {
         break;
       }
     } else {
-      information(p, mu, fisherW, work, info);
+      // Information and the score's Z' part at the new g in one pass over the data.
+      for (let i = 0; i < n; i++) {
+        const m = mu[i];
+        fisherW[i] = p.weights[i] * p.trials[i] * m * (1 - m);
+        work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * m);
+      }
+      crossProducts(p, fisherW, info, buffers, work, score);
+      scoreReady = true;
     }
     // Firth's iteration uses I (not the Hessian of the penalized objective), so it converges only
     // linearly: a small change of the objective is not enough, the step must be negligible too.
@@ -360,7 +525,10 @@ function firthFactor(p: NewtonProblem, info: SquareMatrix, k: number): SquareMat
   return c.ok ? c.factor : null;
 }
 
-function isInterceptColumn(col: Float64Array, n: number): boolean {
+function isInterceptColumn(p: NewtonProblem, n: number): boolean {
+  // With on-the-fly scaling the column is the intercept only when it is passed through unchanged.
+  if (p.centre && p.scale && !(p.centre[0] === 0 && p.scale[0] === 1)) return false;
+  const col = p.columns[0];
   for (let i = 0; i < n; i++) if (col[i] !== 1) return false;
   return n > 0;
 }

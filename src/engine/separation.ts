@@ -139,11 +139,13 @@ export function certifyDirection(
  * negligible (|step|_inf > 1e-3 on the standardized scale) and the fit pushed probabilities
  * towards 0/1 (|eta| > 15) or stopped at its iteration cap, take the last step as the candidate
  * direction and certify it on every row.
+ * @param columns - the fitting columns, or a function forming them (called only when a candidate
+ *   direction is certified)
  * @param history - coefficients after each accepted iteration (standardized scale)
  * @param eta - final linear predictor
  */
 export function separationFromIterates(
-  columns: readonly Float64Array[],
+  columns: readonly Float64Array[] | (() => readonly Float64Array[]),
   history: readonly Float64Array[],
   eta: Float64Array,
   r: BinaryResponse,
@@ -165,5 +167,5 @@ export function separationFromIterates(
   // p < 3e-7) without a shrinking step are the symptom glm.fit warns about. A fit stopped by the
   // iteration cap is checked whatever its probabilities. The certificate below decides either way.
   if (!(stepMax > 1e-3 && (maxEta > 15 || !converged))) return null;
-  return certifyDirection(columns, d, r, interceptIndex);
+  return certifyDirection(typeof columns === "function" ? columns() : columns, d, r, interceptIndex);
 }
