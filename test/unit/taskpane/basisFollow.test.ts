@@ -19,6 +19,7 @@ import {
   generatedBasis,
   planWrite,
   readBasisSource,
+  undoWrite,
   type GeneratedBasis,
 } from "../../../src/taskpane/basisBuilder";
 import { basisCell } from "../../../src/functions/basisCell";
@@ -226,6 +227,35 @@ describe("generated basis formulas follow the table's rows (through the in-memor
     workbook.setCell(sheet, 5, 6, 4); // bruises: not a source of the basis
     await settle(controller);
     expect(controller.basisNotes()).toEqual([]);
+  });
+});
+
+describe("the builder's write and undo through the in-memory workbook", () => {
+  test("a target covered by another formula's spill counts as not empty: nothing is written", async () => {
+    const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
+    const sheet = loadDemo(workbook);
+    const port = new MemoryPort(workbook);
+    const source = await readBasisSource(port, { sheet, address: "A1:H241" });
+    // A first basis formula two rows lower than the planned block spills into its area.
+    workbook.setCell(sheet, 3, 11, '=ODDS.BASIS(Crates!$A$1:$H$20, "brix: z")');
+    expect(workbook.input(sheet, 5, 11)).toBeNull();
+    expect(typeof workbook.value(sheet, 5, 11)).toBe("number");
+    const out = await executeWrite(port, planWrite(source, RECIPE, { place: "beside", mode: "formula" }));
+    expect(out.status).toBe("blocked");
+    expect(workbook.input(sheet, 1, 10)).toBeNull();
+  });
+
+  test("undo of a formula write clears the formula and its whole spill", async () => {
+    const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
+    const sheet = loadDemo(workbook);
+    const port = new MemoryPort(workbook);
+    const source = await readBasisSource(port, { sheet, address: "A1:H241" });
+    const out = await executeWrite(port, planWrite(source, RECIPE, { place: "beside", mode: "formula" }));
+    if (out.status !== "written") throw new Error("not written");
+    expect(await port.isEmpty(sheet, "J1:L241")).toBe(false);
+    await undoWrite(port, out.undo);
+    expect(await port.isEmpty(sheet, "J1:L241")).toBe(true);
+    expect(workbook.value(sheet, 2, 4)).toBe(DEMO_SHEETS[0].values[1][3]);
   });
 });
 
