@@ -184,6 +184,7 @@ function readAligned(
   headers: "auto" | "yes" | "no",
   names: string[],
   notes: Diagnostic[],
+  ownRows: number[] = [],
 ): Table[] {
   let decision: boolean | null = headers === "yes" ? true : headers === "no" ? false : null;
   if (decision === null) {
@@ -235,6 +236,7 @@ function readAligned(
     }
   }
   // A range that ends earlier than the others is blank below its end.
+  for (const t of tables) ownRows.push(t.rows);
   return tables.map((t) => padTable(t, n));
 }
 
@@ -304,7 +306,8 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     }
   }
   const readNotes: Diagnostic[] = [];
-  const tables = readAligned(ranges, headers, names, readNotes);
+  const ownRows: number[] = [];
+  const tables = readAligned(ranges, headers, names, readNotes, ownRows);
   const [labelTable, predTable] = tables;
   singleColumn(labelTable);
   const labelColumn = labelTable.columns[0];
@@ -451,7 +454,9 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
   }
   fit.diagnostics.push(...added);
 
-  const trainingRows = encodeRows(built.encoding, predictors, { argument: "predictors", headers: predTable.header ? "yes" : "no" });
+  const trainingRows =
+    encodedFromTable(built.encoding, predTable, ownRows[1], predictors) ??
+    encodeRows(built.encoding, predictors, { argument: "predictors", headers: predTable.header ? "yes" : "no" });
   return {
     kind: fit.kind,
     fit,
@@ -468,6 +473,64 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     usesOffset: offset !== null,
     threshold: options.threshold ?? 0.5,
   };
+}
+
+/**
+ * The training rows as encodeRows would encode them from the predictor cells, taken from the parsed
+ * table instead of parsing the cells again, when every column is numeric (or ignored) and the header
+ * cells sit at their own positions; otherwise null (the caller encodes the cells). A number column of
+ * the table holds exactly what encodeRows reads (blank = missing; text cannot occur in it), so the
+ * values, the per-row MISSING_FOR_SCORING problems and the NaN rows are the same.
+ * @param own data rows of the predictors range itself (before padding to the other ranges)
+ */
+function encodedFromTable(encoding: DesignEncoding, table: Table, own: number, cells: CellValue[][]): EncodedRows | null {
+  if (own === undefined || own > table.rows) return null;
+  const header = Array.isArray(cells) && Array.isArray(cells[0]) ? (cells[0] as CellValue[]) : null;
+  for (let k = 0; k < encoding.columns.length; k++) {
+    const c = encoding.columns[k];
+    if (c.kind === "ignored") continue;
+    if (c.kind !== "number") return null;
+    const tc = table.columns[k];
+    if (!tc || tc.kind === "text" || tc.name !== c.name) return null;
+    if (table.header) {
+      // Columns are matched by name: take the fast way only when the name sits at its own position.
+      if (!header) return null;
+      const v = header[k];
+      if (typeof v !== "string" || v.trim() !== c.name) return null;
+      for (let j = 0; j < k; j++) {
+        const w = header[j];
+        if (typeof w === "string" && w.trim() === c.name) return null;
+      }
+    }
+  }
+  const start = table.firstRow - 1;
+  const ok = new Uint8Array(own).fill(1);
+  const problems: RowProblem[] = [];
+  const columns: Float64Array[] = [];
+  for (let k = 0; k < encoding.columns.length; k++) {
+    const c = encoding.columns[k];
+    if (c.kind === "ignored") continue;
+    const tc = table.columns[k] as NumericColumn;
+    columns.push(tc.values.slice(0, own));
+    const missing = tc.missing;
+    for (let i = 0; i < own; i++) {
+      // A missing value is a problem of that row only (the first column missing names it).
+      if (missing[i] && ok[i]) {
+        ok[i] = 0;
+        problems.push({
+          index: i,
+          code: "MISSING_FOR_SCORING",
+          column: c.name,
+          message: formatMessage("MISSING_FOR_SCORING", { row: start + i + 1, column: c.name }),
+        });
+      }
+    }
+  }
+  if (problems.length > 0) {
+    for (let i = 0; i < own; i++) if (!ok[i]) for (const col of columns) col[i] = NaN;
+    problems.sort((a, b) => a.index - b.index);
+  }
+  return { design: { rows: own, columns, names: encoding.terms.slice() }, ok, problems, header: table.header, firstRow: start + 1 };
 }
 
 /** Training predictors may be trimmed shorter than the labels: rows past their end are missing. */

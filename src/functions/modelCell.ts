@@ -12,7 +12,7 @@ import { trainModel, type ModelOptions, type TrainedModel } from "../engine/mode
 import type { CellValue, Diagnostic } from "../engine/types";
 import { cellCount, contentKey, sharedFitCache } from "../shared/fitCache";
 import { FIT_OPTIONS, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
-import { checkPayload } from "./payload";
+import { checkPayload, surelyTooLarge, type PayloadPart } from "./payload";
 import { required } from "./required";
 
 export type FitCellOptions = ParsedOptions<typeof FIT_OPTIONS>;
@@ -78,12 +78,31 @@ export function fittedModel(
 ): TrainedModel {
   const l = required(labels, "labels");
   const p = required(predictors, "predictors");
-  checkPayload(
-    [{ argument: "labels", cells: l }, { argument: "predictors", cells: p }, ...extraInputs],
-    extraOutputCells,
-  );
-  return modelCache().getOrCreate(modelCacheKey(l, p, options.model), cellCount(l, p), () => trainModel(l, p, options.model));
+  const parts: PayloadPart[] = [{ argument: "labels", cells: l }, { argument: "predictors", cells: p }, ...extraInputs];
+  // A call the cheapest bound rejects is refused before its cells are hashed.
+  if (surelyTooLarge(parts, extraOutputCells)) checkPayload(parts, extraOutputCells);
+  const key = modelCacheKey(l, p, options.model);
+  // Same content, same sizes: a cached model's inputs keep the estimate made when it was fitted.
+  const cache = modelCache();
+  const known = cache.has(key) ? payloadSizes.get(key) : undefined;
+  if (known) {
+    parts[0].bytes = known[0];
+    parts[1].bytes = known[1];
+  }
+  checkPayload(parts, extraOutputCells);
+  if (!known && parts[0].bytes !== undefined && parts[1].bytes !== undefined) {
+    if (payloadSizes.size >= PAYLOAD_SIZES_KEPT) payloadSizes.delete(payloadSizes.keys().next().value as string);
+    payloadSizes.set(key, [parts[0].bytes, parts[1].bytes]);
+  }
+  return cache.getOrCreate(key, cellCount(l, p), () => trainModel(l, p, options.model));
 }
+
+/**
+ * Payload estimates (labels, predictors) of recent model keys, oldest first; at most
+ * PAYLOAD_SIZES_KEPT. Used only while the key's model is cached (so clearing the cache forgets them).
+ */
+const payloadSizes = new Map<string, [number, number]>();
+const PAYLOAD_SIZES_KEPT = 64;
 
 /** The first diagnostic of severity "error" (the fit has no usable estimates), or null. */
 export function fitFailure(model: TrainedModel): Diagnostic | null {

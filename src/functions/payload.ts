@@ -28,6 +28,11 @@ const MAX_NONTEXT_CELL_BYTES = 25;
 export interface PayloadPart {
   argument: string;
   cells: unknown;
+  /**
+   * The part's estimateBytes, when already known (e.g. remembered from an earlier call on the same
+   * content); checkPayload fills it in when it computes it.
+   */
+  bytes?: number;
 }
 
 function cellsIn(value: unknown): number {
@@ -37,9 +42,127 @@ function cellsIn(value: unknown): number {
   return n;
 }
 
+/** Exact powers of ten 10^0 .. 10^22 (every one is a double without rounding). */
+const POW10: number[] = [];
+for (let i = 0, p = 1; i <= 22; i++, p *= 10) POW10.push(p);
+const SPLIT = 134217729; // 2^27 + 1, Dekker's splitting constant
+const BITS_F64 = new Float64Array(1);
+const BITS_U32 = new Uint32Array(BITS_F64.buffer);
+
+/** Decimal digits of a non-negative integer below 2^53. */
+function integerDigits(x: number): number {
+  let d = 1;
+  while (d < 16 && x >= POW10[d]) d++;
+  while (d <= 22 && x >= POW10[d]) d++;
+  return d;
+}
+
+/** True when the decimal with `p` significant digits nearest to x (> 0, n = its decimal exponent) reads back as x. */
+function roundTrips(x: number, p: number, n: number): boolean {
+  const m = p - n;
+  if (m >= 0) {
+    const d = Math.round(x * POW10[m]);
+    // d and 10^m are exact doubles, so the quotient is the correctly rounded value of the decimal.
+    return d / POW10[m] === x;
+  }
+  const d = Math.round(x / POW10[-m]);
+  return d * POW10[-m] === x;
+}
+
+/**
+ * Length of String(x) for a finite number, without building the string: the count k of significant
+ * digits of the shortest decimal that reads back as x and its exponent n give the length by the
+ * ECMAScript Number::toString layout (ECMA-262, section Number::toString). k <= 15 is found by exact
+ * scaling with the powers 10^0..10^22 (a correctly rounded product or quotient of exact operands is
+ * what reading the decimal gives); 16 against 17 digits is decided by an error-free product
+ * (T. J. Dekker, "A floating-point technique for extending the available precision", Numer. Math.
+ * 18 (1971)) compared with half the spacing of doubles around x. Anything this cannot settle with a
+ * clear margin (powers of two, exact ties, numbers outside 1e-6 .. 2^52) falls back to String(x).
+ */
+export function numberTextLength(x: number): number {
+  const sign = x < 0 ? 1 : 0;
+  const a = sign ? -x : x;
+  if (a === 0) return 1; // "0" (also for -0)
+  if (Number.isInteger(a)) {
+    if (a <= 9007199254740992) return sign + integerDigits(a);
+    return String(x).length;
+  }
+  if (!(a >= 1e-6 && a < 4503599627370496)) return String(x).length;
+  // n: 10^(n-1) <= a < 10^n, with a in (1e-6, 2^52) so n is in -5 .. 16.
+  let n = Math.floor(Math.log10(a)) + 1;
+  if (n >= 0 && n <= 22 && a >= POW10[n]) n++;
+  else if (n - 1 >= 0 && a < POW10[n - 1]) n--;
+  else if (n - 1 < 0 && a * POW10[1 - n] < 1) n--;
+  if (n < -5 || n > 16) return String(x).length;
+  let k: number;
+  let nOut = n;
+  if (roundTrips(a, 15, n)) {
+    // The smallest p in 1..15 that reads back (a p-digit decimal is also a (p+1)-digit one).
+    let lo = 1;
+    let hi = 15;
+    while (lo < hi) {
+      const mid = (lo + hi) >> 1;
+      if (roundTrips(a, mid, n)) hi = mid;
+      else lo = mid + 1;
+    }
+    const m = lo - n;
+    let d = m >= 0 ? Math.round(a * POW10[m]) : Math.round(a / POW10[-m]);
+    const digits = integerDigits(d);
+    nOut = n + (digits - lo);
+    while (d % 10 === 0) d /= 10;
+    k = integerDigits(d);
+  } else {
+    const sixteen = sixteenDigitsRoundTrip(a, n);
+    if (sixteen === null) return String(x).length;
+    k = sixteen ? 16 : 17;
+  }
+  return sign + layoutLength(k, nOut);
+}
+
+/** Whether a 16-digit decimal reads back as a (n as in numberTextLength), or null when too close to call. */
+function sixteenDigitsRoundTrip(a: number, n: number): boolean | null {
+  const m = 16 - n;
+  if (m < 0 || m > 22) return null;
+  BITS_F64[0] = a;
+  const hiBits = BITS_U32[1];
+  // A power of two has a narrower gap below it than above: leave it to String().
+  if ((hiBits & 0xfffff) === 0 && BITS_U32[0] === 0) return null;
+  const exponent = ((hiBits >>> 20) & 0x7ff) - 1075; // ulp(a) = 2^exponent
+  if (exponent < -1074 + 52) return null;
+  const b = POW10[m];
+  // Error-free product a * 10^m = ph + pl (Dekker).
+  const ph = a * b;
+  let t = SPLIT * a;
+  const ah = t - (t - a);
+  const al = a - ah;
+  t = SPLIT * b;
+  const bh = t - (t - b);
+  const bl = b - bh;
+  const pl = ((ah * bh - ph) + ah * bl + al * bh) + al * bl;
+  const r = Math.round(ph);
+  if (r < 1e15 || r >= 1e16) return null;
+  let frac = Math.abs((ph - r) + pl);
+  if (frac > 0.5) frac = 1 - frac;
+  // Half the spacing of doubles at a (2^(exponent - 1), built from its bits), scaled by 10^m.
+  BITS_U32[0] = 0;
+  BITS_U32[1] = (exponent - 1 + 1023) << 20;
+  const half = BITS_F64[0] * b;
+  if (Math.abs(frac - half) < 1e-6 * half) return null;
+  return frac < half;
+}
+
+/** Length of Number::toString's text of k significant digits with decimal exponent n (no sign). */
+function layoutLength(k: number, n: number): number {
+  if (k <= n && n <= 21) return n;
+  if (0 < n && n <= 21) return k + 1;
+  if (-6 < n && n <= 0) return 2 - n + k;
+  const e = Math.abs(n - 1);
+  return k + (k > 1 ? 1 : 0) + 2 + (e >= 100 ? 3 : e >= 10 ? 2 : 1);
+}
+
 function cellBytes(v: unknown): number {
   if (v === null || v === undefined) return 5;
-  if (typeof v === "number") return String(v).length + 1;
+  if (typeof v === "number") return numberTextLength(v) + 1;
   if (typeof v === "boolean") return v ? 5 : 6;
   if (typeof v === "string") return v.length + 3;
   return String(v).length + 3;
@@ -65,6 +188,20 @@ export function estimateBytes(value: unknown): number {
  */
 export function checkPayload(parts: PayloadPart[], outputCells = 0, limit = PAYLOAD_LIMIT_BYTES): number {
   const cells = parts.map((p) => cellsIn(p.cells));
+  return checkCounted(parts, cells, outputCells, limit);
+}
+
+/**
+ * True when the cheapest bound (5 bytes per cell) already puts the call over `limit`: checkPayload
+ * rejects such a call without looking at any value.
+ */
+export function surelyTooLarge(parts: PayloadPart[], outputCells = 0, limit = PAYLOAD_LIMIT_BYTES): boolean {
+  let totalCells = 0;
+  for (const p of parts) totalCells += cellsIn(p.cells);
+  return totalCells * MIN_CELL_BYTES + outputCells * OUTPUT_BYTES_PER_CELL > limit;
+}
+
+function checkCounted(parts: PayloadPart[], cells: number[], outputCells: number, limit: number): number {
   const totalCells = cells.reduce((a, b) => a + b, 0);
   const outputBytes = outputCells * OUTPUT_BYTES_PER_CELL;
   let bytes: number;
@@ -74,7 +211,7 @@ export function checkPayload(parts: PayloadPart[], outputCells = 0, limit = PAYL
   } else if (totalCells * MAX_NONTEXT_CELL_BYTES + outputBytes <= limit && !parts.some((p) => hasLongText(p.cells))) {
     return totalCells * MAX_NONTEXT_CELL_BYTES + outputBytes; // an upper bound, already under the limit
   } else {
-    sizes = parts.map((p) => estimateBytes(p.cells));
+    sizes = parts.map((p) => (p.bytes ??= estimateBytes(p.cells)));
     bytes = sizes.reduce((a, b) => a + b, 0) + outputBytes;
   }
   if (bytes > limit) {

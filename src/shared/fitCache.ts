@@ -60,6 +60,11 @@ export class FitCache<T = unknown> {
     return entry.value;
   }
 
+  /** True when `key` is cached (without marking it used or counting a hit). */
+  has(key: string): boolean {
+    return this.entries.has(key);
+  }
+
   /** Store `value` under `key`; `cells` is the size of the inputs it was computed from. */
   set(key: string, value: T, cells: number): void {
     this.remove(key);
@@ -164,7 +169,16 @@ class KeyHasher {
     } else if (Array.isArray(v)) {
       this.unit(TAG.array);
       this.unit(v.length);
-      for (let i = 0; i < v.length; i++) this.value(v[i]);
+      for (let i = 0; i < v.length; i++) {
+        const x = v[i];
+        // Numbers (most cells) inline: the same units as value() feeds, without the call.
+        if (typeof x === "number") {
+          this.unit(TAG.number);
+          F64[0] = x === 0 ? 0 : x;
+          this.unit(U32[0]);
+          this.unit(U32[1]);
+        } else this.value(x);
+      }
     } else if (ArrayBuffer.isView(v) && "length" in v) {
       const arr = v as unknown as ArrayLike<number>;
       this.unit(TAG.typed);
