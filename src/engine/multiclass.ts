@@ -65,6 +65,7 @@ import {
   RANK_TOLERANCE,
   weightedCrossProduct,
 } from "./linalg";
+import { accumulateCrossProducts, accumulateWeightedGrams } from "./blockAccumulate";
 import { exampleRows, formatMessage, listNames, problem } from "./messages";
 import type { Diagnostic, DesignMatrix, ModelFit, MulticlassFitOptions } from "./types";
 
@@ -189,6 +190,19 @@ export function fitMulticlassModel(
   const missingPerColumn = new Int32Array(p0);
   let missingLabels = 0;
   let skipped = 0;
+  // Non-finite predictors, column by column (contiguous reads); x - x is NaN exactly for NaN and +-Infinity.
+  const incomplete = new Uint8Array(n0);
+  for (let j = 0; j < p0; j++) {
+    const x = X.columns[j];
+    let missing = 0;
+    for (let i = 0; i < n0; i++) {
+      if (x[i] - x[i] !== 0) {
+        missing++;
+        incomplete[i] = 1;
+      }
+    }
+    missingPerColumn[j] = missing;
+  }
   const used: number[] = [];
   for (let i = 0; i < n0; i++) {
     const c = classIndex[i];
@@ -197,14 +211,8 @@ export function fitMulticlassModel(
     }
     const wi = weights ? weights[i] : 1;
     if (!(wi >= 0) || !Number.isFinite(wi)) throw problem("BAD_WEIGHT", { row: i + 1, value: wi });
-    let complete = c >= 0;
+    const complete = c >= 0 && incomplete[i] === 0;
     if (c < 0) missingLabels++;
-    for (let j = 0; j < p0; j++) {
-      if (!Number.isFinite(X.columns[j][i])) {
-        missingPerColumn[j]++;
-        complete = false;
-      }
-    }
     if (!complete) {
       skipped++;
       continue;
@@ -541,15 +549,19 @@ function keepColumns(prep: Prepared, keep: readonly number[]): void {
 // Newton-Raphson
 // ================================================================================================
 
-/** Rows per chunk of the kernel: chunk buffers (CHUNK * (E + pairs + 1) doubles) stay in L1/L2 cache. */
+/** Below this linear predictor exp() cannot overflow (exp(709.78) is the largest finite double). */
+const EXP_SAFE = 700;
+
+/** Rows per chunk of the kernel: the chunk's columns and weights (CHUNK * (q + E + pairs) doubles) stay in cache. */
 const CHUNK = 256;
 
 /**
  * The likelihood kernel: for parameters theta (equation-major, q per equation, internal scale),
  * returns the weighted log-likelihood; when `derivs` is set also fills the score X'(w(y - p)) and
  * the packed information blocks. Rows are processed in chunks of {@link CHUNK}: per chunk the
- * probabilities and the block weights v_ef = w p_e (delta_ef - p_f) are computed once, then every
- * block entry (a <= b) is a short contiguous dot product over the chunk. Allocates nothing per row.
+ * probabilities and the block weights v_ef = w p_e (delta_ef - p_f) are computed once, then the score and every
+ * block entry (a <= b) are accumulated over the chunk by the tiled kernels of blockAccumulate.ts.
+ * Allocates nothing per row.
  */
 class SoftmaxKernel {
   readonly q: number;
@@ -560,13 +572,12 @@ class SoftmaxKernel {
   private readonly refForm: boolean;
   private readonly eta: Float64Array;
   private readonly etaBuf: Float64Array;
-  /** Chunk buffers: residuals r_e = w (y_e - p_e) [e * CHUNK + i], block weights [pair * CHUNK + i], products. */
+  /** Chunk buffers: residuals r_e = w (y_e - p_e) [e * CHUNK + i], block weights [pair * CHUNK + i]. */
   private readonly resid: Float64Array;
   private readonly v: Float64Array;
-  private readonly prodBuf: Float64Array;
   private readonly probRow: Float64Array;
   readonly score: Float64Array;
-  /** Information blocks, packed: ((a,b) upper-triangle index) * pairs + pair(e,f), e <= f. */
+  /** Information blocks: [(a * q + b) * pairs + pair(e,f)] for a <= b and e <= f (see accumulateWeightedGrams). */
   readonly blocks: Float64Array;
 
   constructor(
@@ -586,9 +597,8 @@ class SoftmaxKernel {
     this.probRow = new Float64Array(this.E);
     this.resid = new Float64Array(this.E * CHUNK);
     this.v = new Float64Array(this.pairs * CHUNK);
-    this.prodBuf = new Float64Array(CHUNK);
     this.score = new Float64Array(this.E * this.q);
-    this.blocks = new Float64Array(((this.q * (this.q + 1)) / 2) * this.pairs);
+    this.blocks = new Float64Array(this.q * this.q * this.pairs);
   }
 
   /**
@@ -596,7 +606,7 @@ class SoftmaxKernel {
    *   "information" the score and the information blocks
    */
   evaluate(theta: Float64Array, mode: "value" | "score" | "information"): number {
-    const { q, E, pairs, eta, etaBuf, probRow, resid, v, prodBuf, score, blocks, refForm, eqOfClass } = this;
+    const { q, E, pairs, eta, etaBuf, probRow, resid, v, score, blocks, refForm, eqOfClass } = this;
     const { n, z, w, y } = this.prep;
     const derivs = mode !== "value";
     const info = mode === "information";
@@ -615,16 +625,19 @@ class SoftmaxKernel {
           eta[e] = s;
           if (s > max) max = s;
         }
-        // Stable softmax: subtract the row maximum; log-sum-exp for the log-likelihood.
-        let sum = refForm ? Math.exp(-max) : 0;
+        // Stable softmax: subtract the row maximum; log-sum-exp for the log-likelihood. In the
+        // reference form no exponential can overflow while every eta is below EXP_SAFE, so the
+        // shift is 0 then (the reference term is exp(0) = 1: one exponential fewer per row).
+        const shift = refForm && max <= EXP_SAFE ? 0 : max;
+        let sum = refForm ? (shift === 0 ? 1 : Math.exp(-shift)) : 0;
         for (let e = 0; e < E; e++) {
-          const t = Math.exp(eta[e] - max);
+          const t = Math.exp(eta[e] - shift);
           probRow[e] = t;
           sum += t;
         }
         const ye = eqOfClass[y[row]];
         const wi = w[row];
-        logLik += wi * ((ye >= 0 ? eta[ye] : 0) - max - Math.log(sum));
+        logLik += wi * ((ye >= 0 ? eta[ye] : 0) - shift - Math.log(sum));
         if (!derivs) continue;
         for (let e = 0; e < E; e++) probRow[e] /= sum;
         for (let e = 0; e < E; e++) resid[e * CHUNK + i] = wi * ((e === ye ? 1 : 0) - probRow[e]);
@@ -639,18 +652,9 @@ class SoftmaxKernel {
         }
       }
       if (!derivs) continue;
-      // Score: X' r_e, column by column over the chunk.
-      for (let j = 0; j < q; j++) {
-        const zj = z[j];
-        for (let e = 0; e < E; e++) {
-          const off = e * CHUNK;
-          let s = 0;
-          for (let i = 0; i < L; i++) s += resid[off + i] * zj[r0 + i];
-          score[e * q + j] += s;
-        }
-      }
-      if (!info) continue;
-      accumulateBlocks(z, r0, L, q, pairs, v, prodBuf, blocks);
+      // Score: X' r_e over the chunk; information: X' diag(v_ef) X, upper triangles, over the chunk.
+      accumulateCrossProducts(z, r0, L, resid, CHUNK, E, score);
+      if (info) accumulateWeightedGrams(z, r0, L, v, CHUNK, pairs, blocks);
     }
     return logLik;
   }
@@ -663,13 +667,11 @@ class SoftmaxKernel {
     let pr = 0;
     for (let e = 0; e < E; e++) {
       for (let f = e; f < E; f++) {
-        let idx = 0;
         for (let a = 0; a < q; a++) {
           for (let b = a; b < q; b++) {
-            const val = blocks[idx * pairs + pr];
+            const val = blocks[(a * q + b) * pairs + pr];
             out[(e * q + a) * M + f * q + b] = val;
             out[(e * q + b) * M + f * q + a] = val;
-            idx++;
           }
         }
         pr++;
@@ -679,7 +681,10 @@ class SoftmaxKernel {
   }
 }
 
-/** eta[e * CHUNK + i] = sum_j theta[e * q + j] z_j[r0 + i] for the rows of one chunk. */
+/**
+ * eta[e * CHUNK + i] = sum_j theta[e * q + j] z_j[r0 + i] for the rows of one chunk, four columns
+ * per pass (each eta is loaded and stored once per four columns).
+ */
 function linearPredictors(
   z: readonly Float64Array[],
   theta: Float64Array,
@@ -691,66 +696,27 @@ function linearPredictors(
 ): void {
   for (let e = 0; e < E; e++) {
     const off = e * CHUNK;
+    const t0 = e * q;
     etaBuf.fill(0, off, off + L);
-    for (let j = 0; j < q; j++) {
-      const c = theta[e * q + j];
-      if (c === 0) continue;
+    let j = 0;
+    for (; j + 4 <= q; j += 4) {
+      const c0 = theta[t0 + j];
+      const c1 = theta[t0 + j + 1];
+      const c2 = theta[t0 + j + 2];
+      const c3 = theta[t0 + j + 3];
+      const z0 = z[j];
+      const z1 = z[j + 1];
+      const z2 = z[j + 2];
+      const z3 = z[j + 3];
+      for (let i = 0; i < L; i++) {
+        const r = r0 + i;
+        etaBuf[off + i] += c0 * z0[r] + c1 * z1[r] + c2 * z2[r] + c3 * z3[r];
+      }
+    }
+    for (; j < q; j++) {
+      const c = theta[t0 + j];
       const zj = z[j];
       for (let i = 0; i < L; i++) etaBuf[off + i] += c * zj[r0 + i];
-    }
-  }
-}
-
-/**
- * Add one chunk's contribution to the packed information blocks: for each column pair (a <= b),
- * t_i = z_ia z_ib over the chunk, then one dot product with each pair's weights v, four pairs per
- * pass (t_i loaded once for four independent sums). Kept small and monomorphic so it optimizes well.
- */
-function accumulateBlocks(
-  z: readonly Float64Array[],
-  r0: number,
-  L: number,
-  q: number,
-  pairs: number,
-  v: Float64Array,
-  prodBuf: Float64Array,
-  blocks: Float64Array,
-): void {
-  let idx = 0;
-  for (let a = 0; a < q; a++) {
-    const za = z[a];
-    for (let b = a; b < q; b++) {
-      const zb = z[b];
-      for (let i = 0; i < L; i++) prodBuf[i] = za[r0 + i] * zb[r0 + i];
-      let k = 0;
-      for (; k + 4 <= pairs; k += 4) {
-        const o0 = k * CHUNK;
-        const o1 = o0 + CHUNK;
-        const o2 = o1 + CHUNK;
-        const o3 = o2 + CHUNK;
-        let s0 = 0;
-        let s1 = 0;
-        let s2 = 0;
-        let s3 = 0;
-        for (let i = 0; i < L; i++) {
-          const t = prodBuf[i];
-          s0 += v[o0 + i] * t;
-          s1 += v[o1 + i] * t;
-          s2 += v[o2 + i] * t;
-          s3 += v[o3 + i] * t;
-        }
-        blocks[idx + k] += s0;
-        blocks[idx + k + 1] += s1;
-        blocks[idx + k + 2] += s2;
-        blocks[idx + k + 3] += s3;
-      }
-      for (; k < pairs; k++) {
-        const off = k * CHUNK;
-        let s = 0;
-        for (let i = 0; i < L; i++) s += v[off + i] * prodBuf[i];
-        blocks[idx + k] += s;
-      }
-      idx += pairs;
     }
   }
 }
@@ -787,7 +753,7 @@ function newtonRaphson(
       tolerance: Math.max(opts.tolerance, WARM_START_TOLERANCE),
       maxIterations: Math.min(opts.maxIterations, WARM_START_MAX_ITERATIONS),
     };
-    const warm = everyClass ? runNewton(sub, K, equationClassIdx, symmetric, subTotal, subOpts, start, null) : null;
+    const warm = everyClass ? runNewton(sub, K, equationClassIdx, symmetric, subTotal, subOpts, start, null, false) : null;
     if (warm && warm.converged && warm.likelihoodInformation && warm.theta.every(Number.isFinite) && !(warm.finalStep && maxAbs(warm.finalStep) > 1)) {
       // The subsample's information, scaled up to the full weight, stands in for the full-data
       // information at the warm start (they differ by about 1/sqrt(subsample size)).
@@ -806,8 +772,12 @@ const WARM_START_SUBSAMPLE_ROWS = 5000;
 const WARM_START_MIN_CLASS_ROWS = 10;
 /** Iteration cap of the warm-start fit (a well-posed fit needs well under 10). */
 const WARM_START_MAX_ITERATIONS = 25;
-/** Convergence tolerance of the warm-start fit (its estimate only needs to be close). */
-const WARM_START_TOLERANCE = 1e-8;
+/**
+ * Convergence tolerance of the warm-start fit. Its estimate only needs to be close: it differs
+ * from the full-data estimate by the subsample's sampling error (about sqrt(n / subsample size)
+ * full-data standard errors per coefficient), far more than what a tighter tolerance would remove.
+ */
+const WARM_START_TOLERANCE = 1e-4;
 /**
  * Once an iteration changes the deviance by less than this (relative), the parameters are close
  * enough that the information barely changes from step to step: later steps reuse the last
@@ -890,6 +860,7 @@ function runNewton(
   opts: ResolvedOptions,
   start: Float64Array,
   startInformation: Float64Array | null,
+  requireDecrement = true,
 ): NewtonResult {
   const warmStarted = startInformation !== null;
   const kernel = new SoftmaxKernel(prep, K, equationClassIdx, symmetric);
@@ -944,6 +915,8 @@ function runNewton(
   };
 
   let logLik = kernel.evaluate(theta, startInformation ? "score" : "information");
+  // True while the kernel's information blocks are the ones at theta (so that pass can be skipped).
+  let informationAtTheta = !startInformation;
   let objective = objectiveOf(logLik, theta);
   penalizedSystem(theta, true, startInformation);
   let chol = cholesky(info, M);
@@ -960,10 +933,28 @@ function runNewton(
   const solveStep = (): Float64Array =>
     inverseApprox ? multiplyVector(inverseApprox, M, scoreP) : choleskySolve(chol.factor, M, scoreP);
   const scoreBefore = new Float64Array(M);
+  // Newton decrement g' H^-1 g at the previous iterate (for the prediction below).
+  let previousDecrement = NaN;
 
   while (iterations < opts.maxIterations && chol.ok) {
     const delta = solveStep();
     scoreBefore.set(scoreP);
+    let decrementNow = 0;
+    for (let r = 0; r < M; r++) decrementNow += delta[r] * scoreP[r];
+    // The full step is nearly always accepted. When the information will be needed at the trial
+    // point anyway (a fresh-information step, or the last step of an information-reusing run, after
+    // which the final information is computed there), the trial is evaluated with it at once: one
+    // pass over the rows instead of two. The prediction only chooses what the pass computes; the
+    // iterates are those of the plain method.
+    const contraction = previousDecrement > 0 ? decrementNow / previousDecrement : 1;
+    const predictedLast =
+      requireDecrement &&
+      decrementNow * contraction < REUSE_DECREMENT / 4 &&
+      decrementNow < (opts.tolerance / 4) * (0.1 + 2 * Math.abs(objective));
+    const predictedFresh =
+      !reuseAllowed || chordSteps >= MAX_REUSED_STEPS || (!warmStarted && !(lastChange < REUSE_INFORMATION_BELOW));
+    const wantInformation = predictedFresh || predictedLast;
+    previousDecrement = decrementNow;
     // Step halving: shrink the step until the penalized deviance does not increase.
     let step = 1;
     let newLl = NaN;
@@ -972,12 +963,17 @@ function runNewton(
     for (let h = 0; h <= MAX_HALVINGS; h++) {
       for (let r = 0; r < M; r++) trial[r] = theta[r] + step * delta[r];
       // The score comes along cheaply; it is the one needed next when the information is reused.
-      newLl = kernel.evaluate(trial, reuseAllowed ? "score" : "value");
+      const mode = h === 0 && wantInformation ? "information" : reuseAllowed ? "score" : "value";
+      newLl = kernel.evaluate(trial, mode);
+      informationAtTheta = mode === "information";
       newObj = objectiveOf(newLl, trial);
       if (Number.isFinite(newObj) && newObj <= objective + slack) break;
       step /= 2;
     }
-    if (!Number.isFinite(newObj) || newObj > objective + slack) break;
+    if (!Number.isFinite(newObj) || newObj > objective + slack) {
+      informationAtTheta = false;
+      break;
+    }
     iterations++;
     lastStep = new Float64Array(M);
     for (let r = 0; r < M; r++) lastStep[r] = step * delta[r];
@@ -995,6 +991,11 @@ function runNewton(
       // thousandths of a standard error short; also ask for a Newton decrement g' H^-1 g (about
       // the squared distance to the maximum in standard-error units) below REUSE_DECREMENT.
       // kernel.score is the score at theta here (the accepted trial was evaluated with it).
+      // A warm-start fit (requireDecrement false) only needs to be close: the deviance rule is enough.
+      if (!requireDecrement) {
+        converged = true;
+        break;
+      }
       penalizedSystem(theta, false);
       const next = solveStep();
       let decrement = 0;
@@ -1005,13 +1006,19 @@ function runNewton(
       }
     }
     // A halved step means the quadratic model was poor: always refresh the information then.
-    // A long run of reused-information steps means the stand-in is poor: refresh it too.
+    // A long run of reused-information steps means the stand-in is poor: refresh it too. When the
+    // information at theta is at hand already, it is used (an exact Newton step costs no more then).
     const fresh =
-      !reuseAllowed || step < 1 || chordSteps >= MAX_REUSED_STEPS || (!warmStarted && lastChange >= REUSE_INFORMATION_BELOW);
+      informationAtTheta ||
+      !reuseAllowed ||
+      step < 1 ||
+      chordSteps >= MAX_REUSED_STEPS ||
+      (!warmStarted && lastChange >= REUSE_INFORMATION_BELOW);
     chordSteps = fresh ? 0 : chordSteps + 1;
     // Not fresh: the kernel's score is the one of the accepted trial point (evaluated last).
     if (fresh) {
-      kernel.evaluate(theta, "information");
+      if (!informationAtTheta) kernel.evaluate(theta, "information");
+      informationAtTheta = true;
       penalizedSystem(theta, true);
       chol = cholesky(info, M);
       inverseApprox = null;
@@ -1023,9 +1030,12 @@ function runNewton(
       bfgsInverseUpdate(inverseApprox, M, lastStep, scoreBefore);
     }
   }
-  // Information, its inverse and one more Newton step at the final theta.
-  logLik = kernel.evaluate(theta, "information");
-  objective = objectiveOf(logLik, theta);
+  // Information, its inverse and one more Newton step at the final theta (the last pass computed
+  // them already when informationAtTheta: the same numbers).
+  if (!informationAtTheta) {
+    logLik = kernel.evaluate(theta, "information");
+    objective = objectiveOf(logLik, theta);
+  }
   const likelihoodInformation = kernel.information(new Float64Array(M * M));
   penalizedSystem(theta, true, likelihoodInformation);
   chol = cholesky(info, M);
@@ -1040,10 +1050,23 @@ function runNewton(
     // (the step is tiny, as in R's glm, whose covariance uses the weights of its previous iterate).
     if (converged) {
       for (let r = 0; r < M; r++) trial[r] = theta[r] + finalStep[r];
+      // Predicted gain of the step, g' H^-1 g / 2 (exact for the quadratic model; the cubic term is
+      // negligible this close to the maximum). When a pass over the rows is expensive and the gain
+      // is below what the check below can resolve (the rounding allowance), the step is taken
+      // without that pass, and the objective is the model's.
+      let gain = 0;
+      for (let r = 0; r < M; r++) gain += 0.5 * finalStep[r] * scoreP[r];
+      const allowance = POLISH_SLACK * (1 + Math.abs(objective));
+      if (reuseAllowed && gain >= 0 && gain <= allowance) {
+        theta.set(trial);
+        objective -= gain;
+        logLik = penaltyOf(theta) - objective;
+        return { theta, likelihoodInformation, logLik, objective, iterations, converged, lastChange, inverseInformation, finalStep, lastStep };
+      }
       const ll = kernel.evaluate(trial, "value");
       const obj = objectiveOf(ll, trial);
       // Near the maximum the change is below the rounding of a sum over all rows: allow for it.
-      if (Number.isFinite(obj) && obj <= objective + POLISH_SLACK * (1 + Math.abs(objective))) {
+      if (Number.isFinite(obj) && obj <= objective + allowance) {
         theta.set(trial);
         logLik = ll;
         objective = obj;
