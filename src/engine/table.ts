@@ -161,32 +161,42 @@ export function detectHeader(rows: CellValue[][]): { header: boolean; evidence: 
     if (k === TEXT) anyText = true;
   }
   if (!anyText) return { header: false, evidence: "none" };
-  let strong = false;
-  for (let j = 0; j < first.length; j++) {
-    if (classify(first[j]) !== TEXT) continue;
-    const name = textOf(first[j]);
-    let numeric = 0;
-    let text = 0;
-    let recurs = false;
-    for (let i = 1; i < rows.length; i++) {
-      const v = rows[i][j];
+  // One row-major pass over the rows below, for every column whose first cell is text: count its
+  // numbers/booleans and text, and note whether the first cell's text recurs.
+  const width = first.length;
+  const nameOf: (string | null)[] = new Array(width);
+  for (let j = 0; j < width; j++) nameOf[j] = classify(first[j]) === TEXT ? textOf(first[j]) : null;
+  const numeric = new Int32Array(width);
+  const text = new Int32Array(width);
+  const recurs = new Uint8Array(width);
+  for (let i = 1; i < rows.length; i++) {
+    const row = rows[i];
+    for (let j = 0; j < width; j++) {
+      const name = nameOf[j];
+      if (name === null || recurs[j]) continue;
+      const v = row[j];
+      if (typeof v === "number" || typeof v === "boolean") {
+        numeric[j]++;
+        continue;
+      }
       const k = classify(v);
-      if (k === NUM || k === BOOL) numeric++;
+      if (k === NUM) numeric[j]++;
       else if (k === TEXT) {
-        text++;
-        if (textOf(v) === name) {
-          recurs = true;
-          break;
-        }
+        text[j]++;
+        if (textOf(v) === name) recurs[j] = 1;
       }
     }
+  }
+  let strong = false;
+  for (let j = 0; j < width; j++) {
+    if (nameOf[j] === null) continue;
     // Text over a column of numbers/booleans is a name (strong evidence).
-    if (text === 0 && numeric > 0) {
+    if (text[j] === 0 && numeric[j] > 0) {
       strong = true;
       continue;
     }
     // In a text column a category value recurs and a name does not (weak evidence).
-    if (recurs) return { header: false, evidence: "weak" };
+    if (recurs[j]) return { header: false, evidence: "weak" };
   }
   return { header: true, evidence: strong ? "strong" : "weak" };
 }
@@ -222,8 +232,7 @@ export function readTable(cells: CellValue[][], opts: ReadTableOptions): Table {
   if (n === 0) throw problem("EMPTY_RANGE", { argument });
 
   const names = makeNames(header ? rowsIn[0] : null, width, prefix);
-  const columns: TableColumn[] = [];
-  for (let j = 0; j < width; j++) columns.push(readColumn(rowsIn, start, j, names[j], argument));
+  const columns = readColumns(rowsIn, start, width, names, argument);
   return {
     argument,
     header,
@@ -284,34 +293,94 @@ function makeNames(headerRow: CellValue[] | null, width: number, prefix: string)
   return names;
 }
 
-function readColumn(rows: CellValue[][], start: number, j: number, name: string, argument: string): TableColumn {
+/**
+ * Read every column of `rows` (data from row `start`) in one row-major pass: each cell is classified
+ * and, when it is a number or boolean, converted into its column's Float64Array as it is met (the
+ * range arrives as rows, so walking it row by row touches each row once). The per-column decisions
+ * (kind, a 0 sent for a blank, the majority rule) and their errors then follow column by column, in
+ * the same order as reading one column after another would raise them.
+ */
+function readColumns(rows: CellValue[][], start: number, width: number, names: string[], argument: string): TableColumn[] {
   const n = rows.length - start;
-  const missing = new Uint8Array(n);
-  const kinds = new Uint8Array(n);
-  let nNum = 0;
-  let nBool = 0;
-  let nText = 0;
-  let nonZeroNumber = false;
-  let firstText = -1;
+  const kinds: Uint8Array[] = [];
+  const nums: Float64Array[] = [];
+  for (let j = 0; j < width; j++) {
+    kinds.push(new Uint8Array(n));
+    nums.push(new Float64Array(n));
+  }
+  const nNum = new Int32Array(width);
+  const nBool = new Int32Array(width);
+  const nText = new Int32Array(width);
+  const firstText = new Int32Array(width).fill(-1);
+  const nonZeroNumber = new Uint8Array(width);
+  const firstNonFinite = new Int32Array(width).fill(-1);
   for (let i = 0; i < n; i++) {
-    const v = rows[start + i][j];
-    const k = classify(v);
-    kinds[i] = k;
-    if (k === NUM) {
-      const x = numberOf(v);
-      // NaN and infinities are not valid values.
-      if (!Number.isFinite(x)) {
-        throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value: String(x) });
+    const row = rows[start + i];
+    for (let j = 0; j < width; j++) {
+      const v = row[j];
+      if (typeof v === "number") {
+        kinds[j][i] = NUM;
+        nums[j][i] = v;
+        // NaN and infinities are not valid values (reported below, in column order).
+        if (v - v !== 0) {
+          if (firstNonFinite[j] < 0) firstNonFinite[j] = i;
+        } else {
+          nNum[j]++;
+          // Only a real numeric 0 can be a blank sent by an older build.
+          if (v !== 0) nonZeroNumber[j] = 1;
+        }
+        continue;
       }
-      nNum++;
-      // Only a real numeric 0 can be a blank sent by an older build; the text "0" was typed.
-      if (x !== 0 || typeof v !== "number") nonZeroNumber = true;
-    } else if (k === BOOL) nBool++;
-    else if (k === TEXT) {
-      nText++;
-      if (firstText < 0) firstText = i;
+      const k = classify(v);
+      kinds[j][i] = k;
+      if (k === BLANK) nums[j][i] = NaN;
+      else if (k === NUM) {
+        // Numeric text: the text "0" was typed, so it is never a blank.
+        const x = numberOf(v);
+        nums[j][i] = x;
+        if (!Number.isFinite(x)) {
+          if (firstNonFinite[j] < 0) firstNonFinite[j] = i;
+        } else {
+          nNum[j]++;
+          nonZeroNumber[j] = 1;
+        }
+      } else if (k === BOOL) {
+        nums[j][i] = v ? 1 : 0;
+        nBool[j]++;
+      } else {
+        nText[j]++;
+        if (firstText[j] < 0) firstText[j] = i;
+      }
     }
   }
+  const columns: TableColumn[] = [];
+  for (let j = 0; j < width; j++) {
+    if (firstNonFinite[j] >= 0) {
+      const i = firstNonFinite[j];
+      throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value: String(nums[j][i]) });
+    }
+    columns.push(finishColumn(rows, start, j, names[j], argument, kinds[j], nums[j], nNum[j], nBool[j], nText[j], firstText[j], nonZeroNumber[j] === 1));
+  }
+  return columns;
+}
+
+function finishColumn(
+  rows: CellValue[][],
+  start: number,
+  j: number,
+  name: string,
+  argument: string,
+  kinds: Uint8Array,
+  nums: Float64Array,
+  nNumIn: number,
+  nBool: number,
+  nText: number,
+  firstText: number,
+  nonZeroNumber: boolean,
+): TableColumn {
+  const n = kinds.length;
+  const missing = new Uint8Array(n);
+  let nNum = nNumIn;
   // A 0 in a column whose other non-blank cells are all text is a blank sent as 0 by an older build.
   const zeroIsBlank = nText > 0 && nNum > 0 && !nonZeroNumber && nBool === 0;
   if (zeroIsBlank) nNum = 0;
@@ -332,15 +401,10 @@ function readColumn(rows: CellValue[][], start: number, j: number, name: string,
     }
     return { name, kind: "text", values, missing };
   }
-  const values = new Float64Array(n);
-  for (let i = 0; i < n; i++) {
-    if (kinds[i] === BLANK) {
-      values[i] = NaN;
-      missing[i] = 1;
-    } else values[i] = numberOf(rows[start + i][j]);
-  }
+  // Blank cells are missing (their value is already NaN).
+  for (let i = 0; i < n; i++) if (kinds[i] === BLANK) missing[i] = 1;
   const kind: ColumnKind = nNum + nBool === 0 ? "empty" : nNum === 0 ? "boolean" : "number";
-  return { name, kind, values, missing };
+  return { name, kind, values: nums, missing };
 }
 
 /** 1-based row of the range (as the user selected it) that holds data row `i` of `table`. */

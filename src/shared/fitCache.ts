@@ -171,13 +171,25 @@ class KeyHasher {
       this.unit(v.length);
       for (let i = 0; i < v.length; i++) {
         const x = v[i];
-        // Numbers (most cells) inline: the same units as value() feeds, without the call.
-        if (typeof x === "number") {
-          this.unit(TAG.number);
-          F64[0] = x === 0 ? 0 : x;
-          this.unit(U32[0]);
-          this.unit(U32[1]);
-        } else this.value(x);
+        if (typeof x !== "number") {
+          this.value(x);
+          continue;
+        }
+        // Numbers (most cells) inline, in locals: the same three units as value() feeds.
+        F64[0] = x === 0 ? 0 : x;
+        let a = this.a;
+        let b = this.b;
+        let n = this.n;
+        for (let u = 0; u < 3; u++) {
+          const c = u === 0 ? TAG.number : U32[u - 1];
+          a = Math.imul(a ^ c, 0x01000193);
+          b = Math.imul(b ^ (c + n), 0x5bd1e995);
+          b ^= b >>> 15;
+          n = (n + 1) | 0;
+        }
+        this.a = a;
+        this.b = b;
+        this.n = n;
       }
     } else if (ArrayBuffer.isView(v) && "length" in v) {
       const arr = v as unknown as ArrayLike<number>;
