@@ -181,8 +181,13 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
     }
     if (c.kind === "number" || c.kind === "boolean") {
       const v = c.values as Float64Array;
-      const out = new Float64Array(m);
-      for (let r = 0; r < m; r++) out[r] = v[inputRows[r]];
+      let out: Float64Array;
+      // Every row used: one block copy instead of a gather.
+      if (m === n && v.length === n) out = v.slice();
+      else {
+        out = new Float64Array(m);
+        for (let r = 0; r < m; r++) out[r] = v[inputRows[r]];
+      }
       columns.push({ name: c.name, kind: "number", source: c.kind, terms: [c.name] });
       designColumns.push(out);
       names.push(c.name);

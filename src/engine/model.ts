@@ -511,7 +511,8 @@ function encodedFromTable(encoding: DesignEncoding, table: Table, own: number, c
     const c = encoding.columns[k];
     if (c.kind === "ignored") continue;
     const tc = table.columns[k] as NumericColumn;
-    columns.push(tc.values.slice(0, own));
+    // The table is trainModel's own (the design holds copies): its column is taken as it is.
+    columns.push(own === tc.values.length ? tc.values : tc.values.slice(0, own));
     const missing = tc.missing;
     for (let i = 0; i < own; i++) {
       // A missing value is a problem of that row only (the first column missing names it).

@@ -96,7 +96,10 @@ export function numberTextLength(x: number): number {
   if (n < -5 || n > 16) return String(x).length;
   let k: number;
   let nOut = n;
-  if (roundTrips(a, 15, n)) {
+  // Full-precision data mostly needs 17 digits: settle that first, with one error-free product.
+  const sixteen = sixteenDigitsRoundTrip(a, n);
+  if (sixteen === false) k = 17;
+  else if (roundTrips(a, 15, n)) {
     // The smallest p in 1..15 that reads back (a p-digit decimal is also a (p+1)-digit one).
     let lo = 1;
     let hi = 15;
@@ -111,11 +114,8 @@ export function numberTextLength(x: number): number {
     nOut = n + (digits - lo);
     while (d % 10 === 0) d /= 10;
     k = integerDigits(d);
-  } else {
-    const sixteen = sixteenDigitsRoundTrip(a, n);
-    if (sixteen === null) return String(x).length;
-    k = sixteen ? 16 : 17;
-  }
+  } else if (sixteen === true) k = 16;
+  else return String(x).length;
   return sign + layoutLength(k, nOut);
 }
 
