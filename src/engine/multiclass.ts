@@ -492,12 +492,18 @@ function prepare(
     penaltyWeight.push(0);
   }
   const offset = intercept ? 1 : 0;
+  const allRows = n === X.rows;
   for (let j = 0; j < X.columns.length; j++) {
     const x = X.columns[j];
+    // The used rows of the column, contiguous (a plain copy when every row is used); centred and
+    // scaled in place below.
+    const col = new Float64Array(n);
+    if (allRows) col.set(x);
+    else for (let r = 0; r < n; r++) col[r] = x[used[r]];
     let mean = 0;
     let maxAbs = 0;
     for (let r = 0; r < n; r++) {
-      const v = x[used[r]];
+      const v = col[r];
       mean += w[r] * v;
       if (Math.abs(v) > maxAbs) maxAbs = Math.abs(v);
     }
@@ -505,7 +511,7 @@ function prepare(
     let ss = 0;
     let sq = 0;
     for (let r = 0; r < n; r++) {
-      const v = x[used[r]];
+      const v = col[r];
       ss += w[r] * (v - mean) * (v - mean);
       sq += w[r] * v * v;
     }
@@ -514,8 +520,7 @@ function prepare(
     if (intercept ? !(sd > CONSTANT_COLUMN_SHARE * maxAbs) : maxAbs === 0) continue;
     const c = intercept ? mean : 0;
     const s = intercept ? sd : Math.sqrt(sq / total);
-    const col = new Float64Array(n);
-    for (let r = 0; r < n; r++) col[r] = (x[used[r]] - c) / s;
+    for (let r = 0; r < n; r++) col[r] = (col[r] - c) / s;
     z.push(col);
     termOfColumn.push(j + offset);
     centre.push(c);
