@@ -445,7 +445,10 @@ export function fitBinaryModel(
     keepHistory: !penalized && !opt.biasReduction,
     unitGram: subMatrix(unitGram, p, kept),
   };
-  const fit = newtonLogistic(problemK);
+  // Large data: start from a fit on a systematic subsample, with its information scaled up
+  // standing in for the full-data one at first (see NewtonProblem.startInformation).
+  const warm = opt.biasReduction ? null : subsampleWarmStart(problemK);
+  const fit = newtonLogistic(warm ? { ...problemK, start: warm.start, startInformation: warm.information } : problemK);
   const { logBinom, saturated } = constantTerms(data);
 
   // ---- separation --------------------------------------------------------------------------
@@ -624,6 +627,64 @@ export function fitBinaryModel(
     converged: fit.converged && !unusable,
     diagnostics,
   };
+}
+
+/** Rows from which the fit starts from a subsample fit (below it a fit from the usual start is quick). */
+export const WARM_START_MIN_ROWS = 40000;
+/** Target number of rows of the warm-start subsample. */
+export const WARM_START_ROWS = 5000;
+/** A subsample fit with a fitted probability this far out (|eta| above it) may be near separation: no warm start. */
+const WARM_START_MAX_ETA = 15;
+
+/**
+ * Starting values for a large fit: the (penalized) maximum likelihood estimate on every
+ * stride-th row, and that fit's information scaled up by total weight / subsample weight as an
+ * approximation of the full information there (they differ by about 1/sqrt(subsample size)).
+ * Null below WARM_START_MIN_ROWS, or when the subsample fit is not usable (one class only,
+ * singular information, not converged, or fitted probabilities near 0 or 1, which may signal
+ * separation): the fit then starts as usual. The subsample fit only chooses where the full
+ * Newton-Raphson iterations begin; the estimate and covariance are those of the full data.
+ */
+function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; information: Float64Array } | null {
+  const n = prob.rows;
+  if (n < WARM_START_MIN_ROWS) return null;
+  const stride = Math.floor(n / WARM_START_ROWS);
+  const m = Math.floor((n - 1) / stride) + 1;
+  const pick = (src: Float64Array): Float64Array => {
+    const out = new Float64Array(m);
+    for (let r = 0; r < m; r++) out[r] = src[r * stride];
+    return out;
+  };
+  const successes = pick(prob.successes);
+  const trials = pick(prob.trials);
+  const weights = pick(prob.weights);
+  let total = 0;
+  for (let i = 0; i < n; i++) total += prob.weights[i] * prob.trials[i];
+  let part = 0;
+  let partSucc = 0;
+  for (let r = 0; r < m; r++) {
+    part += weights[r] * trials[r];
+    partSucc += weights[r] * successes[r];
+  }
+  if (!(partSucc > 0 && partSucc < part)) return null;
+  const fraction = part / total;
+  const sub = newtonLogistic({
+    ...prob,
+    rows: m,
+    columns: prob.columns.map(pick),
+    successes,
+    trials,
+    weights,
+    offset: pick(prob.offset),
+    penalty: prob.penalty.map((v) => v * fraction),
+    keepHistory: false,
+    unitGram: null,
+    start: null,
+    startInformation: null,
+  });
+  if (!sub.converged || sub.singular || !sub.coefficients.every(Number.isFinite)) return null;
+  for (let r = 0; r < m; r++) if (Math.abs(sub.eta[r]) > WARM_START_MAX_ETA) return null;
+  return { start: sub.coefficients, information: sub.information.map((v) => v / fraction) };
 }
 
 /**

@@ -60,6 +60,19 @@ export interface NewtonProblem {
    */
   centre?: Float64Array | null;
   scale?: Float64Array | null;
+  /**
+   * An approximation of the information at `start` (for a warm start: the information of a fit on
+   * a subsample, scaled up to the full weight). The first iterations use it in place of Z'WZ
+   * (each then costs one pass over the data, evaluation and score together, instead of a full
+   * cross-product); once their predicted relative deviance change (the Newton decrement U'H^{-1}U;
+   * Boyd & Vandenberghe, Convex Optimization, 2004, sec. 9.5.1) is below the squared tolerance
+   * (see warmDecrementBound), or after MAX_APPROXIMATE_STEPS, the exact information is formed and
+   * the iterations finish as Newton-Raphson. Convergence is then also accepted when the exact
+   * Newton step predicts a change below that bound, so the information returned is always the
+   * exact one at the returned estimate. Ignored for Firth fits
+   * and fits with held coefficients.
+   */
+  startInformation?: SquareMatrix | null;
 }
 
 /** What the Newton core returns. */
@@ -90,6 +103,20 @@ export interface NewtonResult {
 
 /** Firth fits also need the largest relative step below this (see the loop). */
 const FIRTH_STEP_TOLERANCE = 1e-11;
+
+/** Steps taken with the approximate (warm-start) information before the exact one is formed. */
+const MAX_APPROXIMATE_STEPS = 12;
+
+/**
+ * The approximate phase ends, and the first exact step is skipped, only when the predicted
+ * relative deviance change (the Newton decrement) is below the square of the tolerance. The usual
+ * rule stops after a Newton step whose change was below the tolerance, and that last
+ * quadratically convergent step leaves a change of about its square: the warm-started estimate is
+ * held to the same closeness to the optimum.
+ */
+function warmDecrementBound(tolerance: number): number {
+  return tolerance * tolerance;
+}
 
 /** Halvings tried before a step is declared unable to improve the objective. */
 const MAX_HALVINGS = 30;
@@ -232,59 +259,87 @@ export function fittingColumns(p: BlockDesign): Float64Array[] {
 }
 
 /**
- * Evaluate l(g) into eta/mu buffers; returns the kernel log-likelihood (sum over rows).
- * The linear predictor is formed a row block at a time. No allocation.
+ * Evaluate l(g) into eta/mu buffers; returns the kernel log-likelihood (sum over rows). Works a
+ * row block at a time: the block's fitting columns give its linear predictor, then its fitted
+ * probabilities and log-likelihood terms, and with `scoreOut` also its part of the score's
+ * Z'(w (y - t mu)), so a step that is accepted has its score from the same pass. No allocation.
  */
-function evaluate(p: NewtonProblem, g: Float64Array, eta: Float64Array, mu: Float64Array, buffers: BlockBuffers): number {
+function evaluate(
+  p: NewtonProblem,
+  g: Float64Array,
+  eta: Float64Array,
+  mu: Float64Array,
+  buffers: BlockBuffers,
+  scoreOut: Float64Array | null = null,
+): number {
   const n = p.rows;
-  eta.set(p.offset.subarray(0, n));
   const k = p.columns.length;
   const z = buffers.z;
+  const y = p.successes;
+  const t = p.trials;
+  const w = p.weights;
+  const off = p.offset;
+  const res = buffers.wz; // residual w (y - t mu) of the block (first ROW_BLOCK entries)
+  if (scoreOut) scoreOut.fill(0);
+  let ll = 0;
   for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
     const len = Math.min(ROW_BLOCK, n - i0);
+    const i1 = i0 + len;
     fillBlock(p, i0, len, z);
+    for (let i = i0; i < i1; i++) eta[i] = off[i];
     // Three columns per pass over the block of eta (fewer loads and stores of eta).
     let j = 0;
     for (; j + 2 < k; j += 3) {
       const ga = g[j];
       const gb = g[j + 1];
       const gc = g[j + 2];
-      const a = j * ROW_BLOCK;
+      const a = j * ROW_BLOCK - i0;
       const b = a + ROW_BLOCK;
       const c = b + ROW_BLOCK;
-      for (let r = 0; r < len; r++) eta[i0 + r] += ga * z[a + r] + gb * z[b + r] + gc * z[c + r];
+      for (let i = i0; i < i1; i++) eta[i] += ga * z[a + i] + gb * z[b + i] + gc * z[c + i];
     }
     for (; j < k; j++) {
       const gj = g[j];
       if (gj === 0) continue;
-      const a = j * ROW_BLOCK;
-      for (let r = 0; r < len; r++) eta[i0 + r] += gj * z[a + r];
+      const a = j * ROW_BLOCK - i0;
+      for (let i = i0; i < i1; i++) eta[i] += gj * z[a + i];
     }
-  }
-  const y = p.successes;
-  const t = p.trials;
-  const w = p.weights;
-  let ll = 0;
-  // One exp and one log1p per row: with u = exp(-|e|) and L = log(1 + u) = log1pExp(-|e|),
-  // sigmoid(e) = 1/(1+u) or u/(1+u), log sigmoid(e) = -L or e - L, log sigmoid(-e) = -e - L or -L
-  // (the same stable forms as numerics.ts, inlined because this loop dominates the fit).
-  for (let i = 0; i < n; i++) {
-    const e = eta[i];
-    const u = Math.exp(-Math.abs(e));
-    const L = Math.log1p(u);
-    const yi = y[i];
-    const fi = t[i] - yi;
-    let li = 0;
-    if (e >= 0) {
-      mu[i] = 1 / (1 + u);
-      if (yi !== 0) li -= yi * L;
-      if (fi !== 0) li -= fi * (e + L);
-    } else {
-      mu[i] = u / (1 + u);
-      if (yi !== 0) li += yi * (e - L);
-      if (fi !== 0) li -= fi * L;
+    // One exp and one log1p per row: with u = exp(-|e|) and L = log(1 + u) = log1pExp(-|e|),
+    // sigmoid(e) = 1/(1+u) or u/(1+u), log sigmoid(e) = -L or e - L, log sigmoid(-e) = -e - L or -L
+    // (the same stable forms as numerics.ts, inlined because this loop dominates the fit).
+    for (let i = i0; i < i1; i++) {
+      const e = eta[i];
+      const u = Math.exp(-Math.abs(e));
+      const L = Math.log1p(u);
+      const yi = y[i];
+      const fi = t[i] - yi;
+      let li = 0;
+      if (e >= 0) {
+        mu[i] = 1 / (1 + u);
+        if (yi !== 0) li -= yi * L;
+        if (fi !== 0) li -= fi * (e + L);
+      } else {
+        mu[i] = u / (1 + u);
+        if (yi !== 0) li += yi * (e - L);
+        if (fi !== 0) li -= fi * L;
+      }
+      ll += w[i] * li;
     }
-    ll += w[i] * li;
+    if (scoreOut) {
+      for (let i = i0; i < i1; i++) res[i - i0] = w[i] * (y[i] - t[i] * mu[i]);
+      for (let jj = 0; jj < k; jj++) {
+        const base = jj * ROW_BLOCK;
+        let s0 = 0;
+        let s1 = 0;
+        let r = 0;
+        for (; r + 1 < len; r += 2) {
+          s0 += res[r] * z[base + r];
+          s1 += res[r + 1] * z[base + r + 1];
+        }
+        for (; r < len; r++) s0 += res[r] * z[base + r];
+        scoreOut[jj] += s0 + s1;
+      }
+    }
   }
   return ll;
 }
@@ -328,6 +383,9 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   const score = new Float64Array(k);
   const step = new Float64Array(k);
   const gTry = new Float64Array(k);
+  const scoreTry = new Float64Array(k);
+  const scoreAtG = new Float64Array(k); // Z' part of the score at g (approximate phase)
+  const curvature = new Float64Array(k);
   const prevStep = new Float64Array(k);
   let havePrevStep = false;
   const history: Float64Array[] = [];
@@ -349,9 +407,15 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
 
   // State at g: log-likelihood, objective (needs log det I for Firth), information and its factor.
   let ll = evaluate(p, g, eta, mu, buffers);
-  let constantMu = !!p.unitGram;
+  // Warm start: iterate with the approximate information until the changes are small.
+  let approximate = !!p.startInformation && !p.firth && !p.free;
+  let approximateSteps = 0;
+  let checkDecrement = false; // after switching to the exact information: test the Newton decrement first
+  let constantMu = !!p.unitGram && !approximate;
   for (let i = 1; constantMu && i < n; i++) if (mu[i] !== mu[0]) constantMu = false;
-  if (constantMu && n > 0) {
+  if (approximate) {
+    info.set(p.startInformation!);
+  } else if (constantMu && n > 0) {
     const v = mu[0] * (1 - mu[0]);
     for (let i = 0; i < n; i++) fisherW[i] = p.weights[i] * p.trials[i] * v;
     for (let j = 0; j < k * k; j++) info[j] = v * p.unitGram![j];
@@ -362,6 +426,17 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   let factor = firthFactor(p, info, k);
   let singular = factor === null && p.firth;
   let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
+
+  /** Information and the score's Z' part at the current g in one pass over the data. */
+  function exactInformationAndScore(): void {
+    for (let i = 0; i < n; i++) {
+      const m = mu[i];
+      fisherW[i] = p.weights[i] * p.trials[i] * m * (1 - m);
+      work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * m);
+    }
+    crossProducts(p, fisherW, info, buffers, work, score);
+    scoreReady = true;
+  }
 
   let iterations = 0;
   let halvings = 0;
@@ -375,6 +450,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       crossVector(p, work, score, buffers);
     }
     scoreReady = false;
+    if (approximate) scoreAtG.set(score);
     for (let j = 0; j < k; j++) score[j] -= p.penalty[j] * g[j];
     if (p.firth && factor) {
       hatValues(p.columns, factor, fisherW, n, work, hat);
@@ -406,6 +482,30 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     // Newton decrement: U' I^{-1} U ~ twice the predicted decrease of F.
     let decrement = 0;
     for (let j = 0; j < k; j++) decrement += score[j] * step[j];
+    if (approximate) {
+      // End of the approximate phase when its step predicts a negligible change (well below the
+      // tolerance: the approximate information converges only linearly).
+      const predicted = decrement / (0.1 + Math.abs(2 * objective));
+      if (predicted < warmDecrementBound(p.tolerance) || approximateSteps >= MAX_APPROXIMATE_STEPS) {
+        iterations--;
+        approximate = false;
+        exactInformationAndScore();
+        checkDecrement = true;
+        continue;
+      }
+    }
+    if (checkDecrement) {
+      // First step with the exact information after the approximate phase: when it predicts a
+      // negligible change, g is the estimate and `info` is already the information there.
+      checkDecrement = false;
+      const change = decrement / (0.1 + Math.abs(2 * objective));
+      if (change < warmDecrementBound(p.tolerance)) {
+        iterations--;
+        lastChange = change;
+        converged = true;
+        break;
+      }
+    }
 
     let scale = 1;
     if (p.firth && havePrevStep) {
@@ -429,7 +529,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     const infoTry = infoPen; // reuse as scratch for the candidate's information (infoPen is consumed)
     for (let h = 0; h <= MAX_HALVINGS; h++) {
       for (let j = 0; j < k; j++) gTry[j] = g[j] + scale * step[j];
-      llTry = evaluate(p, gTry, etaTry, muTry, buffers);
+      llTry = evaluate(p, gTry, etaTry, muTry, buffers, approximate ? scoreTry : null);
       objTry = -llTry + penaltyValue(p, gTry);
       if (p.firth) {
         information(p, muTry, fisherWTry, buffers, infoTry);
@@ -451,6 +551,13 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       }
       scale *= 0.5;
       halvings++;
+    }
+    if (!accepted && approximate) {
+      // The approximate information gave no descent step: continue with the exact one.
+      iterations--;
+      approximate = false;
+      exactInformationAndScore();
+      continue;
     }
     if (!accepted) {
       // No decrease along the Newton direction: at the optimum up to rounding when the predicted
@@ -480,15 +587,18 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
         singular = true;
         break;
       }
-    } else {
-      // Information and the score's Z' part at the new g in one pass over the data.
-      for (let i = 0; i < n; i++) {
-        const m = mu[i];
-        fisherW[i] = p.weights[i] * p.trials[i] * m * (1 - m);
-        work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * m);
-      }
-      crossProducts(p, fisherW, info, buffers, work, score);
+    } else if (approximate) {
+      // The accepted candidate's score came with its evaluation.
+      score.set(scoreTry);
       scoreReady = true;
+      // Improve the approximate information with the curvature seen along the step: s = the step,
+      // y = change of -Z'(w (y - t mu)) (the gradient of -l) along it.
+      for (let j = 0; j < k; j++) curvature[j] = scoreAtG[j] - scoreTry[j];
+      bfgsUpdate(info, k, prevStep, curvature, work.subarray(0, k));
+      approximateSteps++;
+      continue;
+    } else {
+      exactInformationAndScore();
     }
     // Firth's iteration uses I (not the Hessian of the penalized objective), so it converges only
     // linearly: a small change of the objective is not enough, the step must be negligible too.
@@ -499,6 +609,8 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       break;
     }
   }
+  // The iteration cap can end the approximate phase: the information returned is the exact one.
+  if (approximate) exactInformationAndScore();
   // Information at the final g (already current: it is refreshed after each accepted step).
   const penalizedInformation = Float64Array.from(info);
   for (let j = 0; j < k; j++) penalizedInformation[j * k + j] += p.penalty[j];
@@ -517,6 +629,32 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     history,
     halvings,
   };
+}
+
+/**
+ * BFGS update of a Hessian approximation H (k*k, in place; Nocedal & Wright, Numerical
+ * Optimization, 2006, eq. 6.19): H <- H - (H s)(H s)' / (s'H s) + y y' / (y's), for a step s and
+ * gradient change y. Skipped unless the curvature y's is clearly positive, so H stays positive
+ * definite. `hs` is scratch of length k.
+ */
+function bfgsUpdate(h: SquareMatrix, k: number, s: Float64Array, y: Float64Array, hs: Float64Array): void {
+  let ys = 0;
+  let shs = 0;
+  for (let i = 0; i < k; i++) {
+    let v = 0;
+    for (let j = 0; j < k; j++) v += h[i * k + j] * s[j];
+    hs[i] = v;
+    ys += y[i] * s[i];
+    shs += s[i] * v;
+  }
+  if (!(ys > 0 && shs > 0)) return;
+  for (let i = 0; i < k; i++) {
+    for (let j = i; j < k; j++) {
+      const v = h[i * k + j] - (hs[i] * hs[j]) / shs + (y[i] * y[j]) / ys;
+      h[i * k + j] = v;
+      h[j * k + i] = v;
+    }
+  }
 }
 
 function firthFactor(p: NewtonProblem, info: SquareMatrix, k: number): SquareMatrix | null {
