@@ -45,6 +45,7 @@ function cellsIn(value: unknown): number {
 /** Exact powers of ten 10^0 .. 10^22 (every one is a double without rounding). */
 const POW10: number[] = [];
 for (let i = 0, p = 1; i <= 22; i++, p *= 10) POW10.push(p);
+const POW10F = Float64Array.from(POW10);
 const SPLIT = 134217729; // 2^27 + 1, Dekker's splitting constant
 const BITS_F64 = new Float64Array(1);
 const BITS_U32 = new Uint32Array(BITS_F64.buffer);
@@ -173,10 +174,67 @@ export function estimateBytes(value: unknown): number {
   if (!Array.isArray(value)) return cellBytes(value);
   let bytes = 2;
   for (const row of value) {
-    if (Array.isArray(row)) {
-      bytes += 2;
-      for (const v of row) bytes += cellBytes(v);
-    } else bytes += cellBytes(row);
+    if (!Array.isArray(row)) {
+      bytes += cellBytes(row);
+      continue;
+    }
+    bytes += 2;
+    for (let j = 0; j < row.length; j++) {
+      const x: unknown = row[j];
+      if (typeof x !== "number") {
+        bytes += cellBytes(x);
+        continue;
+      }
+      // Full-precision data mostly needs 17 significant digits. That case is settled here, written
+      // out in the loop so the number is never passed to a function (which would box it): n with
+      // 10^(n-1) <= |x| < 10^n, then the 16-digit test of numberTextLength (error-free product
+      // |x| * 10^(16-n) against half the spacing of doubles at |x|). Anything else: numberTextLength.
+      const a = x < 0 ? -x : x;
+      if (a >= 1e-6 && a < 4503599627370496) {
+        let n = Math.floor(Math.log10(a)) + 1;
+        if (n >= 0 && n <= 22 && a >= POW10F[n]) n++;
+        else if (n - 1 >= 0 && a < POW10F[n - 1]) n--;
+        else if (n - 1 < 0 && a * POW10F[1 - n] < 1) n--;
+        if (n >= -5 && n <= 16) {
+          BITS_F64[0] = a;
+          const hiBits = BITS_U32[1];
+          if ((hiBits & 0xfffff) !== 0 || BITS_U32[0] !== 0) {
+            const exponent = ((hiBits >>> 20) & 0x7ff) - 1075;
+            const b = POW10F[16 - n];
+            const ph = a * b;
+            let t = SPLIT * a;
+            const ah = t - (t - a);
+            const al = a - ah;
+            t = SPLIT * b;
+            const bh = t - (t - b);
+            const bl = b - bh;
+            const pl = ((ah * bh - ph) + ah * bl + al * bh) + al * bl;
+            const r = Math.round(ph);
+            if (r >= 1e15 && r < 1e16 && r !== ph) {
+              let frac = Math.abs((ph - r) + pl);
+              if (frac > 0.5) frac = 1 - frac;
+              BITS_U32[0] = 0;
+              BITS_U32[1] = (exponent - 1 + 1023) << 20;
+              const half = BITS_F64[0] * b;
+              // 16 digits cannot read back, so 17 are needed: "d.ddd" (n > 0) or "0.00ddd" (n <= 0).
+              if (frac > half + 1e-6 * half) {
+                bytes += (x < 0 ? 1 : 0) + (n > 0 ? 18 : 19 - n) + 1;
+                continue;
+              }
+              // 16 digits read back and 15 do not (exact scaling as in roundTrips): 16 are needed.
+              if (frac < half - 1e-6 * half && n <= 15) {
+                const m15 = 15 - n;
+                if (Math.round(a * POW10F[m15]) / POW10F[m15] !== a) {
+                  bytes += (x < 0 ? 1 : 0) + (n > 0 ? 17 : 18 - n) + 1;
+                  continue;
+                }
+              }
+            }
+          }
+        }
+      }
+      bytes += numberTextLength(x) + 1;
+    }
   }
   return bytes;
 }

@@ -78,3 +78,33 @@ describe("estimateBytes with the fast number sizing", () => {
     expect(estimateBytes(rows)).toBe(expected);
   });
 });
+
+describe("estimateBytes sizes every number as String() would", () => {
+  test("for rows of arbitrary doubles (the inlined 17-digit path and the general one agree)", () => {
+    fc.assert(
+      fc.property(fc.array(fc.array(fc.double({ noNaN: true, noDefaultInfinity: true }), { minLength: 1, maxLength: 8 }), { minLength: 1, maxLength: 8 }), (rows) => {
+        let expected = 2;
+        for (const r of rows) {
+          expected += 2;
+          for (const v of r) expected += String(v).length + 1;
+        }
+        return estimateBytes(rows) === expected;
+      }),
+      { numRuns: 5_000 },
+    );
+  });
+
+  test("for rows of full-precision values between -10 and 10", () => {
+    fc.assert(
+      fc.property(fc.array(fc.array(fc.double({ min: -10, max: 10, noNaN: true }), { minLength: 1, maxLength: 8 }), { minLength: 1, maxLength: 8 }), (rows) => {
+        let expected = 2;
+        for (const r of rows) {
+          expected += 2;
+          for (const v of r) expected += String(v).length + 1;
+        }
+        return estimateBytes(rows) === expected;
+      }),
+      { numRuns: 5_000 },
+    );
+  });
+});
