@@ -10,7 +10,8 @@
  * Loan, Matrix Computations, 4th ed., 2013, §1.5, blocking for the memory hierarchy): the rows of a
  * block (q columns plus m weights, a few tens of kilobytes) stay in the first-level cache while every
  * product is formed, and each inner loop keeps a 2 x 4 tile of sums (two columns a against four
- * weight vectors) in registers, so one pass loads 7 numbers for 8 multiply-adds.
+ * weight vectors) in registers, so one pass loads 7 numbers for 8 multiply-adds (the last one to
+ * three weight vectors in 2 x 2 and 2 x 1 tiles).
  */
 
 /**
@@ -92,7 +93,33 @@ export function accumulateWeightedGrams(
           out[o1 + k + 3] += s13;
         }
       }
-      for (; k < m; k++) {
+      if (k + 2 <= m) {
+        const v0 = k * stride;
+        const v1 = v0 + stride;
+        let s00 = 0;
+        let s01 = 0;
+        let s10 = 0;
+        let s11 = 0;
+        for (let i = 0; i < L; i++) {
+          const xb = zb[r0 + i];
+          const t0 = za[r0 + i] * xb;
+          const t1 = zc[r0 + i] * xb;
+          const w0 = v[v0 + i];
+          const w1 = v[v1 + i];
+          s00 += t0 * w0;
+          s01 += t0 * w1;
+          s10 += t1 * w0;
+          s11 += t1 * w1;
+        }
+        out[o0 + k] += s00;
+        out[o0 + k + 1] += s01;
+        if (a1 !== a) {
+          out[o1 + k] += s10;
+          out[o1 + k + 1] += s11;
+        }
+        k += 2;
+      }
+      if (k < m) {
         const v0 = k * stride;
         let s0 = 0;
         let s1 = 0;
