@@ -404,7 +404,8 @@ export function fitBinaryModel(
   }
 
   // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
-  const unitGram = problemGram({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a);
+  const sparseAll = sparseRowLists(raw, n, opt.intercept);
+  const unitGram = problemGram({ rows: n, columns: raw, centre: centreAll, scale: scaleAll, sparseRows: sparseAll }, a);
   // A ridge penalty makes collinear columns estimable, so it enters the rank decision; Firth's
   // penalty needs log det of the unpenalized information, so with bias reduction it does not.
   const gram = Float64Array.from(unitGram);
@@ -424,6 +425,7 @@ export function fitBinaryModel(
     columns: kept.map((j) => raw[j]),
     centre: Float64Array.from(kept, (j) => centreAll[j]),
     scale: Float64Array.from(kept, (j) => scaleAll[j]),
+    sparseRows: sparseAll ? kept.map((j) => sparseAll[j]) : null,
   };
   // Firth's hat values need whole columns: form the scaled copy once for the fits below.
   const firthColumns = opt.biasReduction ? fittingColumns(keptDesign) : null;
@@ -629,6 +631,36 @@ export function fitBinaryModel(
   };
 }
 
+/** Designs with at least this many rows look for mostly-zero columns (see sparseRowLists). */
+export const SPARSE_MIN_ROWS = 10000;
+/** A column counts as mostly zero when at most this share of its rows is non-zero. */
+export const SPARSE_MAX_SHARE = 0.1;
+
+/**
+ * For each design column (intercept first when present, never sparse): the rows where it is
+ * non-zero when that is at most SPARSE_MAX_SHARE of the rows, else null; null overall for small
+ * designs or when no column qualifies. Indicator columns of a text predictor's levels are the
+ * typical case: the information matrix then costs about (non-zero entries) x (columns) instead
+ * of rows x columns^2 / 2 (see NewtonProblem.sparseRows).
+ */
+function sparseRowLists(columns: readonly Float64Array[], n: number, intercept: boolean): (Int32Array | null)[] | null {
+  if (n < SPARSE_MIN_ROWS) return null;
+  const limit = Math.floor(SPARSE_MAX_SHARE * n);
+  let any = false;
+  const lists = columns.map((x, j) => {
+    if (intercept && j === 0) return null;
+    let count = 0;
+    for (let i = 0; i < n && count <= limit; i++) if (x[i] !== 0) count++;
+    if (count > limit) return null;
+    const rows = new Int32Array(count);
+    let r = 0;
+    for (let i = 0; i < n; i++) if (x[i] !== 0) rows[r++] = i;
+    any = true;
+    return rows;
+  });
+  return any ? lists : null;
+}
+
 /** Rows from which the fit starts from a subsample fit (below it a fit from the usual start is quick). */
 export const WARM_START_MIN_ROWS = 40000;
 /** Target number of rows of the warm-start subsample. */
@@ -681,6 +713,7 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
     unitGram: null,
     start: null,
     startInformation: null,
+    sparseRows: null,
   });
   if (!sub.converged || sub.singular || !sub.coefficients.every(Number.isFinite)) return null;
   for (let r = 0; r < m; r++) if (Math.abs(sub.eta[r]) > WARM_START_MAX_ETA) return null;

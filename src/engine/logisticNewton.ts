@@ -73,6 +73,13 @@ export interface NewtonProblem {
    * and fits with held coefficients.
    */
   startInformation?: SquareMatrix | null;
+  /**
+   * For columns that are mostly zero (such as 0/1 indicators of a text predictor's levels): the
+   * rows where the column is non-zero, ascending; null for an ordinary column. Z'WZ then takes
+   * such a column's entries from sums over its non-zero rows with the centring applied
+   * algebraically (see sparseCrossProducts), instead of a pass over every row per pair.
+   */
+  sparseRows?: (Int32Array | null)[] | null;
 }
 
 /** What the Newton core returns. */
@@ -125,12 +132,15 @@ const MAX_HALVINGS = 30;
 export const ROW_BLOCK = 512;
 
 /** The part of a problem the blocked kernels read: the columns and their on-the-fly scaling. */
-export type BlockDesign = Pick<NewtonProblem, "rows" | "columns" | "centre" | "scale">;
+export type BlockDesign = Pick<NewtonProblem, "rows" | "columns" | "centre" | "scale" | "sparseRows">;
 
 /** Scratch of the blocked kernels: the fitting columns of one row block, and a weighted copy. */
 interface BlockBuffers {
   z: Float64Array;
   wz: Float64Array;
+  /** Sparse columns only: a column of ones and a zeroed scatter vector (length rows), made on first use. */
+  ones?: Float64Array;
+  scatter?: Float64Array;
 }
 
 function blockBuffers(k: number): BlockBuffers {
@@ -175,6 +185,7 @@ function crossProducts(
   residual: Float64Array | null = null,
   vectorOut: Float64Array | null = null,
 ): SquareMatrix {
+  if (p.sparseRows && p.sparseRows.some((r) => r !== null)) return sparseCrossProducts(p, weights, out, buffers, residual, vectorOut);
   const n = p.rows;
   const k = p.columns.length;
   const { z, wz } = buffers;
@@ -201,6 +212,106 @@ function crossProducts(
     accumulateBlockCrossProduct(wz, z, k, len, ROW_BLOCK, out);
   }
   return mirrorUpper(out, k);
+}
+
+/**
+ * crossProducts for a design with sparse columns. With z_j = (x_j - c_j) / s_j and W the weights:
+ * the dense columns (and a column of ones, which gives sum W and sum_i W_i z_il) go through the
+ * blocked kernel; for a sparse column j (non-zero rows S_j)
+ *   z_j'W z_l = (sum_{S_j} W x_j z_l - c_j sum W z_l) / s_j                      (l dense),
+ *   z_j'W z_l = (sum_{S_j and S_l} W x_j x_l - c_l sum_{S_j} W x_j - c_j sum_{S_l} W x_l
+ *               + c_j c_l sum W) / (s_j s_l)                                     (l sparse),
+ * the intersection found by scattering W x_j into a zeroed vector. For a mostly-zero column
+ * |c_j| / s_j is small (at most about sqrt(f / (1 - f)) for a share f of non-zero rows), so the
+ * algebraic centring loses no accuracy to cancellation.
+ */
+function sparseCrossProducts(
+  p: BlockDesign,
+  weights: Float64Array,
+  out: SquareMatrix,
+  buffers: BlockBuffers,
+  residual: Float64Array | null,
+  vectorOut: Float64Array | null,
+): SquareMatrix {
+  const n = p.rows;
+  const k = p.columns.length;
+  const S = p.sparseRows!;
+  const centreOf = (j: number) => (p.centre && p.scale ? p.centre[j] : 0);
+  const scaleOf = (j: number) => (p.centre && p.scale ? p.scale[j] : 1);
+  const dense: number[] = [];
+  const sparse: number[] = [];
+  for (let j = 0; j < k; j++) (S[j] ? sparse : dense).push(j);
+  const ones = buffers.ones ?? (buffers.ones = new Float64Array(n).fill(1));
+  const scatter = buffers.scatter ?? (buffers.scatter = new Float64Array(n));
+  const m = dense.length + 1;
+  const denseDesign: BlockDesign = {
+    rows: n,
+    columns: [ones, ...dense.map((j) => p.columns[j])],
+    centre: Float64Array.from([0, ...dense.map(centreOf)]),
+    scale: Float64Array.from([1, ...dense.map(scaleOf)]),
+  };
+  const outD = new Float64Array(m * m);
+  const vecD = residual && vectorOut ? new Float64Array(m) : null;
+  crossProducts(denseDesign, weights, outD, buffers, residual, vecD);
+  const sumW = outD[0];
+  for (let a = 0; a < dense.length; a++) {
+    for (let b = 0; b < dense.length; b++) out[dense[a] * k + dense[b]] = outD[(a + 1) * m + b + 1];
+    if (vecD && vectorOut) vectorOut[dense[a]] = vecD[a + 1];
+  }
+  // sum_{S_j} W x_j for every sparse column.
+  const swx = new Float64Array(sparse.length);
+  for (let t = 0; t < sparse.length; t++) {
+    const rows = S[sparse[t]]!;
+    const x = p.columns[sparse[t]];
+    let v = 0;
+    for (let r = 0; r < rows.length; r++) v += weights[rows[r]] * x[rows[r]];
+    swx[t] = v;
+  }
+  for (let t = 0; t < sparse.length; t++) {
+    const j = sparse[t];
+    const rows = S[j]!;
+    const x = p.columns[j];
+    const cj = centreOf(j);
+    const sj = scaleOf(j);
+    let swxx = 0;
+    for (let r = 0; r < rows.length; r++) {
+      const i = rows[r];
+      const v = weights[i] * x[i];
+      scatter[i] = v;
+      swxx += v * x[i];
+    }
+    out[j * k + j] = (swxx - 2 * cj * swx[t] + cj * cj * sumW) / (sj * sj);
+    for (let a = 0; a < dense.length; a++) {
+      const l = dense[a];
+      const xl = p.columns[l];
+      const cl = centreOf(l);
+      const sl = scaleOf(l);
+      let sx = 0;
+      for (let r = 0; r < rows.length; r++) sx += scatter[rows[r]] * xl[rows[r]];
+      // sum_{S_j} W x_j z_l = (sum_{S_j} W x_j x_l - c_l sum_{S_j} W x_j) / s_l
+      const v = ((sx - cl * swx[t]) / sl - cj * outD[a + 1]) / sj;
+      out[j * k + l] = v;
+      out[l * k + j] = v;
+    }
+    for (let u = t + 1; u < sparse.length; u++) {
+      const l = sparse[u];
+      const rowsL = S[l]!;
+      const xl = p.columns[l];
+      let sx = 0;
+      for (let r = 0; r < rowsL.length; r++) sx += scatter[rowsL[r]] * xl[rowsL[r]];
+      const cl = centreOf(l);
+      const v = (sx - cl * swx[t] - cj * swx[u] + cj * cl * sumW) / (sj * scaleOf(l));
+      out[j * k + l] = v;
+      out[l * k + j] = v;
+    }
+    for (let r = 0; r < rows.length; r++) scatter[rows[r]] = 0;
+    if (vecD && vectorOut && residual) {
+      let sr = 0;
+      for (let r = 0; r < rows.length; r++) sr += residual[rows[r]] * x[rows[r]];
+      vectorOut[j] = (sr - cj * vecD[0]) / sj;
+    }
+  }
+  return out;
 }
 
 /** Z'v of the problem's fitting columns into out (length k), a row block at a time. */

@@ -7,7 +7,7 @@
  * the usual start. Frequency weights make the two likelihoods identical (McCullagh & Nelder 1989,
  * ch. 4), so they must agree to rounding and the convergence rule. Data: invented, seeded LCG.
  */
-import { fitBinaryModel, WARM_START_MIN_ROWS } from "../../../src/engine/binary";
+import { fitBinaryModel, SPARSE_MIN_ROWS, WARM_START_MIN_ROWS } from "../../../src/engine/binary";
 import type { BinaryFitOptions, DesignMatrix, ModelFit } from "../../../src/engine/types";
 
 /** Both fits stop by the 1e-10 deviance rule from different starts: estimates agree to ~1e-9. */
@@ -128,5 +128,69 @@ describe("large fits (warm start from a subsample) give the full-data maximum li
     const fit = fitBinaryModel({ rows, columns: [x], names: ["x"] }, y);
     expect(fit.diagnostics.map((dg) => dg.code)).toContain("SEPARATION_COMPLETE");
     expect(Number.isNaN(fit.table[1].estimate)).toBe(true);
+  });
+});
+
+/**
+ * Mostly-zero columns (at most 10% non-zero, designs of 10,000 rows or more) enter the information
+ * matrix through sums over their non-zero rows with the centring applied algebraically. Check:
+ * replacing an indicator x by its complement 1 - x (90% non-zero, so an ordinary column) only
+ * reparametrizes the model with an intercept (McCullagh & Nelder 1989, ch. 3): the slope changes
+ * sign, its standard error and every other slope, standard error and the log-likelihood stay.
+ */
+describe("designs with mostly-zero (indicator) columns", () => {
+  /** Two fits of the same model from different parametrizations: rounding and convergence rule. */
+  const REPARAM_TOL = 1e-8;
+
+  function indicatorData(rows: number, seed: number) {
+    const u = lcg(seed);
+    const normal = () => Math.sqrt(-2 * Math.log(u())) * Math.cos(2 * Math.PI * u());
+    // Levels of a text predictor with unequal frequencies (two rare ones) plus one number column.
+    const share = [0.06, 0.05, 0.03, 0.004];
+    const levels = share.map(() => new Float64Array(rows));
+    const num = new Float64Array(rows);
+    const y = new Float64Array(rows);
+    for (let i = 0; i < rows; i++) {
+      num[i] = 10 + 2 * normal();
+      let v = u();
+      let eta = 0.3 * (num[i] - 10) - 0.2;
+      for (let l = 0; l < share.length; l++) {
+        if (v >= 0 && v < share[l]) {
+          levels[l][i] = 1;
+          eta += [1, -0.8, 0.5, 1.5][l];
+        }
+        v -= share[l];
+      }
+      y[i] = u() < 1 / (1 + Math.exp(-eta)) ? 1 : 0;
+    }
+    return { levels, num, y };
+  }
+
+  test.each([
+    ["above the sparse size, with the warm start", WARM_START_MIN_ROWS + 2000],
+    ["above the sparse size, without the warm start", SPARSE_MIN_ROWS + 500],
+  ])("an indicator and its complement give the same fit up to the sign of its slope (%s)", (_label, rows) => {
+    const d = indicatorData(rows, 99);
+    const names = ["num", "L1", "L2", "L3", "L4"];
+    const sparse = fitBinaryModel({ rows, columns: [d.num, ...d.levels], names }, d.y);
+    const flipped = d.levels.map((c, l) => (l === 0 ? c.map((v) => 1 - v) : c));
+    const dense = fitBinaryModel({ rows, columns: [d.num, ...flipped], names }, d.y);
+    expect(sparse.converged).toBe(true);
+    expect(dense.converged).toBe(true);
+    for (let t = 1; t < sparse.table.length; t++) {
+      const sign = t === 2 ? -1 : 1; // L1 is term 2 (after the intercept and num)
+      expect(Math.abs(sparse.table[t].estimate - sign * dense.table[t].estimate)).toBeLessThan(REPARAM_TOL * (1 + Math.abs(dense.table[t].estimate)));
+      expect(Math.abs(sparse.table[t].standardError / dense.table[t].standardError - 1)).toBeLessThan(REPARAM_TOL);
+    }
+    expect(Math.abs(sparse.logLikelihood / dense.logLikelihood - 1)).toBeLessThan(LOGLIK_REL_TOL);
+  });
+
+  test("an all-zero indicator column among mostly-zero ones is reported aliased, as in a small design", () => {
+    const rows = SPARSE_MIN_ROWS + 500;
+    const d = indicatorData(rows, 7);
+    const empty = new Float64Array(rows);
+    const fit = fitBinaryModel({ rows, columns: [d.num, ...d.levels, empty], names: ["num", "L1", "L2", "L3", "L4", "none"] }, d.y);
+    expect(fit.aliased).toEqual([false, false, false, false, false, false, true]);
+    expect(fit.converged).toBe(true);
   });
 });
