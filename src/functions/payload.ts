@@ -46,6 +46,7 @@ function cellsIn(value: unknown): number {
 const POW10: number[] = [];
 for (let i = 0, p = 1; i <= 22; i++, p *= 10) POW10.push(p);
 const POW10F = Float64Array.from(POW10);
+const LOG10_2 = 0.3010299956639812;
 const SPLIT = 134217729; // 2^27 + 1, Dekker's splitting constant
 const BITS_F64 = new Float64Array(1);
 const BITS_U32 = new Uint32Array(BITS_F64.buffer);
@@ -191,13 +192,12 @@ export function estimateBytes(value: unknown): number {
       // |x| * 10^(16-n) against half the spacing of doubles at |x|). Anything else: numberTextLength.
       const a = x < 0 ? -x : x;
       if (a >= 1e-6 && a < 4503599627370496) {
-        let n = Math.floor(Math.log10(a)) + 1;
-        if (n >= 0 && n <= 22 && a >= POW10F[n]) n++;
-        else if (n - 1 >= 0 && a < POW10F[n - 1]) n--;
-        else if (n - 1 < 0 && a * POW10F[1 - n] < 1) n--;
+        BITS_F64[0] = a;
+        const hiBits = BITS_U32[1];
+        // From the binary exponent e2 (2^e2 <= a < 2^(e2+1)): n is floor(e2 log10 2) + 1 or one more.
+        let n = Math.floor((((hiBits >>> 20) & 0x7ff) - 1023) * LOG10_2) + 1;
+        if (n >= 0 ? a >= POW10F[n] : a * POW10F[-n] >= 1) n++;
         if (n >= -5 && n <= 16) {
-          BITS_F64[0] = a;
-          const hiBits = BITS_U32[1];
           if ((hiBits & 0xfffff) !== 0 || BITS_U32[0] !== 0) {
             const exponent = ((hiBits >>> 20) & 0x7ff) - 1075;
             const b = POW10F[16 - n];
@@ -210,7 +210,7 @@ export function estimateBytes(value: unknown): number {
             const bl = b - bh;
             const pl = ((ah * bh - ph) + ah * bl + al * bh) + al * bl;
             const r = Math.round(ph);
-            if (r >= 1e15 && r < 1e16 && r !== ph) {
+            if (r >= 1e15 && r < 1e16) {
               let frac = Math.abs((ph - r) + pl);
               if (frac > 0.5) frac = 1 - frac;
               BITS_U32[0] = 0;

@@ -108,3 +108,33 @@ describe("estimateBytes sizes every number as String() would", () => {
     );
   });
 });
+
+describe("estimateBytes at the edges of its fast path", () => {
+  /** The doubles `steps` units in the last place away from x (x > 0). */
+  const neighbour = (x: number, steps: number) => {
+    const f = new Float64Array([x]);
+    const b = new BigInt64Array(f.buffer);
+    b[0] += BigInt(steps);
+    return f[0];
+  };
+  const rule = (rows: number[][]) => rows.reduce((s, r) => s + 2 + r.reduce((t, v) => t + String(v).length + 1, 0), 2);
+
+  test("powers of ten and the doubles a few steps around them, either sign", () => {
+    const rows: number[][] = [];
+    for (let e = -8; e <= 17; e++) {
+      const row: number[] = [];
+      for (let s = -4; s <= 4; s++) {
+        const x = neighbour(10 ** e, s);
+        row.push(x, -x);
+      }
+      rows.push(row);
+    }
+    expect(estimateBytes(rows)).toBe(rule(rows));
+  });
+
+  test("powers of two and their neighbours (a narrower gap below)", () => {
+    const rows: number[][] = [];
+    for (let e = -22; e <= 53; e++) rows.push([-1, 0, 1].map((s) => neighbour(2 ** e, s)));
+    expect(estimateBytes(rows)).toBe(rule(rows));
+  });
+});
