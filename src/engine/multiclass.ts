@@ -687,8 +687,9 @@ class SoftmaxKernel {
 }
 
 /**
- * eta[e * CHUNK + i] = sum_j theta[e * q + j] z_j[r0 + i] for the rows of one chunk, four columns
- * per pass (each eta is loaded and stored once per four columns).
+ * eta[e * CHUNK + i] = sum_j theta[e * q + j] z_j[r0 + i] for the rows of one chunk: two equations
+ * and four columns per pass (each column value is loaded once for two equations, each eta loaded
+ * and stored once per four columns).
  */
 function linearPredictors(
   z: readonly Float64Array[],
@@ -699,26 +700,52 @@ function linearPredictors(
   E: number,
   etaBuf: Float64Array,
 ): void {
-  for (let e = 0; e < E; e++) {
-    const off = e * CHUNK;
-    const t0 = e * q;
-    etaBuf.fill(0, off, off + L);
+  etaBuf.fill(0, 0, E * CHUNK);
+  let e = 0;
+  for (; e + 2 <= E; e += 2) {
+    const oa = e * CHUNK;
+    const ob = oa + CHUNK;
+    const ta = e * q;
+    const tb = ta + q;
     let j = 0;
     for (; j + 4 <= q; j += 4) {
-      const c0 = theta[t0 + j];
-      const c1 = theta[t0 + j + 1];
-      const c2 = theta[t0 + j + 2];
-      const c3 = theta[t0 + j + 3];
+      const a0 = theta[ta + j];
+      const a1 = theta[ta + j + 1];
+      const a2 = theta[ta + j + 2];
+      const a3 = theta[ta + j + 3];
+      const b0 = theta[tb + j];
+      const b1 = theta[tb + j + 1];
+      const b2 = theta[tb + j + 2];
+      const b3 = theta[tb + j + 3];
       const z0 = z[j];
       const z1 = z[j + 1];
       const z2 = z[j + 2];
       const z3 = z[j + 3];
       for (let i = 0; i < L; i++) {
         const r = r0 + i;
-        etaBuf[off + i] += c0 * z0[r] + c1 * z1[r] + c2 * z2[r] + c3 * z3[r];
+        const x0 = z0[r];
+        const x1 = z1[r];
+        const x2 = z2[r];
+        const x3 = z3[r];
+        etaBuf[oa + i] += a0 * x0 + a1 * x1 + a2 * x2 + a3 * x3;
+        etaBuf[ob + i] += b0 * x0 + b1 * x1 + b2 * x2 + b3 * x3;
       }
     }
     for (; j < q; j++) {
+      const ca = theta[ta + j];
+      const cb = theta[tb + j];
+      const zj = z[j];
+      for (let i = 0; i < L; i++) {
+        const x = zj[r0 + i];
+        etaBuf[oa + i] += ca * x;
+        etaBuf[ob + i] += cb * x;
+      }
+    }
+  }
+  for (; e < E; e++) {
+    const off = e * CHUNK;
+    const t0 = e * q;
+    for (let j = 0; j < q; j++) {
       const c = theta[t0 + j];
       const zj = z[j];
       for (let i = 0; i < L; i++) etaBuf[off + i] += c * zj[r0 + i];
