@@ -138,9 +138,8 @@ export type BlockDesign = Pick<NewtonProblem, "rows" | "columns" | "centre" | "s
 interface BlockBuffers {
   z: Float64Array;
   wz: Float64Array;
-  /** Sparse columns only: a column of ones and a zeroed scatter vector (length rows), made on first use. */
+  /** Sparse columns only: a column of ones (length rows), made on first use. */
   ones?: Float64Array;
-  scatter?: Float64Array;
 }
 
 function blockBuffers(k: number): BlockBuffers {
@@ -152,11 +151,12 @@ function blockBuffers(k: number): BlockBuffers {
  * (x - centre) / scale (multiplying by the reciprocal unless it overflows, as the caller's scaled
  * copy would).
  */
-function fillBlock(p: BlockDesign, i0: number, len: number, z: Float64Array): void {
-  const k = p.columns.length;
-  for (let j = 0; j < k; j++) {
+function fillBlock(p: BlockDesign, i0: number, len: number, z: Float64Array, slots: readonly number[] | null = null): void {
+  const k = slots ? slots.length : p.columns.length;
+  for (let t = 0; t < k; t++) {
+    const j = slots ? slots[t] : t;
     const x = p.columns[j];
-    const base = j * ROW_BLOCK - i0;
+    const base = t * ROW_BLOCK - i0;
     if (!p.centre || !p.scale) {
       for (let i = i0; i < i0 + len; i++) z[base + i] = x[i];
       continue;
@@ -221,7 +221,7 @@ function crossProducts(
  *   z_j'W z_l = (sum_{S_j} W x_j z_l - c_j sum W z_l) / s_j                      (l dense),
  *   z_j'W z_l = (sum_{S_j and S_l} W x_j x_l - c_l sum_{S_j} W x_j - c_j sum_{S_l} W x_l
  *               + c_j c_l sum W) / (s_j s_l)                                     (l sparse),
- * the intersection found by scattering W x_j into a zeroed vector. For a mostly-zero column
+ * the sums over rows non-zero in both taken row by row from a compressed-row index. For a mostly-zero column
  * |c_j| / s_j is small (at most about sqrt(f / (1 - f)) for a share f of non-zero rows), so the
  * algebraic centring loses no accuracy to cancellation.
  */
@@ -242,7 +242,6 @@ function sparseCrossProducts(
   const sparse: number[] = [];
   for (let j = 0; j < k; j++) (S[j] ? sparse : dense).push(j);
   const ones = buffers.ones ?? (buffers.ones = new Float64Array(n).fill(1));
-  const scatter = buffers.scatter ?? (buffers.scatter = new Float64Array(n));
   const m = dense.length + 1;
   const denseDesign: BlockDesign = {
     rows: n,
@@ -258,53 +257,60 @@ function sparseCrossProducts(
     for (let b = 0; b < dense.length; b++) out[dense[a] * k + dense[b]] = outD[(a + 1) * m + b + 1];
     if (vecD && vectorOut) vectorOut[dense[a]] = vecD[a + 1];
   }
-  // sum_{S_j} W x_j for every sparse column.
-  const swx = new Float64Array(sparse.length);
-  for (let t = 0; t < sparse.length; t++) {
+  // Sparse columns by row (compressed rows; within a row in increasing sparse index), so the
+  // sums over S_j and S_l together cost (non-zeros per row)^2 per row, not a pass per pair.
+  const ns = sparse.length;
+  const start = new Int32Array(n + 1);
+  for (let t = 0; t < ns; t++) {
     const rows = S[sparse[t]]!;
-    const x = p.columns[sparse[t]];
-    let v = 0;
-    for (let r = 0; r < rows.length; r++) v += weights[rows[r]] * x[rows[r]];
-    swx[t] = v;
+    for (let r = 0; r < rows.length; r++) start[rows[r] + 1]++;
   }
-  for (let t = 0; t < sparse.length; t++) {
+  for (let i = 0; i < n; i++) start[i + 1] += start[i];
+  const fillAt = start.slice(0, n);
+  const slot = new Int32Array(start[n]);
+  for (let t = 0; t < ns; t++) {
+    const rows = S[sparse[t]]!;
+    for (let r = 0; r < rows.length; r++) slot[fillAt[rows[r]]++] = t;
+  }
+  // cross[t][u] = sum over rows non-zero in both of W x_t x_u (t <= u); swx[t] = sum_{S_t} W x_t.
+  const cross = new Float64Array(ns * ns);
+  const swx = new Float64Array(ns);
+  for (let i = 0; i < n; i++) {
+    const e = start[i + 1];
+    for (let a = start[i]; a < e; a++) {
+      const t = slot[a];
+      const v = weights[i] * p.columns[sparse[t]][i];
+      swx[t] += v;
+      for (let b = a; b < e; b++) cross[t * ns + slot[b]] += v * p.columns[sparse[slot[b]]][i];
+    }
+  }
+  for (let t = 0; t < ns; t++) {
     const j = sparse[t];
     const rows = S[j]!;
     const x = p.columns[j];
     const cj = centreOf(j);
     const sj = scaleOf(j);
-    let swxx = 0;
-    for (let r = 0; r < rows.length; r++) {
-      const i = rows[r];
-      const v = weights[i] * x[i];
-      scatter[i] = v;
-      swxx += v * x[i];
-    }
-    out[j * k + j] = (swxx - 2 * cj * swx[t] + cj * cj * sumW) / (sj * sj);
+    out[j * k + j] = (cross[t * ns + t] - 2 * cj * swx[t] + cj * cj * sumW) / (sj * sj);
     for (let a = 0; a < dense.length; a++) {
       const l = dense[a];
       const xl = p.columns[l];
-      const cl = centreOf(l);
-      const sl = scaleOf(l);
       let sx = 0;
-      for (let r = 0; r < rows.length; r++) sx += scatter[rows[r]] * xl[rows[r]];
+      for (let r = 0; r < rows.length; r++) {
+        const i = rows[r];
+        sx += weights[i] * x[i] * xl[i];
+      }
       // sum_{S_j} W x_j z_l = (sum_{S_j} W x_j x_l - c_l sum_{S_j} W x_j) / s_l
-      const v = ((sx - cl * swx[t]) / sl - cj * outD[a + 1]) / sj;
+      const v = ((sx - centreOf(l) * swx[t]) / scaleOf(l) - cj * outD[a + 1]) / sj;
       out[j * k + l] = v;
       out[l * k + j] = v;
     }
-    for (let u = t + 1; u < sparse.length; u++) {
+    for (let u = t + 1; u < ns; u++) {
       const l = sparse[u];
-      const rowsL = S[l]!;
-      const xl = p.columns[l];
-      let sx = 0;
-      for (let r = 0; r < rowsL.length; r++) sx += scatter[rowsL[r]] * xl[rowsL[r]];
       const cl = centreOf(l);
-      const v = (sx - cl * swx[t] - cj * swx[u] + cj * cl * sumW) / (sj * scaleOf(l));
+      const v = (cross[t * ns + u] - cl * swx[t] - cj * swx[u] + cj * cl * sumW) / (sj * scaleOf(l));
       out[j * k + l] = v;
       out[l * k + j] = v;
     }
-    for (let r = 0; r < rows.length; r++) scatter[rows[r]] = 0;
     if (vecD && vectorOut && residual) {
       let sr = 0;
       for (let r = 0; r < rows.length; r++) sr += residual[rows[r]] * x[rows[r]];
@@ -369,6 +375,54 @@ export function fittingColumns(p: BlockDesign): Float64Array[] {
   });
 }
 
+/** Indices of the columns without a sparse row list. */
+function denseSlots(sparse: readonly (Int32Array | null)[]): number[] {
+  const slots: number[] = [];
+  for (let j = 0; j < sparse.length; j++) if (!sparse[j]) slots.push(j);
+  return slots;
+}
+
+/**
+ * eta = offset + sum over sparse columns j of g_j (x_j - c_j) / s_j, taken as
+ * (g_j / s_j) x_j on the non-zero rows plus the constant -sum_j g_j c_j / s_j.
+ */
+function sparseLinearPredictor(p: NewtonProblem, sparse: readonly (Int32Array | null)[], g: Float64Array, eta: Float64Array): void {
+  const n = p.rows;
+  let constant = 0;
+  for (let j = 0; j < sparse.length; j++) {
+    if (sparse[j] && p.centre && p.scale) constant -= (g[j] * p.centre[j]) / p.scale[j];
+  }
+  for (let i = 0; i < n; i++) eta[i] = p.offset[i] + constant;
+  for (let j = 0; j < sparse.length; j++) {
+    const rows = sparse[j];
+    if (!rows || g[j] === 0) continue;
+    const x = p.columns[j];
+    const f = p.centre && p.scale ? g[j] / p.scale[j] : g[j];
+    for (let r = 0; r < rows.length; r++) eta[rows[r]] += f * x[rows[r]];
+  }
+}
+
+/** Score entries z_j'(w (y - t mu)) of the sparse columns: (sum over non-zero rows of r x_j - c_j sum r) / s_j. */
+function sparseScore(p: NewtonProblem, sparse: readonly (Int32Array | null)[], mu: Float64Array, scoreOut: Float64Array): void {
+  const n = p.rows;
+  const w = p.weights;
+  const y = p.successes;
+  const t = p.trials;
+  let sumR = 0;
+  for (let i = 0; i < n; i++) sumR += w[i] * (y[i] - t[i] * mu[i]);
+  for (let j = 0; j < sparse.length; j++) {
+    const rows = sparse[j];
+    if (!rows) continue;
+    const x = p.columns[j];
+    let s = 0;
+    for (let r = 0; r < rows.length; r++) {
+      const i = rows[r];
+      s += w[i] * (y[i] - t[i] * mu[i]) * x[i];
+    }
+    scoreOut[j] = p.centre && p.scale ? (s - p.centre[j] * sumR) / p.scale[j] : s;
+  }
+}
+
 /**
  * Evaluate l(g) into eta/mu buffers; returns the kernel log-likelihood (sum over rows). Works a
  * row block at a time: the block's fitting columns give its linear predictor, then its fitted
@@ -384,8 +438,13 @@ function evaluate(
   scoreOut: Float64Array | null = null,
 ): number {
   const n = p.rows;
-  const k = p.columns.length;
   const z = buffers.z;
+  // Sparse columns (see NewtonProblem.sparseRows) are added to eta over their non-zero rows first,
+  // with their centring as one constant; the block loop then handles the other columns.
+  const sparse = p.sparseRows && p.sparseRows.some((r) => r !== null) ? p.sparseRows : null;
+  const slots = sparse ? denseSlots(sparse) : null;
+  const k = slots ? slots.length : p.columns.length;
+  if (sparse) sparseLinearPredictor(p, sparse, g, eta);
   const y = p.successes;
   const t = p.trials;
   const w = p.weights;
@@ -396,21 +455,21 @@ function evaluate(
   for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
     const len = Math.min(ROW_BLOCK, n - i0);
     const i1 = i0 + len;
-    fillBlock(p, i0, len, z);
-    for (let i = i0; i < i1; i++) eta[i] = off[i];
+    fillBlock(p, i0, len, z, slots);
+    if (!sparse) for (let i = i0; i < i1; i++) eta[i] = off[i];
     // Three columns per pass over the block of eta (fewer loads and stores of eta).
     let j = 0;
     for (; j + 2 < k; j += 3) {
-      const ga = g[j];
-      const gb = g[j + 1];
-      const gc = g[j + 2];
+      const ga = g[slots ? slots[j] : j];
+      const gb = g[slots ? slots[j + 1] : j + 1];
+      const gc = g[slots ? slots[j + 2] : j + 2];
       const a = j * ROW_BLOCK - i0;
       const b = a + ROW_BLOCK;
       const c = b + ROW_BLOCK;
       for (let i = i0; i < i1; i++) eta[i] += ga * z[a + i] + gb * z[b + i] + gc * z[c + i];
     }
     for (; j < k; j++) {
-      const gj = g[j];
+      const gj = g[slots ? slots[j] : j];
       if (gj === 0) continue;
       const a = j * ROW_BLOCK - i0;
       for (let i = i0; i < i1; i++) eta[i] += gj * z[a + i];
@@ -448,10 +507,11 @@ function evaluate(
           s1 += res[r + 1] * z[base + r + 1];
         }
         for (; r < len; r++) s0 += res[r] * z[base + r];
-        scoreOut[jj] += s0 + s1;
+        scoreOut[slots ? slots[jj] : jj] += s0 + s1;
       }
     }
   }
+  if (scoreOut && sparse) sparseScore(p, sparse, mu, scoreOut);
   return ll;
 }
 
