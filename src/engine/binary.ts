@@ -663,8 +663,10 @@ function sparseRowLists(columns: readonly Float64Array[], n: number, intercept: 
 
 /** Rows from which the fit starts from a subsample fit (below it a fit from the usual start is quick). */
 export const WARM_START_MIN_ROWS = 40000;
-/** Target number of rows of the warm-start subsample. */
+/** Target number of rows of the warm-start subsample (at least WARM_START_ROWS_PER_COLUMN per column). */
 export const WARM_START_ROWS = 5000;
+/** Rows of the warm-start subsample per design column (wide designs need more for a close information). */
+export const WARM_START_ROWS_PER_COLUMN = 100;
 /** A subsample fit with a fitted probability this far out (|eta| above it) may be near separation: no warm start. */
 const WARM_START_MAX_ETA = 15;
 
@@ -680,7 +682,9 @@ const WARM_START_MAX_ETA = 15;
 function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; information: Float64Array } | null {
   const n = prob.rows;
   if (n < WARM_START_MIN_ROWS) return null;
-  const stride = Math.floor(n / WARM_START_ROWS);
+  // Enough rows per coefficient that the subsample's information is close to the full one's.
+  const stride = Math.max(1, Math.floor(n / Math.max(WARM_START_ROWS, WARM_START_ROWS_PER_COLUMN * prob.columns.length)));
+  if (stride < 2) return null;
   const m = Math.floor((n - 1) / stride) + 1;
   const pick = (src: Float64Array): Float64Array => {
     const out = new Float64Array(m);
@@ -700,10 +704,11 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
   }
   if (!(partSucc > 0 && partSucc < part)) return null;
   const fraction = part / total;
+  const columns = prob.columns.map(pick);
   const sub = newtonLogistic({
     ...prob,
     rows: m,
-    columns: prob.columns.map(pick),
+    columns,
     successes,
     trials,
     weights,
@@ -713,7 +718,7 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
     unitGram: null,
     start: null,
     startInformation: null,
-    sparseRows: null,
+    sparseRows: prob.sparseRows ? sparseRowLists(columns, m, false) : null,
   });
   if (!sub.converged || sub.singular || !sub.coefficients.every(Number.isFinite)) return null;
   for (let r = 0; r < m; r++) if (Math.abs(sub.eta[r]) > WARM_START_MAX_ETA) return null;
