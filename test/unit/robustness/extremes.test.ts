@@ -285,6 +285,16 @@ describe("numeric extremes: rare events and tiny classes", () => {
     expect(ms).toBeLessThan(10000);
   });
 
+  test("one positive in 50,000 rows (the large-data path with a subsample warm start) converges and solves the score equations", () => {
+    const n = 50000;
+    const y = Array.from({ length: n }, (_, i) => (i === 4320 ? 1 : 0));
+    const x = Array.from({ length: n }, (_, i) => ((i * 7919) % 1000) / 100);
+    const m = train(y, col("x", x));
+    expect(codes(m)).toEqual([]);
+    expect(m.fit.converged).toBe(true);
+    expectScoreEquations(m);
+  });
+
   test("one positive in 10,000 rows sharing the largest x with negatives is quasi-separated (SEPARATION_QUASI)", () => {
     const n = 10000;
     // Row 4321 has x = 9.99, the largest value, which ten negative rows share.

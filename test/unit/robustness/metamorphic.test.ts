@@ -262,6 +262,22 @@ describe("metamorphic: affine rescaling of a column", () => {
     );
   });
 
+  test("the same relation holds at 50,000 rows (the large-data path with a subsample warm start)", () => {
+    let state = 3;
+    const u = () => (state = (Math.imul(state, 1664525) + 1013904223) >>> 0) / 4294967296;
+    const x = Array.from({ length: 50000 }, () => u() * 4 - 2);
+    const y = x.map((v) => (u() < 1 / (1 + Math.exp(-v)) ? "yes" : "no"));
+    const base = fit(y, ["x"], x.map((v) => [v]), { positive: "yes" });
+    for (const [a, s] of [[1e-3, 7], [-250, 0.5]]) {
+      const m = fit(y, ["x"], x.map((v) => [a * v + s]), { positive: "yes" });
+      const b1 = coef(base, "yes", "x");
+      const b0 = coef(base, "yes", "(intercept)");
+      expectNear(coef(m, "yes", "x").b, b1.b / a, b1.se / Math.abs(a), `slope, a = ${a}`);
+      expectNear(coef(m, "yes", "x").se, b1.se / Math.abs(a), b1.se / Math.abs(a), `SE, a = ${a}`);
+      expectNear(coef(m, "yes", "(intercept)").b, b0.b - (b1.b * s) / a, Math.max(b0.se, Math.abs((b1.se * s) / a)), `intercept, a = ${a}`);
+    }
+  });
+
   test("with a penalty on standardized coefficients (the default scale) the same relation holds", () => {
     const options: ModelOptions = { penalty: 2, positive: "sick" };
     const base = fit(DATA.binary, DATA.names, DATA.rows, options);
