@@ -84,7 +84,8 @@ export function fittedModel(
   const key = modelCacheKey(l, p, options.model);
   // Same content, same sizes: a cached model's inputs keep the estimate made when it was fitted.
   const cache = modelCache();
-  const known = cache.has(key) ? payloadSizes.get(key) : undefined;
+  // (The shared cache may come from another bundle: `has` is checked before it is used.)
+  const known = typeof cache.has === "function" && cache.has(key) ? payloadSizes.get(key) : undefined;
   if (known) {
     parts[0].bytes = known[0];
     parts[1].bytes = known[1];
