@@ -33,6 +33,12 @@
  *   the penalized likelihood ratio test of Heinze & Schemper (2002).
  * - Missing values: NaN in the response, a predictor, a weight, the offset or the trials marks the
  *   row missing; it is skipped and counted in a ROWS_SKIPPED warning. Infinite values are invalid.
+ * - Large data: from WARM_START_MIN_ROWS rows the Newton-Raphson iterations start from a fit on a
+ *   systematic subsample (see subsampleWarmStart and NewtonProblem.startInformation); from
+ *   SPARSE_MIN_ROWS rows, mostly-zero columns (such as text-level indicators) enter the
+ *   information matrix through their non-zero rows. Neither changes the estimate, covariance
+ *   (always from the information at the estimate) or log-likelihood beyond rounding and the
+ *   convergence rule; `iterations` then counts the steps with the subsample's information too.
  * - Aliasing: a column whose 1 - R^2 on the earlier kept columns (weighted by w t, after centring)
  *   is below ALIAS_TOLERANCE = 1e-9 is dropped and reported not estimable, like R's NA.
  * - Separation (unpenalized, non-Firth fits): when certified, the fit has no usable estimate: the

@@ -10,7 +10,12 @@
  * halves on divergence in the same spirit).
  * Convergence: |D - D_old| / (0.1 + |D|) < tol with D = 2F (the penalized deviance up to a
  * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations;
- * Firth fits additionally need the largest relative step below 1e-11.
+ * Firth fits additionally need the largest relative step below 1e-11. A warm start with an
+ * approximate information (NewtonProblem.startInformation) iterates with it first and stops on the
+ * Newton decrement instead (see there); the information returned is always the exact one.
+ * Layout: the kernels run over row blocks of ROW_BLOCK rows, forming the centred and scaled
+ * columns of a block in a small buffer (no scaled copy of the design); mostly-zero columns may be
+ * handled through their non-zero rows (NewtonProblem.sparseRows).
  * References: P. McCullagh & J. A. Nelder, Generalized Linear Models, 2nd ed. (1989), ch. 2 (IRLS);
  * Firth (1993) and Heinze & Schemper (2002) for the modified score (see firth.ts).
  */
@@ -356,7 +361,8 @@ export function problemGram(p: BlockDesign, weights: Float64Array, out: SquareMa
 
 /**
  * The fitting columns of a problem as whole columns: the columns themselves, or their centred and
- * scaled copies when the problem centres and scales on the fly.
+ * scaled copies (x - centre) / scale when the problem centres and scales on the fly (the
+ * standardization of McCullagh & Nelder 1989, sec. 2.5, kept apart from the data).
  */
 export function fittingColumns(p: BlockDesign): Float64Array[] {
   if (!p.centre || !p.scale) return p.columns;
