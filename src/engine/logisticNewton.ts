@@ -67,15 +67,14 @@ export interface NewtonProblem {
   scale?: Float64Array | null;
   /**
    * An approximation of the information at `start` (for a warm start: the information of a fit on
-   * a subsample, scaled up to the full weight). The first iterations use it in place of Z'WZ
-   * (each then costs one pass over the data, evaluation and score together, instead of a full
+   * a subsample, scaled up to the full weight). The first iterations use it, refined by a BFGS
+   * update along each step, in place of Z'WZ (each then costs one pass over the data, evaluation and score together, instead of a full
    * cross-product); once their predicted relative deviance change (the Newton decrement U'H^{-1}U;
    * Boyd & Vandenberghe, Convex Optimization, 2004, sec. 9.5.1) is below the squared tolerance
    * (see warmDecrementBound), or after MAX_APPROXIMATE_STEPS, the exact information is formed and
    * the iterations finish as Newton-Raphson. Convergence is then also accepted when the exact
    * Newton step predicts a change below that bound, so the information returned is always the
-   * exact one at the returned estimate. Ignored for Firth fits
-   * and fits with held coefficients.
+   * exact one at the returned estimate. Ignored for Firth fits and fits with held coefficients.
    */
   startInformation?: SquareMatrix | null;
   /**
