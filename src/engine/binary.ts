@@ -237,6 +237,32 @@ function validateOptions(o: BinaryFitOptions): Required<Omit<BinaryFitOptions, "
   return { intercept, penalty, penaltyScale, level, intervalMethod, maxIterations, tolerance, biasReduction };
 }
 
+/**
+ * Weighted moments of one column for centring and scaling, computed on x / max|x| so that neither
+ * 1e200 nor 1e-200 overflows or underflows when squared: big = max|x| (1 for an all-zero column),
+ * m = weighted mean of x, and v, ms = weighted sums of squares about the mean and about 0 of
+ * x / big. A function of its own so that V8 optimizes these row loops on their own.
+ */
+function columnMoments(x: Float64Array, a: Float64Array, sumA: number, n: number): { big: number; m: number; v: number; ms: number } {
+  let big = 0;
+  for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(x[i]));
+  if (!(big > 0)) big = 1;
+  // Multiply by reciprocals (cheaper than dividing) unless the reciprocal would overflow.
+  const invBig = 1 / big;
+  const useInv = Number.isFinite(invBig);
+  let m = 0;
+  for (let i = 0; i < n; i++) m += a[i] * (useInv ? x[i] * invBig : x[i] / big);
+  m /= sumA;
+  let v = 0;
+  let ms = 0;
+  for (let i = 0; i < n; i++) {
+    const u = useInv ? x[i] * invBig : x[i] / big;
+    v += a[i] * (u - m) * (u - m);
+    ms += a[i] * u * u;
+  }
+  return { big, m: m * big, v, ms };
+}
+
 /** sum_i w_i log C(t_i, y_i) and the saturated kernel log-likelihood. */
 function constantTerms(d: FitData): { logBinom: number; saturated: number } {
   // 0/1 data: log C(1, y) = 0 and the saturated model fits every row exactly (log-likelihood 0).
@@ -372,24 +398,7 @@ export function fitBinaryModel(
   if (opt.intercept) raw.push(new Float64Array(n).fill(1));
   for (let j = 0; j < q; j++) {
     const x = data.columns[j];
-    // Sums on x / max|x| so that neither 1e200 nor 1e-200 overflows or underflows when squared.
-    let big = 0;
-    for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(x[i]));
-    if (!(big > 0)) big = 1;
-    // Multiply by reciprocals (cheaper than dividing) unless the reciprocal would overflow.
-    const invBig = 1 / big;
-    const useInv = Number.isFinite(invBig);
-    let m = 0;
-    for (let i = 0; i < n; i++) m += a[i] * (useInv ? x[i] * invBig : x[i] / big);
-    m /= sumA;
-    let v = 0;
-    let ms = 0;
-    for (let i = 0; i < n; i++) {
-      const u = useInv ? x[i] * invBig : x[i] / big;
-      v += a[i] * (u - m) * (u - m);
-      ms += a[i] * u * u;
-    }
-    m *= big;
+    const { big, m, v, ms } = columnMoments(x, a, sumA, n);
     sd[j] = big * Math.sqrt(v / sumA);
     const s = opt.intercept ? sd[j] : big * Math.sqrt(ms / sumA);
     scale[j] = s > 0 ? s : 1;
