@@ -886,7 +886,7 @@ function renderMarkdown(r: RunRecord, history: RunRecord[], notes: string): stri
       .join(", ")}.`,
     `- Commit: ${r.commit}.`,
     `- Peers missing: ${r.peersMissing.length ? r.peersMissing.join("; ") : "none"}.`,
-    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is single-threaded JavaScript.",
+    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is JavaScript on one thread (V8's garbage collector uses helper threads).",
     "",
   );
   L.push("### Targets", "", "| target | goal | measured | status |", "|---|---|---|---|");
@@ -986,6 +986,13 @@ function sh(cmd: string, args: string[]): string {
   }
 }
 
+/** HEAD, plus a note when the engine files measured differ from it (others may be mid-edit). */
+function commitDescription(): string {
+  const head = sh("git", ["-C", ROOT, "rev-parse", "--short", "HEAD"]) || "unknown";
+  const dirty = sh("git", ["-C", ROOT, "status", "--porcelain", "--", "src"]).split("\n").filter((l) => l.trim()).length;
+  return dirty ? `${head} plus uncommitted changes in ${dirty} file(s) under src/ (the working tree is what was measured)` : head;
+}
+
 function main(): void {
   if (argv[0] === "--memory-child") {
     memoryChild(argv[1]);
@@ -1082,7 +1089,7 @@ function main(): void {
     boundary,
     memory,
     targets: [],
-    commit: sh("git", ["-C", ROOT, "rev-parse", "--short", "HEAD"]) || "unknown",
+    commit: commitDescription(),
   };
   record.targets = evaluateTargets(record);
   log("\nTargets:");
