@@ -963,7 +963,7 @@ function renderMarkdown(r: RunRecord, history: RunRecord[], notes: string): stri
         return `${m ? (m[1] ?? m[2] ?? m[3]) : t.status} (${t.status})`;
       };
       L.push(
-        `| ${h.date} | \`${h.uptimeStart.replace(/.*load average: /, "")}\` | ${h.commit} | ${cellOf("Binary 100,000")} | ${cellOf("Binary 1,000,000")} | ${cellOf("Multi-class")} | ${cellOf("One-hot")} | ${cellOf("Cell-function")} | ${cellOf("Borderline")} |`,
+        `| ${h.date} | \`${h.uptimeStart.replace(/.*load average: /, "")}\` | ${h.commit.split(" ")[0]}${h.commit.includes(" ") ? " (+ uncommitted)" : ""} | ${cellOf("Binary 100,000")} | ${cellOf("Binary 1,000,000")} | ${cellOf("Multi-class")} | ${cellOf("One-hot")} | ${cellOf("Cell-function")} | ${cellOf("Borderline")} |`,
       );
     }
     L.push("");
