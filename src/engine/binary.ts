@@ -100,6 +100,32 @@ function badOption(name: string, value: unknown, expected: string): never {
   throw problem("BAD_OPTION_VALUE", { name, value, expected });
 }
 
+/**
+ * Standard errors on the original scale, sqrt((T V T')_tt) for the fitting-scale inverse information
+ * V, computed as m_t sqrt(u' V u) with u = T_t / m_t and m_t = max |T_t|: no variance is formed on
+ * the original scale, so a column scaled by 1e200 (variance 1e-400, which underflows to 0) still
+ * gets its standard error (about 1e-200) and finite z and p. Aliased terms stay NaN.
+ */
+function originalScaleStandardErrors(T: Float64Array, V: Float64Array, k: number, kept: readonly number[], p: number): Float64Array {
+  const se = new Float64Array(p).fill(NaN);
+  const u = new Float64Array(k);
+  for (let t = 0; t < k; t++) {
+    let m = 0;
+    for (let a = 0; a < k; a++) m = Math.max(m, Math.abs(T[t * k + a]));
+    if (m === 0) continue;
+    for (let a = 0; a < k; a++) u[a] = T[t * k + a] / m;
+    let q = 0;
+    for (let a = 0; a < k; a++) {
+      if (u[a] === 0) continue;
+      let s = 0;
+      for (let b = 0; b < k; b++) s += V[a * k + b] * u[b];
+      q += u[a] * s;
+    }
+    se[kept[t]] = q >= 0 ? m * Math.sqrt(q) : NaN;
+  }
+  return se;
+}
+
 function diag(code: MessageCode, severity: Severity, params: Record<string, unknown>, extra: Partial<Diagnostic> = {}): Diagnostic {
   return { code, severity, message: formatMessage(code, params), params, ...extra };
 }
@@ -528,9 +554,10 @@ export function fitBinaryModel(
     coefK[r] = s;
   }
   let covK: Float64Array | null = null;
+  let fitInverse: Float64Array | null = null;
   if (!penalized && !separatedUnusable) {
-    const inv = invertSymmetric(fit.information, k);
-    if (inv) covK = congruence(T, inv, k);
+    fitInverse = invertSymmetric(fit.information, k);
+    if (fitInverse) covK = congruence(T, fitInverse, k);
   }
   // Values so extreme that a coefficient (or its variance) is not representable on the original
   // scale (above 1.8e308): no usable estimate, and the message asks for a rescaled column.
@@ -543,11 +570,13 @@ export function fitBinaryModel(
   const unusable = separatedUnusable || overflowTerms.length > 0;
   const coefficients = new Float64Array(p).fill(NaN);
   let covariance: Float64Array | null = null;
+  let standardErrors: Float64Array | null = null;
   if (!unusable) {
     for (let t = 0; t < k; t++) coefficients[kept[t]] = coefK[t];
     if (covK) {
       covariance = new Float64Array(p * p).fill(NaN);
       for (let r = 0; r < k; r++) for (let c = 0; c < k; c++) covariance[kept[r] * p + kept[c]] = covK[r * k + c];
+      standardErrors = originalScaleStandardErrors(T, fitInverse!, k, kept, p);
     }
   }
 
@@ -622,6 +651,7 @@ export function fitBinaryModel(
     level: opt.level,
     penalized,
     intervals,
+    standardErrors,
   });
   return {
     ...base,

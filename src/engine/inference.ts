@@ -60,6 +60,11 @@ export interface CoefficientTableInput {
    * replace the Wald ends. NaN ends stay NaN.
    */
   intervals?: readonly Interval[] | null;
+  /**
+   * Standard errors per stacked coefficient computed without squaring (see binary.ts): they replace
+   * sqrt(covariance diagonal), whose variances underflow to 0 for columns scaled beyond about 1e154.
+   */
+  standardErrors?: Float64Array | null;
 }
 
 /**
@@ -98,7 +103,9 @@ export function buildCoefficientTable(input: CoefficientTableInput): Coefficient
       }
       const b = coefficients[e][j];
       let se = NaN;
-      if (!penalized && covariance) {
+      if (!penalized && input.standardErrors) {
+        se = input.standardErrors[idx];
+      } else if (!penalized && covariance) {
         const v = covariance[idx * m + idx];
         se = v >= 0 ? Math.sqrt(v) : NaN;
       }

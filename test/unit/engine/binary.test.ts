@@ -579,6 +579,19 @@ describe("extreme column scales", () => {
     expectScalarClose(f.table[2].estimate * 1e-120, base.table[2].estimate, 1e-9, "TUCE");
     expectScalarClose(f.table[2].standardError * 1e-120, base.table[2].standardError, 1e-9, "TUCE se");
   });
+
+  test("a column scaled by 1e200 or 1e300 keeps its z and p; its standard error is divided by the scale", () => {
+    // Its variance (about 1e-400) underflows to 0 on the original scale, so the standard error is
+    // taken without squaring; before, SE 0 gave z = Infinity and p = 0, a false significance.
+    const base = fitBinaryModel(spX, spY);
+    for (const scale of [1e200, 1e300]) {
+      const X = design({ GPA: spX.columns[0].map((v) => v * scale), TUCE: spX.columns[1], PSI: spX.columns[2] });
+      const f = fitBinaryModel(X, spY);
+      expectScalarClose(f.table[1].standardError * scale, base.table[1].standardError, 1e-9, "GPA se");
+      expectScalarClose(f.table[1].z, base.table[1].z, 1e-9, "GPA z");
+      expectScalarClose(f.table[1].p, base.table[1].p, 1e-8, "GPA p");
+    }
+  });
 });
 
 describe("robustness on odd inputs (fast-check)", () => {
