@@ -8,8 +8,10 @@
  * Step: g <- g + I_pen^{-1} U, I_pen = Z'WZ + diag(pen), W_i = w_i t_i mu_i (1 - mu_i), U the
  * (modified) score. The step is halved while F does not decrease sufficiently (Armijo's rule; glm.fit
  * halves on divergence in the same spirit).
- * Convergence: |D - D_old| / (0.1 + |D|) < tol with D = 2F (the penalized deviance up to a
- * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R), capped by maxIterations;
+ * Convergence: |D - D_old| / (0.1 w + |D|) < tol with D = 2F (the penalized deviance up to a
+ * constant), the rule of R's glm.fit (R Core Team, src/library/stats/R/glm.R) with its floor 0.1
+ * scaled by the mean case weight w, so that rescaling every weight (say to 1e-12) changes nothing;
+ * capped by maxIterations;
  * Firth fits additionally need the largest relative step below 1e-11. A warm start with an
  * approximate information (NewtonProblem.startInformation) iterates with it first and stops on the
  * Newton decrement instead (see there); the information returned is always the exact one.
@@ -566,6 +568,10 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   let havePrevStep = false;
   const history: Float64Array[] = [];
 
+  // The convergence floor (0.1 in glm.fit) in units of the mean case weight: see the file header.
+  let weightSum = 0;
+  for (let i = 0; i < n; i++) weightSum += p.weights[i];
+  const floor = 0.1 * (n > 0 && weightSum > 0 ? weightSum / n : 1);
   const freeIdx = p.free ? Array.from({ length: k }, (_, j) => j).filter((j) => p.free![j]) : null;
   const g = new Float64Array(k);
   if (p.start) {
@@ -661,7 +667,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     if (approximate) {
       // End of the approximate phase when its step predicts a negligible change (well below the
       // tolerance: the approximate information converges only linearly).
-      const predicted = decrement / (0.1 + Math.abs(2 * objective));
+      const predicted = decrement / (floor + Math.abs(2 * objective));
       if (predicted < warmDecrementBound(p.tolerance) || approximateSteps >= MAX_APPROXIMATE_STEPS) {
         iterations--;
         approximate = false;
@@ -674,7 +680,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       // First step with the exact information after the approximate phase: when it predicts a
       // negligible change, g is the estimate and `info` is already the information there.
       checkDecrement = false;
-      const change = decrement / (0.1 + Math.abs(2 * objective));
+      const change = decrement / (floor + Math.abs(2 * objective));
       if (change < warmDecrementBound(p.tolerance)) {
         iterations--;
         lastChange = change;
@@ -718,7 +724,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       // predicted decrease is below rounding of F, a non-increase is enough.
       const predicted = scale * decrement;
       const sufficient =
-        predicted > 1e-14 * (0.1 + Math.abs(objective))
+        predicted > 1e-14 * (floor + Math.abs(objective))
           ? objTry <= objective - 1e-4 * predicted
           : objTry <= objective + 1e-13 * Math.abs(objective);
       if (sufficient && Number.isFinite(objTry)) {
@@ -739,7 +745,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       // No decrease along the Newton direction: at the optimum up to rounding when the predicted
       // decrease is negligible; otherwise report non-convergence.
       const dev = 2 * objective;
-      lastChange = decrement / (0.1 + Math.abs(dev));
+      lastChange = decrement / (floor + Math.abs(dev));
       converged = lastChange < 10 * p.tolerance;
       break;
     }
@@ -752,7 +758,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     const devOld = 2 * objective;
     objective = objTry;
     const dev = 2 * objective;
-    lastChange = Math.abs(dev - devOld) / (0.1 + Math.abs(dev));
+    lastChange = Math.abs(dev - devOld) / (floor + Math.abs(dev));
     if (p.keepHistory) history.push(Float64Array.from(g));
     if (p.firth) {
       // The accepted candidate's information, weights and factor are already at hand.

@@ -1,3 +1,4 @@
+import { fitBinaryModel } from "../../../src/engine/binary";
 import { newtonLogistic, type NewtonProblem } from "../../../src/engine/logisticNewton";
 import { logSigmoid } from "../../../src/engine/numerics";
 import { expectClose, loadFixture } from "./binaryHelpers";
@@ -86,3 +87,15 @@ describe("Newton-Raphson core", () => {
     expect(r.converged).toBe(false);
   });
 });
+
+describe("convergence floor in units of the case weights", () => {
+  test("weights all 1e-12 give the same estimates as weights 1 (the 0.1 floor scales with the mean weight)", () => {
+    const X = { rows: 10, columns: [Float64Array.from([1, 2, 3, 4, 5, 6, 7, 8, 9, 10])], names: ["x"] };
+    const y = Float64Array.from([0, 0, 1, 0, 1, 0, 1, 1, 0, 1]);
+    const base = fitBinaryModel(X, y);
+    const tiny = fitBinaryModel(X, y, { weights: new Float64Array(10).fill(1e-12) });
+    expect(tiny.converged).toBe(true);
+    expect(Math.abs(tiny.coefficients[0][1] - base.coefficients[0][1])).toBeLessThan(1e-9 * Math.abs(base.coefficients[0][1]));
+  });
+});
+
