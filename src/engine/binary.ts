@@ -582,6 +582,8 @@ export function fitBinaryModel(
 
   // ---- likelihood summaries ----------------------------------------------------------------
   const logLikelihood = fit.logLikelihood + logBinom;
+  // An offset or value so extreme that an observed row gets probability 0 leaves no usable fit.
+  if (!Number.isFinite(logLikelihood) && !separatedUnusable) diagnostics.push(diag("LIKELIHOOD_NOT_FINITE", "error", {}));
   const nullFit = nullModel(data, opt.intercept, opt.maxIterations);
   const nullLogLikelihood = nullFit.logLikelihood + logBinom;
   const deviance = 2 * (saturated - fit.logLikelihood);

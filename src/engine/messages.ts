@@ -259,6 +259,12 @@ export const MESSAGES = {
     template:
       "The coefficient of {columns} is too large to represent as a number, because the column's values are extremely small or extremely large. Rescale the column (for example multiply it by a power of 10) and fit again.",
   },
+  LIKELIHOOD_NOT_FINITE: {
+    cellError: "#N/A",
+    title: "Log-likelihood not finite",
+    template:
+      "The fit gives some rows a probability of exactly 0 for their observed class, so the log-likelihood is not a finite number and no estimate can be trusted. This comes from extreme values in the offset or the predictors: check them, or rescale them, and fit again.",
+  },
   PROFILE_NOT_AVAILABLE: {
     cellError: "#N/A",
     title: "Profile intervals not available",

@@ -655,3 +655,16 @@ describe("coefficients beyond the range of doubles", () => {
     expect(f.covariance).toBeNull();
   });
 });
+
+describe("log-likelihood that is not finite", () => {
+  test("offsets of +-1e300 against the labels are an error diagnostic, not a converged fit", () => {
+    const n = 12;
+    const X = { rows: n, columns: [Float64Array.from({ length: n }, (_, i) => (i * 7) % 5)], names: ["x"] };
+    const y = Float64Array.from({ length: n }, (_, i) => (i % 3 === 0 ? 1 : 0));
+    const offset = Float64Array.from([1e300, 1e12, 1e300, -1.7976931348623157e308, 1e12, 1e12, 1e12, 1e12, 0, 0, 1e12, 1e12]);
+    const f = fitBinaryModel(X, y, { offset });
+    expect(Number.isFinite(f.logLikelihood)).toBe(false);
+    expect(f.diagnostics.find((d) => d.code === "LIKELIHOOD_NOT_FINITE")?.severity).toBe("error");
+  });
+});
+
