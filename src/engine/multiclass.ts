@@ -11,7 +11,7 @@
  *   the slopes). Coefficients only: no classical standard errors or p-values.
  *
  * Fitting: Newton-Raphson on the full Hessian (all equations jointly) with step halving and R's glm
- * convergence rule |dev - dev_old| / (0.1 + |dev|) < tol, on internally centred and scaled columns;
+ * convergence rule |dev - dev_old| / (0.1 w + |dev|) < tol (w the mean case weight), on internally centred and scaled columns;
  * coefficients and covariance are mapped back to the original scale. The softmax subtracts the row
  * maximum and the log-likelihood uses log-sum-exp, so no exponential overflows.
  * Hessian (information) blocks are I_kl = X' diag(w p_k (delta_kl - p_l)) X (Böhning, "Multinomial
@@ -909,6 +909,11 @@ function runNewton(
   const reuseAllowed = prep.n * q * q * kernel.pairs >= REUSE_MIN_WORK;
   const M = E * q;
   const d = prep.penaltyWeight;
+  // Convergence floor (0.1 in glm.fit) in units of the mean case weight, so that rescaling every
+  // weight changes nothing (the binary fit's rule, logisticNewton.ts).
+  let weightSum = 0;
+  for (let i = 0; i < prep.n; i++) weightSum += prep.w[i];
+  const floor = 0.1 * (prep.n > 0 && weightSum > 0 ? weightSum / prep.n : 1);
   // Symmetric form: the likelihood is flat along "add c to every intercept"; the side condition
   // sum_k a_k = 0 is imposed through (coupling / 2) (sum_k a_k)^2, zero at the solution.
   const coupling = symmetric && opts.intercept ? total / K : 0;
@@ -989,7 +994,7 @@ function runNewton(
     const predictedLast =
       requireDecrement &&
       decrementNow * contraction < REUSE_DECREMENT / 4 &&
-      decrementNow < (opts.tolerance / 4) * (0.1 + 2 * Math.abs(objective));
+      decrementNow < (opts.tolerance / 4) * (floor + 2 * Math.abs(objective));
     const predictedFresh =
       !reuseAllowed || chordSteps >= MAX_REUSED_STEPS || (!warmStarted && !(lastChange < REUSE_INFORMATION_BELOW));
     const wantInformation = predictedFresh || predictedLast;
@@ -1018,7 +1023,7 @@ function runNewton(
     for (let r = 0; r < M; r++) lastStep[r] = step * delta[r];
     theta.set(trial);
     // Convergence rule of R's glm.fit on the (penalized) deviance.
-    lastChange = Math.abs(2 * newObj - 2 * objective) / (0.1 + Math.abs(2 * newObj));
+    lastChange = Math.abs(2 * newObj - 2 * objective) / (floor + Math.abs(2 * newObj));
     logLik = newLl;
     objective = newObj;
     if (lastChange < opts.tolerance) {

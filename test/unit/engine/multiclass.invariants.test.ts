@@ -213,3 +213,21 @@ describe("large data with a rare class", () => {
     expect(worst).toBeLessThan(1e-6);
   });
 });
+
+describe("convergence floor in units of the case weights", () => {
+  test("weights all 1e-12 give the same estimates as weights 1", () => {
+    const x = Float64Array.from([1, 2, 3, 4, 5, 6, 1, 2, 3, 4, 5, 6, 2, 5]);
+    const cls = Int32Array.from([0, 1, 2, 0, 1, 2, 1, 0, 2, 0, 1, 2, 2, 1]);
+    const X = { rows: x.length, columns: [x], names: ["x"] };
+    const base = fitMulticlassModel(X, cls, ["a", "b", "c"]);
+    const tiny = fitMulticlassModel(X, cls, ["a", "b", "c"], { weights: new Float64Array(x.length).fill(1e-12) });
+    expect(tiny.converged).toBe(true);
+    for (let e = 0; e < base.coefficients.length; e++) {
+      for (let j = 0; j < base.terms.length; j++) {
+        const b = base.coefficients[e][j];
+        expect(Math.abs(tiny.coefficients[e][j] - b)).toBeLessThan(1e-7 * Math.max(1, Math.abs(b)));
+      }
+    }
+  });
+});
+
