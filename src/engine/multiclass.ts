@@ -352,7 +352,7 @@ export function fitMulticlassModel(
   }
 
   // ---- back to the original scale ------------------------------------------------------------------
-  const { coefficients, covariance } = toOriginalScale(prep, newton, E, pFull, intercept, penalized);
+  const { coefficients, covariance, standardErrors } = toOriginalScale(prep, newton, E, pFull, intercept, penalized);
   const table = buildCoefficientTable({
     terms,
     equationClasses: shell.equationClasses,
@@ -361,6 +361,7 @@ export function fitMulticlassModel(
     aliased,
     level: opts.level,
     penalized,
+    standardErrors,
   });
   const parameters = E * prep.z.length;
   const nullParameters = intercept ? E : 0;
@@ -507,27 +508,30 @@ function prepare(
     const col = new Float64Array(n);
     if (allRows) col.set(x);
     else for (let r = 0; r < n; r++) col[r] = x[used[r]];
-    let mean = 0;
     let maxAbs = 0;
-    for (let r = 0; r < n; r++) {
-      const v = col[r];
-      mean += w[r] * v;
-      if (Math.abs(v) > maxAbs) maxAbs = Math.abs(v);
-    }
-    mean /= total;
+    for (let r = 0; r < n; r++) if (Math.abs(col[r]) > maxAbs) maxAbs = Math.abs(col[r]);
+    // Moments of the values divided by their largest magnitude m, so that squares of values near
+    // 1e300 (or 1e-300) neither overflow nor underflow; mean, SD and RMS are m times those.
+    const m = maxAbs > 0 ? maxAbs : 1;
+    let meanU = 0;
+    for (let r = 0; r < n; r++) meanU += w[r] * (col[r] / m);
+    meanU /= total;
     let ss = 0;
     let sq = 0;
     for (let r = 0; r < n; r++) {
-      const v = col[r];
-      ss += w[r] * (v - mean) * (v - mean);
-      sq += w[r] * v * v;
+      const u = col[r] / m;
+      ss += w[r] * (u - meanU) * (u - meanU);
+      sq += w[r] * u * u;
     }
-    const sd = Math.sqrt(ss / total); // population SD, weighted by the case weights
+    const sdU = Math.sqrt(ss / total); // population SD (over m), weighted by the case weights
     // Policy: with an intercept a constant column is aliased with it; an all-zero column always is.
-    if (intercept ? !(sd > CONSTANT_COLUMN_SHARE * maxAbs) : maxAbs === 0) continue;
-    const c = intercept ? mean : 0;
-    const s = intercept ? sd : Math.sqrt(sq / total);
-    for (let r = 0; r < n; r++) col[r] = (col[r] - c) / s;
+    if (intercept ? !(sdU > CONSTANT_COLUMN_SHARE) : maxAbs === 0) continue;
+    const cU = intercept ? meanU : 0;
+    const sU = intercept ? sdU : Math.sqrt(sq / total);
+    for (let r = 0; r < n; r++) col[r] = (col[r] / m - cU) / sU;
+    const sd = m * sdU;
+    const c = m * cU;
+    const s = m * sU;
     z.push(col);
     termOfColumn.push(j + offset);
     centre.push(c);
@@ -1311,7 +1315,7 @@ function toOriginalScale(
   pFull: number,
   intercept: boolean,
   penalized: boolean,
-): { coefficients: Float64Array[]; covariance: Float64Array | null } {
+): { coefficients: Float64Array[]; covariance: Float64Array | null; standardErrors: Float64Array | null } {
   const q = prep.z.length;
   // b = T gamma per equation: slope_t = gamma_j / s_j; intercept = alpha - sum_j gamma_j c_j / s_j.
   const T = new Float64Array(pFull * q); // row = full term, column = internal column
@@ -1340,10 +1344,32 @@ function toOriginalScale(
     }
     coefficients.push(b);
   }
-  if (penalized || !newton.inverseInformation) return { coefficients, covariance: null };
+  if (penalized || !newton.inverseInformation) return { coefficients, covariance: null, standardErrors: null };
   const V = newton.inverseInformation;
   const Mq = E * q;
   const Mf = E * pFull;
+  // Standard errors sqrt(T_t V_e T_t') taken as m sqrt(u' V_e u), u = T_t / m, m = max |T_t|: no
+  // original-scale variance is formed, so columns scaled by 1e300 or 1e-300 (variances 1e-600 or
+  // 1e600, beyond the double range) still get their standard errors and finite z and p.
+  const standardErrors = new Float64Array(Mf).fill(NaN);
+  const u = new Float64Array(q);
+  for (let t = 0; t < pFull; t++) {
+    if (!estimable[t]) continue;
+    let m = 0;
+    for (let j = 0; j < q; j++) m = Math.max(m, Math.abs(T[t * q + j]));
+    if (m === 0) continue;
+    for (let j = 0; j < q; j++) u[j] = T[t * q + j] / m;
+    for (let e = 0; e < E; e++) {
+      let quad = 0;
+      for (let j = 0; j < q; j++) {
+        if (u[j] === 0) continue;
+        let acc = 0;
+        for (let k = 0; k < q; k++) acc += V[(e * q + j) * Mq + e * q + k] * u[k];
+        quad += u[j] * acc;
+      }
+      standardErrors[e * pFull + t] = quad >= 0 ? m * Math.sqrt(quad) : NaN;
+    }
+  }
   // cov = (I_E (x) T) V (I_E (x) T)'; rows/columns of aliased terms are NaN.
   const TV = new Float64Array(Mf * Mq);
   for (let e = 0; e < E; e++) {
@@ -1375,7 +1401,7 @@ function toOriginalScale(
       cov[r * Mf + c] = s;
     }
   }
-  return { coefficients, covariance: mirrorUpper(cov, Mf) };
+  return { coefficients, covariance: mirrorUpper(cov, Mf), standardErrors };
 }
 
 /** What every result carries, failed or not. */

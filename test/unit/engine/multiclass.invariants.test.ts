@@ -231,3 +231,22 @@ describe("convergence floor in units of the case weights", () => {
   });
 });
 
+describe("predictor magnitudes near the ends of the double range", () => {
+  test("a predictor scaled by 1e300 or 1e-300 is fitted like the unscaled one: slope, SE and z rescale exactly", () => {
+    const x = Float64Array.from([1, 2, 3, 4, 5, 6, 1, 2, 3, 4, 5, 6]);
+    const cls = Int32Array.from([0, 1, 2, 0, 1, 2, 1, 0, 2, 0, 1, 2]);
+    const base = fitMulticlassModel({ rows: 12, columns: [x], names: ["x"] }, cls, ["a", "b", "c"]);
+    for (const scale of [1e300, 1e-300]) {
+      const f = fitMulticlassModel({ rows: 12, columns: [x.map((v) => v * scale)], names: ["x"] }, cls, ["a", "b", "c"]);
+      expect(f.diagnostics.filter((d) => d.severity !== "note").map((d) => d.code)).toEqual([]);
+      for (let e = 0; e < 2; e++) {
+        const row = f.table[e * 2 + 1];
+        const ref = base.table[e * 2 + 1];
+        expect(Math.abs(row.estimate * scale - ref.estimate)).toBeLessThan(1e-9 * Math.abs(ref.estimate));
+        expect(Math.abs(row.standardError * scale - ref.standardError)).toBeLessThan(1e-9 * ref.standardError);
+        expect(Math.abs(row.z - ref.z)).toBeLessThan(1e-9 * Math.abs(ref.z));
+      }
+    }
+  });
+});
+
