@@ -31,6 +31,12 @@ export interface PolyState {
   alpha: number[];
   /** Orthogonal only: (1, n, |p_1|^2, ..., |p_d|^2) (R's coefs$norm2). */
   norm2: number[];
+  /**
+   * Orthogonal only: the unit x is measured in for alpha and norm2 (absent = 1, R's convention).
+   * Values beyond about 1e100 or below 1e-100 in magnitude are divided by their largest magnitude
+   * first, since |p_d|^2 would overflow or underflow; orthonormal columns do not change with the unit.
+   */
+  unit?: number;
   names: string[];
 }
 
@@ -85,6 +91,11 @@ export function fitPoly(column: BasisColumn, options: PolyOptions): PolyState {
   }
   if (!orthogonal) return state;
 
+  const unit = polynomialUnit(x);
+  if (unit !== 1) {
+    state.unit = unit;
+    for (let i = 0; i < x.length; i++) x[i] /= unit;
+  }
   // Centre first (as R does) so the sums below do not lose digits to a large mean.
   const n = x.length;
   let mean = 0;
@@ -121,6 +132,13 @@ export function fitPoly(column: BasisColumn, options: PolyOptions): PolyState {
   return state;
 }
 
+/** Largest magnitude of `x` when it lies outside [1e-100, 1e100] (then x is measured in it), else 1. */
+function polynomialUnit(x: ArrayLike<number>): number {
+  let m = 0;
+  for (let i = 0; i < x.length; i++) m = Math.max(m, Math.abs(x[i]));
+  return m > 1e100 || (m > 0 && m < 1e-100) ? m : 1;
+}
+
 /**
  * Apply a fitted polynomial basis to rows. Blank or text cells give NaN in that row and a row note.
  * Orthogonal columns use R's predict.poly recurrence with the stored alpha and norm2.
@@ -136,12 +154,14 @@ export function applyPoly(state: PolyState, column: BasisColumn): BasisBlock {
     for (let i = 0; i < n; i++) for (let k = 0; k < d; k++) columns[k][i] = Math.pow(x[i], k + 1);
   } else {
     const { alpha, norm2 } = state;
+    const unit = state.unit ?? 1;
     for (let i = 0; i < n; i++) {
+      const xi = x[i] / unit;
       let pPrev = 1;
-      let pCur = x[i] - alpha[0];
+      let pCur = xi - alpha[0];
       columns[0][i] = pCur / Math.sqrt(norm2[2]);
       for (let k = 2; k <= d; k++) {
-        const pNext = (x[i] - alpha[k - 1]) * pCur - (norm2[k] / norm2[k - 1]) * pPrev;
+        const pNext = (xi - alpha[k - 1]) * pCur - (norm2[k] / norm2[k - 1]) * pPrev;
         pPrev = pCur;
         pCur = pNext;
         columns[k - 1][i] = pCur / Math.sqrt(norm2[k + 1]);

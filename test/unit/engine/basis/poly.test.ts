@@ -56,3 +56,20 @@ describe("polynomial basis", () => {
     expect(b.notes[0].message).toContain('("abc") is not a number');
   });
 });
+
+describe("orthogonal polynomials at extreme magnitudes", () => {
+  test("data multiplied by 1e300 or 1e-300 gives the same columns as the data itself", () => {
+    const base = [0, 1, 2, 0.5, 3, 1.5, 2.5];
+    const columnsAt = (c: number) => {
+      const col = { name: "a", values: base.map((v) => v * c) };
+      return applyPoly(fitPoly(col, { degree: 3, orthogonal: true }), col).columns;
+    };
+    const ref = columnsAt(1);
+    for (const c of [1e300, 1e-300]) {
+      const got = columnsAt(c);
+      for (let k = 0; k < ref.length; k++) {
+        for (let i = 0; i < base.length; i++) expect(Math.abs(got[k][i] - ref[k][i])).toBeLessThan(1e-12);
+      }
+    }
+  });
+});
