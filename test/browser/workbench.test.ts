@@ -108,6 +108,13 @@ async function listedRows(page: Page): Promise<{ row: number; probability: strin
   );
 }
 
+/** Use the demo table and choose a natural spline for "firmness" in the pane's basis builder. */
+async function chooseSplineForFirmness(page: Page): Promise<void> {
+  await page.click("#osm-use");
+  await page.waitForSelector('#osm-basis-columns select[data-column="firmness"]');
+  await page.selectOption('#osm-basis-columns select[data-column="firmness"]', "ns");
+}
+
 describe("preview workbench", () => {
   test("the pane shows the safety cautions", async () => {
     const page = await openWorkbench();
@@ -251,9 +258,7 @@ describe("preview workbench", () => {
 
   test("spline basis columns built in the pane bend the boundary, and the list matches the engine", async () => {
     const page = await openWorkbench();
-    await page.click("#osm-use");
-    await page.waitForSelector('#osm-basis-columns select[data-column="firmness"]');
-    await page.selectOption('#osm-basis-columns select[data-column="firmness"]', "ns");
+    await chooseSplineForFirmness(page);
     expect(await page.inputValue("#osm-recipe")).toBe("firmness: ns(df=3)");
     await page.click("#osm-basis-write");
     await page.waitForFunction(() => /^Added 3 columns/.test(document.querySelector("#osm-basis-preview")?.textContent ?? ""));
@@ -310,9 +315,7 @@ describe("preview workbench", () => {
 
   test("basis columns written as values do not follow a new row, and the pane says so", async () => {
     const page = await openWorkbench();
-    await page.click("#osm-use");
-    await page.waitForSelector('#osm-basis-columns select[data-column="firmness"]');
-    await page.selectOption('#osm-basis-columns select[data-column="firmness"]', "ns");
+    await chooseSplineForFirmness(page);
     await page.check("#osm-basis-values");
     await page.click("#osm-basis-write");
     await page.waitForFunction(() => /^Added 3 columns/.test(document.querySelector("#osm-basis-preview")?.textContent ?? ""));
