@@ -58,8 +58,8 @@ import {
   penalizedNote,
   type Interval,
 } from "./inference";
-import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix } from "./linalg";
-import { fittingColumns, newtonLogistic, problemGram, type NewtonProblem, type NewtonResult } from "./logisticNewton";
+import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, type RankRevealingResult } from "./linalg";
+import { fittingColumns, newtonLogistic, problemGram, type BlockDesign, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
 import { firthProfileIntervals, PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
@@ -422,9 +422,11 @@ export function fitBinaryModel(
   // Newton core (no scaled copy of the design); the intercept column passes through unchanged.
   const raw: Float64Array[] = [];
   if (opt.intercept) raw.push(new Float64Array(n).fill(1));
+  const moments: ReturnType<typeof columnMoments>[] = [];
   for (let j = 0; j < q; j++) {
     const x = data.columns[j];
-    const { big, m, v, ms } = columnMoments(x, a, sumA, n);
+    moments.push(columnMoments(x, a, sumA, n));
+    const { big, m, v, ms } = moments[j];
     sd[j] = big * Math.sqrt(v / sumA);
     const s = opt.intercept ? sd[j] : big * Math.sqrt(ms / sumA);
     scale[j] = s > 0 ? s : 1;
@@ -446,12 +448,27 @@ export function fitBinaryModel(
 
   // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
   const sparseAll = sparseRowLists(raw, n, opt.intercept);
-  const unitGram = problemGram({ rows: n, columns: raw, centre: centreAll, scale: scaleAll, sparseRows: sparseAll }, a);
   // A ridge penalty makes collinear columns estimable, so it enters the rank decision; Firth's
   // penalty needs log det of the unpenalized information, so with bias reduction it does not.
-  const gram = Float64Array.from(unitGram);
-  if (!opt.biasReduction) for (let j = 0; j < p; j++) gram[j * p + j] += penaltyAll[j];
-  const rr = rankRevealingCholesky(gram, p, ALIAS_TOLERANCE);
+  const rankPenalty = opt.biasReduction ? new Float64Array(p) : penaltyAll;
+  // Large data: a subsample may already prove that no column is aliased (see subsampleRankBound).
+  const fullDiagonal = new Float64Array(p);
+  for (let j = 0; j < p; j++) {
+    const c = j - off0;
+    const m = c < 0 ? sumA : (moments[c].big / scale[c]) ** 2 * (opt.intercept ? moments[c].v : moments[c].ms);
+    fullDiagonal[j] = m + rankPenalty[j];
+  }
+  const provenFullRank = !opt.biasReduction && subsampleRankBound({ rows: n, columns: raw, centre: centreAll, scale: scaleAll, sparseRows: sparseAll }, a, rankPenalty, fullDiagonal);
+  let unitGram: Float64Array | null = null;
+  let rr: RankRevealingResult;
+  if (provenFullRank) {
+    rr = { rank: p, independent: Array.from({ length: p }, (_, j) => j), dependent: [], residualShare: new Float64Array(p).fill(NaN) };
+  } else {
+    unitGram = problemGram({ rows: n, columns: raw, centre: centreAll, scale: scaleAll, sparseRows: sparseAll }, a);
+    const gram = Float64Array.from(unitGram);
+    for (let j = 0; j < p; j++) gram[j * p + j] += rankPenalty[j];
+    rr = rankRevealingCholesky(gram, p, ALIAS_TOLERANCE);
+  }
   const aliased = new Array<boolean>(p).fill(false);
   for (const j of rr.dependent) aliased[j] = true;
   if (rr.dependent.length > 0) {
@@ -486,7 +503,7 @@ export function fitBinaryModel(
     maxIterations: opt.maxIterations,
     tolerance: opt.tolerance,
     keepHistory: !penalized && !opt.biasReduction,
-    unitGram: subMatrix(unitGram, p, kept),
+    unitGram: unitGram ? subMatrix(unitGram, p, kept) : null,
   };
   // Large data: start from a fit on a systematic subsample, with its information scaled up
   // standing in for the full-data one at first (see NewtonProblem.startInformation).
@@ -718,6 +735,60 @@ export const WARM_START_ROWS_PER_COLUMN = 100;
 const WARM_START_MAX_ETA = 15;
 
 /**
+ * Margin of the subsample's rank proof over ALIAS_TOLERANCE: far above the rounding of either
+ * Cholesky, so the proof never decides a case the full-data check would call the other way.
+ */
+const RANK_PROOF_MARGIN = 1000;
+
+/** Every stride-th row of a large design for the warm start and the rank proof, or 0 (no subsample). */
+function subsampleStride(n: number, k: number): number {
+  if (n < WARM_START_MIN_ROWS) return 0;
+  // Enough rows per coefficient that the subsample's information is close to the full one's.
+  const stride = Math.max(1, Math.floor(n / Math.max(WARM_START_ROWS, WARM_START_ROWS_PER_COLUMN * k)));
+  return stride < 2 ? 0 : stride;
+}
+
+/** Every stride-th entry of a column. */
+function pickRows(src: Float64Array, stride: number): Float64Array {
+  const m = Math.floor((src.length - 1) / stride) + 1;
+  const out = new Float64Array(m);
+  for (let r = 0; r < m; r++) out[r] = src[r * stride];
+  return out;
+}
+
+/**
+ * True when a subsample proves that the full-data rank check (rankRevealingCholesky of Z'AZ + P
+ * with ALIAS_TOLERANCE) keeps every column, so that large fits skip that full pass of p(p+1)/2 dot
+ * products. The proof: the full Gram matrix is the subsample's plus the other rows' (and P is at
+ * least the subsample's share of it), so it dominates the subsample's in the positive
+ * semi-definite order, and so does every Schur complement: the residual d_j of column j on the
+ * earlier columns is at least the subsample's (Horn & Johnson, Matrix Analysis, 2013, sec. 7.7).
+ * When every subsample residual, divided by the full diagonal A_jj (known from the column
+ * moments), is above RANK_PROOF_MARGIN x ALIAS_TOLERANCE, each full 1 - R^2 is above the tolerance
+ * and every column is kept. Otherwise (some column might be aliased) false, and the caller forms
+ * the full matrix as for small data.
+ */
+function subsampleRankBound(design: BlockDesign, a: Float64Array, penalty: Float64Array, fullDiagonal: Float64Array): boolean {
+  const n = design.rows;
+  const p = design.columns.length;
+  const stride = subsampleStride(n, p);
+  if (stride === 0) return false;
+  const columns = design.columns.map((x) => pickRows(x, stride));
+  const subA = pickRows(a, stride);
+  const m = subA.length;
+  const sub: BlockDesign = { rows: m, columns, centre: design.centre, scale: design.scale, sparseRows: design.sparseRows ? sparseRowLists(columns, m, false) : null };
+  const gram = problemGram(sub, subA);
+  for (let j = 0; j < p; j++) gram[j * p + j] += penalty[j] * (m / n);
+  const rr = rankRevealingCholesky(gram, p, 0);
+  if (rr.dependent.length > 0) return false;
+  for (let j = 0; j < p; j++) {
+    const residual = rr.residualShare[j] * gram[j * p + j];
+    if (!(residual / fullDiagonal[j] > RANK_PROOF_MARGIN * ALIAS_TOLERANCE)) return false;
+  }
+  return true;
+}
+
+/**
  * Starting values for a large fit: the (penalized) maximum likelihood estimate on every
  * stride-th row, and that fit's information scaled up by total weight / subsample weight as an
  * approximation of the full information there (they differ by about 1/sqrt(subsample size)).
@@ -728,16 +799,10 @@ const WARM_START_MAX_ETA = 15;
  */
 function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; information: Float64Array } | null {
   const n = prob.rows;
-  if (n < WARM_START_MIN_ROWS) return null;
-  // Enough rows per coefficient that the subsample's information is close to the full one's.
-  const stride = Math.max(1, Math.floor(n / Math.max(WARM_START_ROWS, WARM_START_ROWS_PER_COLUMN * prob.columns.length)));
-  if (stride < 2) return null;
+  const stride = subsampleStride(n, prob.columns.length);
+  if (stride === 0) return null;
   const m = Math.floor((n - 1) / stride) + 1;
-  const pick = (src: Float64Array): Float64Array => {
-    const out = new Float64Array(m);
-    for (let r = 0; r < m; r++) out[r] = src[r * stride];
-    return out;
-  };
+  const pick = (src: Float64Array): Float64Array => pickRows(src, stride);
   const successes = pick(prob.successes);
   const trials = pick(prob.trials);
   const weights = pick(prob.weights);

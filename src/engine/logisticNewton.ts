@@ -144,12 +144,14 @@ export type BlockDesign = Pick<NewtonProblem, "rows" | "columns" | "centre" | "s
 interface BlockBuffers {
   z: Float64Array;
   wz: Float64Array;
+  /** Per-column multipliers of the fused evaluation (length k). */
+  multipliers: Float64Array;
   /** Sparse columns only: a column of ones (length rows), made on first use. */
   ones?: Float64Array;
 }
 
 function blockBuffers(k: number): BlockBuffers {
-  return { z: new Float64Array(Math.max(k, 1) * ROW_BLOCK), wz: new Float64Array(Math.max(k, 1) * ROW_BLOCK) };
+  return { z: new Float64Array(Math.max(k, 1) * ROW_BLOCK), wz: new Float64Array(Math.max(k, 1) * ROW_BLOCK), multipliers: new Float64Array(k) };
 }
 
 /**
@@ -449,6 +451,10 @@ function evaluate(
   // Sparse columns (see NewtonProblem.sparseRows) are added to eta over their non-zero rows first,
   // with their centring as one constant; the block loop then handles the other columns.
   const sparse = p.sparseRows && p.sparseRows.some((r) => r !== null) ? p.sparseRows : null;
+  if (!sparse) {
+    const f = fusedMultipliers(p, g, buffers.multipliers);
+    if (f) return evaluateDense(p, f, eta, mu, buffers.wz, scoreOut);
+  }
   const slots = sparse ? denseSlots(sparse) : null;
   const k = slots ? slots.length : p.columns.length;
   if (sparse) sparseLinearPredictor(p, sparse, g, eta);
@@ -522,6 +528,134 @@ function evaluate(
   return ll;
 }
 
+/**
+ * Per-column multipliers of the fused evaluation (evaluateDense): f_j = g_j / s_j, so that
+ * g_j z_ij = f_j (x_ij - c_j), and r_j = 1 / s_j for the score. Null when some column's scale or
+ * multiplier lies outside [FUSED_MIN, FUSED_MAX] (data near the ends of the double range), where the
+ * block path, which forms z_ij first, keeps its accuracy.
+ */
+function fusedMultipliers(p: NewtonProblem, g: Float64Array, out: Float64Array): Float64Array | null {
+  const k = p.columns.length;
+  for (let j = 0; j < k; j++) {
+    const s = p.centre && p.scale ? p.scale[j] : 1;
+    const f = g[j] / s;
+    if (!(s >= FUSED_MIN && s <= FUSED_MAX)) return null;
+    const af = Math.abs(f);
+    if (f !== 0 && !(af >= FUSED_MIN && af <= FUSED_MAX)) return null;
+    out[j] = f;
+  }
+  return out;
+}
+
+/** Range of scales and multipliers the fused evaluation accepts (far from overflow and subnormals). */
+const FUSED_MIN = 1e-250;
+const FUSED_MAX = 1e250;
+
+/**
+ * evaluate for a design without sparse columns, with the centring and scaling fused into the row
+ * loops instead of forming each block's fitting columns: eta_i = offset_i + sum_j f_j (x_ij - c_j)
+ * with f_j = g_j / s_j, and the score's z_j'res = (sum_i res_i (x_ij - c_j)) / s_j. The same
+ * arithmetic as the block path up to the order of two roundings, with one pass over each column
+ * per block for eta and one for the score. Row blocks keep a block's slices of the columns in
+ * cache between the two.
+ */
+function evaluateDense(
+  p: NewtonProblem,
+  f: Float64Array,
+  eta: Float64Array,
+  mu: Float64Array,
+  res: Float64Array,
+  scoreOut: Float64Array | null,
+): number {
+  const n = p.rows;
+  const k = p.columns.length;
+  const cols = p.columns;
+  const centre = p.centre && p.scale ? p.centre : null;
+  const y = p.successes;
+  const t = p.trials;
+  const w = p.weights;
+  const off = p.offset;
+  if (scoreOut) scoreOut.fill(0);
+  let ll = 0;
+  for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
+    const i1 = Math.min(i0 + ROW_BLOCK, n);
+    for (let i = i0; i < i1; i++) eta[i] = off[i];
+    let j = 0;
+    for (; j + 2 < k; j += 3) {
+      const xa = cols[j];
+      const xb = cols[j + 1];
+      const xc = cols[j + 2];
+      const fa = f[j];
+      const fb = f[j + 1];
+      const fc = f[j + 2];
+      const ca = centre ? centre[j] : 0;
+      const cb = centre ? centre[j + 1] : 0;
+      const cc = centre ? centre[j + 2] : 0;
+      for (let i = i0; i < i1; i++) eta[i] += fa * (xa[i] - ca) + fb * (xb[i] - cb) + fc * (xc[i] - cc);
+    }
+    for (; j < k; j++) {
+      const fj = f[j];
+      if (fj === 0) continue;
+      const x = cols[j];
+      const cj = centre ? centre[j] : 0;
+      for (let i = i0; i < i1; i++) eta[i] += fj * (x[i] - cj);
+    }
+    // One exp and one log1p per row, as in evaluate.
+    for (let i = i0; i < i1; i++) {
+      const e = eta[i];
+      const u = Math.exp(-Math.abs(e));
+      const L = Math.log1p(u);
+      const yi = y[i];
+      const fi = t[i] - yi;
+      let li = 0;
+      if (e >= 0) {
+        mu[i] = 1 / (1 + u);
+        if (yi !== 0) li -= yi * L;
+        if (fi !== 0) li -= fi * (e + L);
+      } else {
+        mu[i] = u / (1 + u);
+        if (yi !== 0) li += yi * (e - L);
+        if (fi !== 0) li -= fi * L;
+      }
+      ll += w[i] * li;
+    }
+    if (!scoreOut) continue;
+    const len = i1 - i0;
+    for (let i = i0; i < i1; i++) res[i - i0] = w[i] * (y[i] - t[i] * mu[i]);
+    j = 0;
+    for (; j + 2 < k; j += 3) {
+      const xa = cols[j];
+      const xb = cols[j + 1];
+      const xc = cols[j + 2];
+      const ca = centre ? centre[j] : 0;
+      const cb = centre ? centre[j + 1] : 0;
+      const cc = centre ? centre[j + 2] : 0;
+      let sa = 0;
+      let sb = 0;
+      let sc = 0;
+      for (let r = 0; r < len; r++) {
+        const v = res[r];
+        const i = i0 + r;
+        sa += v * (xa[i] - ca);
+        sb += v * (xb[i] - cb);
+        sc += v * (xc[i] - cc);
+      }
+      scoreOut[j] += sa;
+      scoreOut[j + 1] += sb;
+      scoreOut[j + 2] += sc;
+    }
+    for (; j < k; j++) {
+      const x = cols[j];
+      const cj = centre ? centre[j] : 0;
+      let s0 = 0;
+      for (let r = 0; r < len; r++) s0 += res[r] * (x[i0 + r] - cj);
+      scoreOut[j] += s0;
+    }
+  }
+  if (scoreOut && centre && p.scale) for (let j = 0; j < k; j++) scoreOut[j] /= p.scale[j];
+  return ll;
+}
+
 /** I = Z'WZ (upper triangle then mirrored) with W_i = w_i t_i mu_i (1 - mu_i); fills fisherW. */
 function information(p: NewtonProblem, mu: Float64Array, fisherW: Float64Array, buffers: BlockBuffers, out: SquareMatrix): SquareMatrix {
   const n = p.rows;
@@ -588,9 +722,10 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   }
 
   // State at g: log-likelihood, objective (needs log det I for Firth), information and its factor.
-  let ll = evaluate(p, g, eta, mu, buffers);
-  // Warm start: iterate with the approximate information until the changes are small.
+  // Warm start: iterate with the approximate information until the changes are small. Its first
+  // score comes with the evaluation at the start (no separate pass).
   let approximate = !!p.startInformation && !p.firth && !p.free;
+  let ll = evaluate(p, g, eta, mu, buffers, approximate ? score : null);
   let approximateSteps = 0;
   let checkDecrement = false; // after switching to the exact information: test the Newton decrement first
   let constantMu = !!p.unitGram && !approximate;
@@ -604,7 +739,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   } else {
     information(p, mu, fisherW, buffers, info);
   }
-  let scoreReady = false; // true when the score's Z' part at g is already in `score` (computed with I)
+  let scoreReady = approximate; // true when the score's Z' part at g is already in `score`
   let factor = firthFactor(p, info, k);
   let singular = factor === null && p.firth;
   let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
