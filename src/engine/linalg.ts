@@ -368,6 +368,64 @@ export function congruence(t: SquareMatrix, a: SquareMatrix, n: number): SquareM
 }
 
 /**
+ * Add the upper triangle (3 x 3 tiles on and above the diagonal) of one row block's Gram matrix
+ * A'A to `out`: out[j][l] += sum_r a_j[r] a_l[r] for the tiles with l >= j, where column j of the
+ * block is a[j*stride .. j*stride+len) and k is a multiple of 3 (pad with zero columns); `out` is
+ * k*k row-major and its entries below the diagonal inside the diagonal tiles are meant to be
+ * overwritten by {@link mirrorUpper}. With a = sqrt(W) Z (each row scaled by the square root of its
+ * weight) this accumulates Z'WZ from one buffer; nine independent sums per six loads keep the loop
+ * compute-bound (the blocked, cache-aware organisation of Golub & Van Loan 2013, ch. 1.5).
+ */
+export function accumulateBlockGram(a: Float64Array, k: number, len: number, stride: number, out: SquareMatrix): void {
+  for (let j = 0; j + 2 < k; j += 3) {
+    const a0 = j * stride;
+    const a1 = a0 + stride;
+    const a2 = a1 + stride;
+    for (let l = j; l + 2 < k; l += 3) {
+      const b0 = l * stride;
+      const b1 = b0 + stride;
+      const b2 = b1 + stride;
+      let s00 = 0;
+      let s01 = 0;
+      let s02 = 0;
+      let s10 = 0;
+      let s11 = 0;
+      let s12 = 0;
+      let s20 = 0;
+      let s21 = 0;
+      let s22 = 0;
+      for (let r = 0; r < len; r++) {
+        const x0 = a[a0 + r];
+        const x1 = a[a1 + r];
+        const x2 = a[a2 + r];
+        const y0 = a[b0 + r];
+        const y1 = a[b1 + r];
+        const y2 = a[b2 + r];
+        s00 += x0 * y0;
+        s01 += x0 * y1;
+        s02 += x0 * y2;
+        s10 += x1 * y0;
+        s11 += x1 * y1;
+        s12 += x1 * y2;
+        s20 += x2 * y0;
+        s21 += x2 * y1;
+        s22 += x2 * y2;
+      }
+      const o = j * k + l;
+      out[o] += s00;
+      out[o + 1] += s01;
+      out[o + 2] += s02;
+      out[o + k] += s10;
+      out[o + k + 1] += s11;
+      out[o + k + 2] += s12;
+      out[o + 2 * k] += s20;
+      out[o + 2 * k + 1] += s21;
+      out[o + 2 * k + 2] += s22;
+    }
+  }
+}
+
+/**
  * Add the upper triangle of one row block's cross-product to `out`: out[j][l] += sum_r a_j[r] b_l[r]
  * for l >= j, where column j of the block is a[j*stride .. j*stride+len) (likewise b); `out` is
  * k*k row-major. Entries below the diagonal may also receive values (the tiles overlap it) and are

@@ -23,7 +23,7 @@
  */
 
 import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
-import { accumulateBlockCrossProduct, cholesky, choleskySolve, mirrorUpper, subMatrix, type SquareMatrix } from "./linalg";
+import { accumulateBlockCrossProduct, accumulateBlockGram, cholesky, choleskySolve, mirrorUpper, subMatrix, type SquareMatrix } from "./linalg";
 
 /** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
 export interface NewtonProblem {
@@ -72,11 +72,14 @@ export interface NewtonProblem {
    * a subsample, scaled up to the full weight). The first iterations use it, refined by a BFGS
    * update along each step, in place of Z'WZ (each then costs one pass over the data, evaluation and score together, instead of a full
    * cross-product); once their predicted relative deviance change (the Newton decrement U'H^{-1}U;
-   * Boyd & Vandenberghe, Convex Optimization, 2004, sec. 9.5.1) is below the squared tolerance
-   * (see warmDecrementBound), or after MAX_APPROXIMATE_STEPS, the exact information is formed and
-   * the iterations finish as Newton-Raphson. Convergence is then also accepted when the exact
-   * Newton step predicts a change below that bound, so the information returned is always the
-   * exact one at the returned estimate. Ignored for Firth fits and fits with held coefficients.
+   * Boyd & Vandenberghe, Convex Optimization, 2004, sec. 9.5.1) is below the tolerance, or after
+   * MAX_APPROXIMATE_STEPS, the exact information is formed and the iterations finish as
+   * Newton-Raphson under the usual rule: the exact step that follows changes the deviance by less
+   * than the tolerance, and being quadratically convergent it leaves a change of about its square,
+   * as the last step of a fit from the usual start does. When the exact step predicts a change
+   * below the squared tolerance (see exactDecrementBound) it is not taken. Either way the
+   * information returned is the exact one at the returned estimate. Ignored for Firth fits and
+   * fits with held coefficients.
    */
   startInformation?: SquareMatrix | null;
   /**
@@ -121,13 +124,13 @@ const FIRTH_STEP_TOLERANCE = 1e-11;
 const MAX_APPROXIMATE_STEPS = 12;
 
 /**
- * The approximate phase ends, and the first exact step is skipped, only when the predicted
- * relative deviance change (the Newton decrement) is below the square of the tolerance. The usual
- * rule stops after a Newton step whose change was below the tolerance, and that last
- * quadratically convergent step leaves a change of about its square: the warm-started estimate is
+ * The first exact step after the approximate phase is skipped only when its predicted relative
+ * deviance change (the Newton decrement) is below the square of the tolerance. The usual rule
+ * stops after a Newton step whose change was below the tolerance, and that last quadratically
+ * convergent step leaves a change of about its square: an estimate accepted without the step is
  * held to the same closeness to the optimum.
  */
-function warmDecrementBound(tolerance: number): number {
+function exactDecrementBound(tolerance: number): number {
   return tolerance * tolerance;
 }
 
@@ -146,6 +149,10 @@ interface BlockBuffers {
   wz: Float64Array;
   /** Per-column multipliers of the fused evaluation (length k). */
   multipliers: Float64Array;
+  /** denseCrossProducts only, made on first use: the sqrt(W)-scaled block, its Gram sums, the root weights. */
+  gramBlock?: Float64Array;
+  gramOut?: Float64Array;
+  rootWeights?: Float64Array;
   /** Sparse columns only: a column of ones (length rows), made on first use. */
   ones?: Float64Array;
 }
@@ -194,6 +201,7 @@ function crossProducts(
   vectorOut: Float64Array | null = null,
 ): SquareMatrix {
   if (p.sparseRows && p.sparseRows.some((r) => r !== null)) return sparseCrossProducts(p, weights, out, buffers, residual, vectorOut);
+  if (fusedScalesOk(p)) return denseCrossProducts(p, weights, out, buffers, residual, vectorOut);
   const n = p.rows;
   const k = p.columns.length;
   const { z, wz } = buffers;
@@ -219,6 +227,66 @@ function crossProducts(
     }
     accumulateBlockCrossProduct(wz, z, k, len, ROW_BLOCK, out);
   }
+  return mirrorUpper(out, k);
+}
+
+/** True when every column's scale lies in [FUSED_MIN, FUSED_MAX] (see fusedMultipliers). */
+function fusedScalesOk(p: BlockDesign): boolean {
+  if (!p.centre || !p.scale) return true;
+  for (let j = 0; j < p.columns.length; j++) {
+    const s = p.scale[j];
+    if (!(s >= FUSED_MIN && s <= FUSED_MAX)) return false;
+  }
+  return true;
+}
+
+/**
+ * crossProducts for a design without sparse columns and with scales in the fused range: each row
+ * block is formed once as sqrt(W_i) z_ij (the weights are >= 0) in a buffer padded with zero
+ * columns to a multiple of 3, and its Gram matrix accumulated by accumulateBlockGram; the score
+ * part z_j'residual is taken from the original columns with the centring fused, as in
+ * evaluateDense. One buffer instead of a weighted and an unweighted copy halves the block's
+ * memory traffic. Rounding: sqrt(W)^2 differs from W by at most an ulp, below the sums' own.
+ */
+function denseCrossProducts(
+  p: BlockDesign,
+  weights: Float64Array,
+  out: SquareMatrix,
+  buffers: BlockBuffers,
+  residual: Float64Array | null,
+  vectorOut: Float64Array | null,
+): SquareMatrix {
+  const n = p.rows;
+  const k = p.columns.length;
+  const kp = 3 * Math.ceil(k / 3);
+  const cols = p.columns;
+  const centre = p.centre && p.scale ? p.centre : null;
+  const scale = p.scale;
+  const z = buffers.gramBlock ?? (buffers.gramBlock = new Float64Array(Math.max(kp, 3) * ROW_BLOCK));
+  const acc = buffers.gramOut ?? (buffers.gramOut = new Float64Array(kp * kp));
+  const sw = buffers.rootWeights ?? (buffers.rootWeights = new Float64Array(ROW_BLOCK));
+  acc.fill(0);
+  z.fill(0);
+  if (vectorOut) vectorOut.fill(0);
+  for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
+    const len = Math.min(ROW_BLOCK, n - i0);
+    for (let r = 0; r < len; r++) sw[r] = Math.sqrt(weights[i0 + r]);
+    for (let j = 0; j < k; j++) {
+      const x = cols[j];
+      const c = centre ? centre[j] : 0;
+      const inv = centre && scale ? 1 / scale[j] : 1;
+      const base = j * ROW_BLOCK;
+      for (let r = 0; r < len; r++) z[base + r] = sw[r] * ((x[i0 + r] - c) * inv);
+      if (residual && vectorOut) {
+        let s0 = 0;
+        for (let r = 0; r < len; r++) s0 += residual[i0 + r] * (x[i0 + r] - c);
+        vectorOut[j] += s0 * inv;
+      }
+    }
+    if (len < ROW_BLOCK) for (let j = 0; j < k; j++) z.fill(0, j * ROW_BLOCK + len, (j + 1) * ROW_BLOCK);
+    accumulateBlockGram(z, kp, len, ROW_BLOCK, acc);
+  }
+  for (let j = 0; j < k; j++) for (let l = j; l < k; l++) out[j * k + l] = acc[j * kp + l];
   return mirrorUpper(out, k);
 }
 
@@ -800,10 +868,10 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     let decrement = 0;
     for (let j = 0; j < k; j++) decrement += score[j] * step[j];
     if (approximate) {
-      // End of the approximate phase when its step predicts a negligible change (well below the
-      // tolerance: the approximate information converges only linearly).
+      // End of the approximate phase when its step predicts a change below the tolerance: the
+      // exact Newton step that follows then finishes the fit (see NewtonProblem.startInformation).
       const predicted = decrement / (floor + Math.abs(2 * objective));
-      if (predicted < warmDecrementBound(p.tolerance) || approximateSteps >= MAX_APPROXIMATE_STEPS) {
+      if (predicted < p.tolerance || approximateSteps >= MAX_APPROXIMATE_STEPS) {
         iterations--;
         approximate = false;
         exactInformationAndScore();
@@ -816,7 +884,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       // negligible change, g is the estimate and `info` is already the information there.
       checkDecrement = false;
       const change = decrement / (floor + Math.abs(2 * objective));
-      if (change < warmDecrementBound(p.tolerance)) {
+      if (change < exactDecrementBound(p.tolerance)) {
         iterations--;
         lastChange = change;
         converged = true;
