@@ -127,96 +127,148 @@ const U32 = new Uint32Array(F64.buffer);
 
 /** Type tags, fed before each value: they keep 1, "1", TRUE, "" and a blank apart. */
 const TAG = { blank: 1, number: 2, true: 3, false: 4, text: 5, array: 6, typed: 7, object: 8, other: 9, end: 10 } as const;
+/** TAG.number and TAG.text as plain constants for the hot loop. */
+const NUMBER_TAG = 2;
+const TEXT_TAG = 5;
 
-/**
- * Two 32-bit streams folded over 32-bit units (FNV-1a style multiply-xor; the second stream uses
- * another prime, mixes the position and shifts), 64 bits of key in all. Numbers enter as the two
+/*
+ * The key: two 32-bit streams folded over 32-bit units (FNV-1a style multiply-xor; the second stream
+ * uses another prime, mixes the position and shifts), 64 bits of key in all. Numbers enter as the two
  * words of their IEEE-754 bits, text as UTF-16 code units, each value after a type tag.
  * FNV: G. Fowler, L. C. Noll, K.-P. Vo, "FNV hash", IETF draft-eastlake-fnv (2019).
+ *
+ * The state (stream a, stream b, units so far) lives in an Int32Array and the feeding functions are
+ * plain module functions: a worksheet row is hashed in one loop over locals, and the optimized code
+ * depends on no per-call object (code specialized on one would be thrown away at the next collection).
  */
-class KeyHasher {
-  private a = 0x811c9dc5;
-  private b = 0x01000193 ^ 0x5bd1e995;
-  private n = 0;
+type KeyState = Int32Array;
+const A = 0;
+const B = 1;
+const N = 2;
 
-  private unit(c: number): void {
-    this.a = Math.imul(this.a ^ c, 0x01000193);
-    this.b = Math.imul(this.b ^ (c + this.n), 0x5bd1e995);
-    this.b ^= this.b >>> 15;
-    this.n = (this.n + 1) | 0;
-  }
+function newState(): KeyState {
+  const st = new Int32Array(3);
+  st[A] = 0x811c9dc5;
+  st[B] = 0x01000193 ^ 0x5bd1e995;
+  return st;
+}
 
-  private text(s: string): void {
-    this.unit(s.length);
-    for (let i = 0; i < s.length; i++) this.unit(s.charCodeAt(i));
-  }
+function unit(st: KeyState, c: number): void {
+  const n = st[N];
+  st[A] = Math.imul(st[A] ^ c, 0x01000193);
+  const b = Math.imul(st[B] ^ (c + n), 0x5bd1e995);
+  st[B] = b ^ (b >>> 15);
+  st[N] = (n + 1) | 0;
+}
 
-  private number(x: number): void {
-    F64[0] = x === 0 ? 0 : x; // -0 and 0 are the same cell value
-    this.unit(U32[0]);
-    this.unit(U32[1]);
-  }
+function feedText(st: KeyState, s: string): void {
+  unit(st, s.length);
+  for (let i = 0; i < s.length; i++) unit(st, s.charCodeAt(i));
+}
 
-  value(v: unknown): void {
-    if (v === null || v === undefined) this.unit(TAG.blank);
-    else if (typeof v === "number") {
-      this.unit(TAG.number);
-      this.number(v);
-    } else if (typeof v === "boolean") this.unit(v ? TAG.true : TAG.false);
-    else if (typeof v === "string") {
-      this.unit(TAG.text);
-      this.text(v);
-    } else if (Array.isArray(v)) {
-      this.unit(TAG.array);
-      this.unit(v.length);
-      for (let i = 0; i < v.length; i++) {
-        const x = v[i];
-        if (typeof x !== "number") {
-          this.value(x);
-          continue;
-        }
-        // Numbers (most cells) inline, in locals: the same three units as value() feeds.
-        F64[0] = x === 0 ? 0 : x;
-        let a = this.a;
-        let b = this.b;
-        let n = this.n;
-        for (let u = 0; u < 3; u++) {
-          const c = u === 0 ? TAG.number : U32[u - 1];
-          a = Math.imul(a ^ c, 0x01000193);
-          b = Math.imul(b ^ (c + n), 0x5bd1e995);
-          b ^= b >>> 15;
-          n = (n + 1) | 0;
-        }
-        this.a = a;
-        this.b = b;
-        this.n = n;
-      }
-    } else if (ArrayBuffer.isView(v) && "length" in v) {
-      const arr = v as unknown as ArrayLike<number>;
-      this.unit(TAG.typed);
-      this.unit(arr.length);
-      for (let i = 0; i < arr.length; i++) this.number(arr[i]);
-    } else if (typeof v === "object") {
-      const obj = v as Record<string, unknown>;
-      const keys = Object.keys(obj)
-        .filter((k) => obj[k] !== undefined)
-        .sort();
-      this.unit(TAG.object);
-      this.unit(keys.length);
-      for (const k of keys) {
-        this.text(k);
-        this.value(obj[k]);
+function feedNumber(st: KeyState, x: number): void {
+  F64[0] = x === 0 ? 0 : x; // -0 and 0 are the same cell value
+  unit(st, U32[0]);
+  unit(st, U32[1]);
+}
+
+/**
+ * The elements of an array (typically a worksheet row), each as feedValue feeds it, with numbers and
+ * text, most cells, hashed in locals.
+ */
+function feedElements(st: KeyState, v: readonly unknown[]): void {
+  let a = st[A];
+  let b = st[B];
+  let n = st[N];
+  for (let i = 0; i < v.length; i++) {
+    const x = v[i];
+    if (typeof x === "number") {
+      // TAG.number, then the two words of the bits (-0 as 0), as feedValue feeds a number.
+      F64[0] = x === 0 ? 0 : x;
+      const lo = U32[0];
+      const hi = U32[1];
+      a = Math.imul(a ^ NUMBER_TAG, 0x01000193);
+      b = Math.imul(b ^ (NUMBER_TAG + n), 0x5bd1e995);
+      b ^= b >>> 15;
+      n = (n + 1) | 0;
+      a = Math.imul(a ^ lo, 0x01000193);
+      b = Math.imul(b ^ (lo + n), 0x5bd1e995);
+      b ^= b >>> 15;
+      n = (n + 1) | 0;
+      a = Math.imul(a ^ hi, 0x01000193);
+      b = Math.imul(b ^ (hi + n), 0x5bd1e995);
+      b ^= b >>> 15;
+      n = (n + 1) | 0;
+    } else if (typeof x === "string") {
+      // TAG.text, the length, then the UTF-16 code units, as feedValue feeds text.
+      for (let u = -2; u < x.length; u++) {
+        const c = u === -2 ? TEXT_TAG : u === -1 ? x.length : x.charCodeAt(u);
+        a = Math.imul(a ^ c, 0x01000193);
+        b = Math.imul(b ^ (c + n), 0x5bd1e995);
+        b ^= b >>> 15;
+        n = (n + 1) | 0;
       }
     } else {
-      this.unit(TAG.other);
-      this.text(String(v));
+      st[A] = a;
+      st[B] = b;
+      st[N] = n;
+      feedValue(st, x);
+      a = st[A];
+      b = st[B];
+      n = st[N];
     }
   }
+  st[A] = a;
+  st[B] = b;
+  st[N] = n;
+}
 
-  digest(): string {
-    const hex = (x: number) => (x >>> 0).toString(16).padStart(8, "0");
-    return hex(this.a) + hex(this.b) + ":" + (this.n >>> 0).toString(36);
+function feedValue(st: KeyState, v: unknown): void {
+  if (v === null || v === undefined) unit(st, TAG.blank);
+  else if (typeof v === "number") {
+    unit(st, TAG.number);
+    feedNumber(st, v);
+  } else if (typeof v === "boolean") unit(st, v ? TAG.true : TAG.false);
+  else if (typeof v === "string") {
+    unit(st, TAG.text);
+    feedText(st, v);
+  } else if (Array.isArray(v)) {
+    unit(st, TAG.array);
+    unit(st, v.length);
+    // A range's rows: each row's cells in one loop.
+    for (let i = 0; i < v.length; i++) {
+      const row: unknown = v[i];
+      if (Array.isArray(row)) {
+        unit(st, TAG.array);
+        unit(st, row.length);
+        feedElements(st, row);
+      } else feedValue(st, row);
+    }
+  } else if (ArrayBuffer.isView(v) && "length" in v) {
+    const arr = v as unknown as ArrayLike<number>;
+    unit(st, TAG.typed);
+    unit(st, arr.length);
+    for (let i = 0; i < arr.length; i++) feedNumber(st, arr[i]);
+  } else if (typeof v === "object") {
+    const obj = v as Record<string, unknown>;
+    const keys = Object.keys(obj)
+      .filter((k) => obj[k] !== undefined)
+      .sort();
+    unit(st, TAG.object);
+    unit(st, keys.length);
+    for (const k of keys) {
+      feedText(st, k);
+      feedValue(st, obj[k]);
+    }
+  } else {
+    unit(st, TAG.other);
+    feedText(st, String(v));
   }
+}
+
+function digest(st: KeyState): string {
+  const hex = (x: number) => (x >>> 0).toString(16).padStart(8, "0");
+  return hex(st[A]) + hex(st[B]) + ":" + (st[N] >>> 0).toString(36);
 }
 
 /**
@@ -225,9 +277,9 @@ class KeyHasher {
  * @example contentKey("fit", [[1, "a"]], { penalty: 0 }) === contentKey("fit", [[1, "a"]], { penalty: 0 })
  */
 export function contentKey(...parts: unknown[]): string {
-  const h = new KeyHasher();
-  for (const p of parts) h.value(p);
-  return h.digest();
+  const st = newState();
+  for (const p of parts) feedValue(st, p);
+  return digest(st);
 }
 
 /** Number of cells in a list of 2-D ranges (non-arrays count 1). */
