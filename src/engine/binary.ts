@@ -63,7 +63,7 @@ import { fittingColumns, newtonLogistic, problemGram, type BlockDesign, type New
 import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
 import { firthProfileIntervals, PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
-import { separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
+import { responseSides, separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
 import type { BinaryFitOptions, DesignMatrix, Diagnostic, ModelFit, Severity } from "./types";
 
 /** Defaults of the fit options (see FitOptions in types.ts). */
@@ -264,15 +264,34 @@ function validateOptions(o: BinaryFitOptions): Required<Omit<BinaryFitOptions, "
 }
 
 /**
- * Weighted moments of one column for centring and scaling, computed on x / max|x| so that neither
- * 1e200 nor 1e-200 overflows or underflows when squared: big = max|x| (1 for an all-zero column),
- * m = weighted mean of x, and v, ms = weighted sums of squares about the mean and about 0 of
- * x / big. A function of its own so that V8 optimizes these row loops on their own.
+ * Weighted moments of one column for centring and scaling: big = max|x| (1 for an all-zero
+ * column), m = weighted mean of x, and v, ms = weighted sums of squares about the mean and about 0
+ * of x / big. When big lies in [MOMENT_SAFE_MIN, MOMENT_SAFE_MAX] the sums are taken on x itself
+ * (no square or sum can overflow or underflow there) and divided by big^2 at the end; otherwise on
+ * x / big, so that neither 1e200 nor 1e-200 overflows or underflows when squared. Two passes: the
+ * maximum with the weighted sum, then the squares. A function of its own so that V8 optimizes
+ * these row loops on their own.
  */
 function columnMoments(x: Float64Array, a: Float64Array, sumA: number, n: number): { big: number; m: number; v: number; ms: number } {
   let big = 0;
-  for (let i = 0; i < n; i++) big = Math.max(big, Math.abs(x[i]));
+  let sum = 0;
+  for (let i = 0; i < n; i++) {
+    big = Math.max(big, Math.abs(x[i]));
+    sum += a[i] * x[i];
+  }
   if (!(big > 0)) big = 1;
+  if (big >= MOMENT_SAFE_MIN && big <= MOMENT_SAFE_MAX) {
+    const m = sum / sumA;
+    let v = 0;
+    let ms = 0;
+    for (let i = 0; i < n; i++) {
+      const d = x[i] - m;
+      v += a[i] * d * d;
+      ms += a[i] * x[i] * x[i];
+    }
+    const big2 = big * big;
+    return { big, m, v: v / big2, ms: ms / big2 };
+  }
   // Multiply by reciprocals (cheaper than dividing) unless the reciprocal would overflow.
   const invBig = 1 / big;
   const useInv = Number.isFinite(invBig);
@@ -288,6 +307,13 @@ function columnMoments(x: Float64Array, a: Float64Array, sumA: number, n: number
   }
   return { big, m: m * big, v, ms };
 }
+
+/**
+ * Range of max|x| in which columnMoments sums x and x^2 directly: squares stay within about
+ * 1e+-200 and sums of up to 2^53 weighted squares far from overflow.
+ */
+const MOMENT_SAFE_MIN = 1e-100;
+const MOMENT_SAFE_MAX = 1e100;
 
 /** sum_i w_i log C(t_i, y_i) and the saturated kernel log-likelihood. */
 function constantTerms(d: FitData): { logBinom: number; saturated: number } {
@@ -514,10 +540,11 @@ export function fitBinaryModel(
   // ---- separation --------------------------------------------------------------------------
   let separation: SeparationFinding | null = null;
   const univariate: { col: number; rows: number[]; complete: boolean }[] = [];
+  const sides = responseSides(response);
   for (let t = 0; t < k; t++) {
     const j = kept[t];
     if (j === interceptIndex && opt.intercept) continue;
-    const u = univariateSeparation(data.columns[j - off0], response);
+    const u = univariateSeparation(data.columns[j - off0], response, sides);
     if (u) univariate.push({ col: t, rows: u.rows, complete: u.complete });
   }
   if (!penalized && !opt.biasReduction) {

@@ -648,7 +648,31 @@ function evaluateDense(
   for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
     const i1 = Math.min(i0 + ROW_BLOCK, n);
     for (let i = i0; i < i1; i++) eta[i] = off[i];
+    // Six columns, then three, per pass over the block's eta (fewer loads and stores of eta).
     let j = 0;
+    for (; j + 5 < k; j += 6) {
+      const xa = cols[j];
+      const xb = cols[j + 1];
+      const xc = cols[j + 2];
+      const xd = cols[j + 3];
+      const xe = cols[j + 4];
+      const xf = cols[j + 5];
+      const fa = f[j];
+      const fb = f[j + 1];
+      const fc = f[j + 2];
+      const fd = f[j + 3];
+      const fe = f[j + 4];
+      const ff = f[j + 5];
+      const ca = centre ? centre[j] : 0;
+      const cb = centre ? centre[j + 1] : 0;
+      const cc = centre ? centre[j + 2] : 0;
+      const cd = centre ? centre[j + 3] : 0;
+      const ce = centre ? centre[j + 4] : 0;
+      const cf = centre ? centre[j + 5] : 0;
+      for (let i = i0; i < i1; i++) {
+        eta[i] += fa * (xa[i] - ca) + fb * (xb[i] - cb) + fc * (xc[i] - cc) + fd * (xd[i] - cd) + fe * (xe[i] - ce) + ff * (xf[i] - cf);
+      }
+    }
     for (; j + 2 < k; j += 3) {
       const xa = cols[j];
       const xb = cols[j + 1];

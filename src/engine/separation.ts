@@ -37,27 +37,71 @@ export interface BinaryResponse {
   trials: Float64Array;
 }
 
+/** Rows with at least one success and rows with at least one failure (ascending). */
+export interface ResponseSides {
+  successRows: Int32Array;
+  failureRows: Int32Array;
+}
+
+/** Rows scanned from each side between the overlap checks of univariateSeparation. */
+const SEPARATION_CHUNK = 1024;
+
+/**
+ * The rows of a binary response with a success and those with a failure (a grouped row with
+ * both is in both), computed once and shared by the univariate checks of every column.
+ */
+export function responseSides(r: BinaryResponse): ResponseSides {
+  let ns = 0;
+  let nf = 0;
+  for (let i = 0; i < r.rows; i++) {
+    if (r.successes[i] > 0) ns++;
+    if (r.trials[i] - r.successes[i] > 0) nf++;
+  }
+  const successRows = new Int32Array(ns);
+  const failureRows = new Int32Array(nf);
+  ns = 0;
+  nf = 0;
+  for (let i = 0; i < r.rows; i++) {
+    if (r.successes[i] > 0) successRows[ns++] = i;
+    if (r.trials[i] - r.successes[i] > 0) failureRows[nf++] = i;
+  }
+  return { successRows, failureRows };
+}
+
 /**
  * Univariate separation check of one column: is there a threshold c such that every row with a
  * failure has x <= c and every row with a success has x >= c (or the mirror image)?
- * Returns the finding (rows strictly on their side) or null. Exact; O(rows).
+ * Returns the finding (rows strictly on their side) or null. Exact; O(rows). `sides` may be passed
+ * when several columns share the response (see responseSides).
  * Reference: Albert & Anderson (1984), separation by a single covariate.
  */
-export function univariateSeparation(x: Float64Array, r: BinaryResponse): { direction: 1 | -1; threshold: number; complete: boolean; rows: number[] } | null {
+export function univariateSeparation(
+  x: Float64Array,
+  r: BinaryResponse,
+  sides: ResponseSides = responseSides(r),
+): { direction: 1 | -1; threshold: number; complete: boolean; rows: number[] } | null {
+  // Ranges of x over the rows with a success and over those with a failure, a chunk of each at a
+  // time; once the two ranges overlap both ways no threshold can exist and the scan stops (for
+  // data without separation that is usually within the first chunk).
+  const { successRows, failureRows } = sides;
   let maxFail = -Infinity;
   let minFail = Infinity;
   let maxSucc = -Infinity;
   let minSucc = Infinity;
-  for (let i = 0; i < r.rows; i++) {
-    const v = x[i];
-    if (r.successes[i] > 0) {
-      if (v > maxSucc) maxSucc = v;
-      if (v < minSucc) minSucc = v;
+  for (let s0 = 0, f0 = 0; s0 < successRows.length || f0 < failureRows.length; s0 += SEPARATION_CHUNK, f0 += SEPARATION_CHUNK) {
+    const s1 = Math.min(s0 + SEPARATION_CHUNK, successRows.length);
+    for (let t = s0; t < s1; t++) {
+      const v = x[successRows[t]];
+      maxSucc = Math.max(maxSucc, v);
+      minSucc = Math.min(minSucc, v);
     }
-    if (r.trials[i] - r.successes[i] > 0) {
-      if (v > maxFail) maxFail = v;
-      if (v < minFail) minFail = v;
+    const f1 = Math.min(f0 + SEPARATION_CHUNK, failureRows.length);
+    for (let t = f0; t < f1; t++) {
+      const v = x[failureRows[t]];
+      maxFail = Math.max(maxFail, v);
+      minFail = Math.min(minFail, v);
     }
+    if (maxFail > minSucc && maxSucc > minFail) return null;
   }
   let direction: 1 | -1;
   let threshold: number;
