@@ -5,15 +5,20 @@
  * throw RANGE_TOO_LARGE pointing to the task pane (which reads large tables in chunks).
  *
  * Estimate rule (the size of the call written as JSON text, which is how values travel):
- *   - a number costs the length of its shortest decimal text plus 1 separator (e.g. "0.25," = 5);
+ *   - a number costs the length of its shortest decimal text plus 1 separator (e.g. "0.25," = 5),
+ *     except that a number whose shortest text needs 16 or 17 significant digits (full double
+ *     precision, e.g. a computed 0.30000000000000004 or a random draw) between 1e-6 and 1e15 is
+ *     counted as if it needed 17: at most one byte more than its text (measured: about 0.6 bytes per
+ *     number on full-precision random data, about 3% of its JSON size). This keeps the estimate to a
+ *     few operations per number (the 16-or-17 decision would need an error-free product per number);
  *   - a blank (null) costs 5 ("null,"), TRUE 5, FALSE 6;
  *   - text costs its length plus 3 (two quotes and a separator);
  *   - every row costs 2 more ("[" and "],").
  *   Outputs are estimated as their cell count times OUTPUT_BYTES_PER_CELL (a probability written with
  *   17 significant digits plus a separator) and added to the inputs.
- * The exact per-number text is only computed when a cheap bound cannot decide: at 5 bytes per cell
- * (the least any cell costs) a call above the limit is rejected at once, and at 25 bytes per cell
- * (the most a number or blank costs) a call below it passes at once.
+ * The per-cell sizes are only computed when a cheap bound cannot decide: at 5 bytes per cell (the
+ * least any cell costs) a call above the limit is rejected at once, and at 26 bytes per cell (the
+ * most a number or blank costs: "-0.0000012345678901234567,") a call below it passes at once.
  */
 import { problem } from "../engine/messages";
 
@@ -22,7 +27,7 @@ export const PAYLOAD_LIMIT_BYTES = 5_000_000;
 /** Bytes per output cell in the estimate: "0.12345678901234567," is 20 characters. */
 export const OUTPUT_BYTES_PER_CELL = 20;
 const MIN_CELL_BYTES = 5;
-const MAX_NONTEXT_CELL_BYTES = 25;
+const MAX_NONTEXT_CELL_BYTES = 26;
 
 /** One argument of a call, for the estimate: its name (for the message) and its cells. */
 export interface PayloadPart {
@@ -47,7 +52,6 @@ const POW10: number[] = [];
 for (let i = 0, p = 1; i <= 22; i++, p *= 10) POW10.push(p);
 const POW10F = Float64Array.from(POW10);
 const LOG10_2 = 0.3010299956639812;
-const SPLIT = 134217729; // 2^27 + 1, Dekker's splitting constant
 const BITS_F64 = new Float64Array(1);
 const BITS_U32 = new Uint32Array(BITS_F64.buffer);
 
@@ -59,98 +63,17 @@ function integerDigits(x: number): number {
   return d;
 }
 
-/** True when the decimal with `p` significant digits nearest to x (> 0, n = its decimal exponent) reads back as x. */
-function roundTrips(x: number, p: number, n: number): boolean {
-  const m = p - n;
-  if (m >= 0) {
-    const d = Math.round(x * POW10[m]);
-    // d and 10^m are exact doubles, so the quotient is the correctly rounded value of the decimal.
-    return d / POW10[m] === x;
-  }
-  const d = Math.round(x / POW10[-m]);
-  return d * POW10[-m] === x;
-}
-
 /**
- * Length of String(x) for a finite number, without building the string: the count k of significant
- * digits of the shortest decimal that reads back as x and its exponent n give the length by the
- * ECMAScript Number::toString layout (ECMA-262, section Number::toString). k <= 15 is found by exact
- * scaling with the powers 10^0..10^22 (a correctly rounded product or quotient of exact operands is
- * what reading the decimal gives); 16 against 17 digits is decided by an error-free product
- * (T. J. Dekker, "A floating-point technique for extending the available precision", Numer. Math.
- * 18 (1971)) compared with half the spacing of doubles around x. Anything this cannot settle with a
- * clear margin (powers of two, exact ties, numbers outside 1e-6 .. 2^52) falls back to String(x).
+ * Length of String(x) (ECMA-262, Number::toString): counted for integers up to 2^53, built with
+ * String() otherwise. The estimate rule's general way, for the numbers numberCost does not size
+ * itself (zero, integers of 16 digits, and numbers written in exponent form).
  */
 export function numberTextLength(x: number): number {
   const sign = x < 0 ? 1 : 0;
   const a = sign ? -x : x;
   if (a === 0) return 1; // "0" (also for -0)
-  if (Number.isInteger(a)) {
-    if (a <= 9007199254740992) return sign + integerDigits(a);
-    return String(x).length;
-  }
-  if (!(a >= 1e-6 && a < 4503599627370496)) return String(x).length;
-  // n: 10^(n-1) <= a < 10^n, with a in (1e-6, 2^52) so n is in -5 .. 16.
-  let n = Math.floor(Math.log10(a)) + 1;
-  if (n >= 0 && n <= 22 && a >= POW10[n]) n++;
-  else if (n - 1 >= 0 && a < POW10[n - 1]) n--;
-  else if (n - 1 < 0 && a * POW10[1 - n] < 1) n--;
-  if (n < -5 || n > 16) return String(x).length;
-  let k: number;
-  let nOut = n;
-  // Full-precision data mostly needs 17 digits: settle that first, with one error-free product.
-  const sixteen = sixteenDigitsRoundTrip(a, n);
-  if (sixteen === false) k = 17;
-  else if (roundTrips(a, 15, n)) {
-    // The smallest p in 1..15 that reads back (a p-digit decimal is also a (p+1)-digit one).
-    let lo = 1;
-    let hi = 15;
-    while (lo < hi) {
-      const mid = (lo + hi) >> 1;
-      if (roundTrips(a, mid, n)) hi = mid;
-      else lo = mid + 1;
-    }
-    const m = lo - n;
-    let d = m >= 0 ? Math.round(a * POW10[m]) : Math.round(a / POW10[-m]);
-    const digits = integerDigits(d);
-    nOut = n + (digits - lo);
-    while (d % 10 === 0) d /= 10;
-    k = integerDigits(d);
-  } else if (sixteen === true) k = 16;
-  else return String(x).length;
-  return sign + layoutLength(k, nOut);
-}
-
-/** Whether a 16-digit decimal reads back as a (n as in numberTextLength), or null when too close to call. */
-function sixteenDigitsRoundTrip(a: number, n: number): boolean | null {
-  const m = 16 - n;
-  if (m < 0 || m > 22) return null;
-  BITS_F64[0] = a;
-  const hiBits = BITS_U32[1];
-  // A power of two has a narrower gap below it than above: leave it to String().
-  if ((hiBits & 0xfffff) === 0 && BITS_U32[0] === 0) return null;
-  const exponent = ((hiBits >>> 20) & 0x7ff) - 1075; // ulp(a) = 2^exponent
-  if (exponent < -1074 + 52) return null;
-  const b = POW10[m];
-  // Error-free product a * 10^m = ph + pl (Dekker).
-  const ph = a * b;
-  let t = SPLIT * a;
-  const ah = t - (t - a);
-  const al = a - ah;
-  t = SPLIT * b;
-  const bh = t - (t - b);
-  const bl = b - bh;
-  const pl = ((ah * bh - ph) + ah * bl + al * bh) + al * bl;
-  const r = Math.round(ph);
-  if (r < 1e15 || r >= 1e16) return null;
-  let frac = Math.abs((ph - r) + pl);
-  if (frac > 0.5) frac = 1 - frac;
-  // Half the spacing of doubles at a (2^(exponent - 1), built from its bits), scaled by 10^m.
-  BITS_U32[0] = 0;
-  BITS_U32[1] = (exponent - 1 + 1023) << 20;
-  const half = BITS_F64[0] * b;
-  if (Math.abs(frac - half) < 1e-6 * half) return null;
-  return frac < half;
+  if (Number.isInteger(a) && a <= 9007199254740992) return sign + integerDigits(a);
+  return String(x).length;
 }
 
 /** Length of Number::toString's text of k significant digits with decimal exponent n (no sign). */
@@ -162,9 +85,67 @@ function layoutLength(k: number, n: number): number {
   return k + (k > 1 ? 1 : 0) + 2 + (e >= 100 ? 3 : e >= 10 ? 2 : 1);
 }
 
+/**
+ * Per binary exponent (the 11 exponent bits of a double): the decimal exponent n of the smallest
+ * numbers in that binade (10^(n-1) <= 2^e < 10^n) and 10^n; a number of the binade has n or n + 1.
+ */
+const BINADE_N = new Int32Array(2048);
+const BINADE_POW = new Float64Array(2048);
+for (let be = 1; be < 2047; be++) {
+  const n = Math.floor((be - 1023) * LOG10_2) + 1;
+  BINADE_N[be] = n;
+  BINADE_POW[be] = Number(`1e${n}`); // the double nearest 10^n, as reading "1e<n>" gives
+}
+
+/**
+ * Bytes of a number (text plus separator) under the estimate rule, for 1e-6 <= a < 1e15 with a = |x|
+ * and decimal exponent n (10^(n-1) <= a < 10^n, so -5 <= n <= 15). With m = 15 - n, the 15-digit
+ * decimal nearest to a is d / 10^m, d = round(a 10^m): fl(a 10^m) is within 0.12 of the exact product,
+ * and a decimal that reads back as a is within 0.12 of it, so when any decimal of 15 or fewer digits
+ * reads back, d is that decimal (scaled), and d / 10^m (both exact doubles, the quotient correctly
+ * rounded) reads back as a. Then the shortest text is d without its trailing zeros; otherwise the
+ * shortest text has 16 or 17 digits and 17 are counted.
+ */
+function numberBytes(a: number, n: number, sign: number): number {
+  const scale = POW10F[15 - n];
+  const d = Math.round(a * scale);
+  // No decimal of 15 or fewer digits reads back: counted as 17 digits ("d.ddd" or "0.00ddd").
+  if (d / scale !== a) return sign + 19 - Math.min(n, 1) + 1;
+  // d is in [10^14, 10^15] (10^15 when a rounds up to the next power of ten).
+  const digits = d >= 1e15 ? 16 : 15;
+  return sign + layoutLength(digits - trailingZeros(d), n + digits - 15) + 1;
+}
+
+/** Trailing decimal zeros of an integer 0 < d < 2^53 (split in two parts below 10^8). */
+function trailingZeros(d: number): number {
+  const high = Math.floor(d / 1e8);
+  const low = d - high * 1e8;
+  let v = (low === 0 ? high : low) | 0; // below 10^8: an int32
+  let z = low === 0 ? 8 : 0;
+  while (v % 10 === 0) {
+    v = (v / 10) | 0;
+    z++;
+  }
+  return z;
+}
+
+/** Bytes of a number cell (text plus separator) under the estimate rule. */
+function numberCost(x: number): number {
+  // The sign and the decimal exponent from the bits (no data-dependent branch: the signs and sizes
+  // of real data vary from cell to cell), then numberBytes; zero, tiny, huge and non-finite numbers
+  // take the general way.
+  BITS_F64[0] = x;
+  const hi = BITS_U32[1];
+  const be = (hi >>> 20) & 0x7ff;
+  const a = Math.abs(x);
+  const n = BINADE_N[be] + Number(a >= BINADE_POW[be]);
+  if (a >= 1e-6 && a < 1e15) return numberBytes(a, n, hi >>> 31);
+  return numberTextLength(x) + 1;
+}
+
 function cellBytes(v: unknown): number {
   if (v === null || v === undefined) return 5;
-  if (typeof v === "number") return numberTextLength(v) + 1;
+  if (typeof v === "number") return numberCost(v);
   if (typeof v === "boolean") return v ? 5 : 6;
   if (typeof v === "string") return v.length + 3;
   return String(v).length + 3;
@@ -186,54 +167,7 @@ export function estimateBytes(value: unknown): number {
         bytes += cellBytes(x);
         continue;
       }
-      // Full-precision data mostly needs 17 significant digits. That case is settled here, written
-      // out in the loop so the number is never passed to a function (which would box it): n with
-      // 10^(n-1) <= |x| < 10^n, then the 16-digit test of numberTextLength (error-free product
-      // |x| * 10^(16-n) against half the spacing of doubles at |x|). Anything else: numberTextLength.
-      const a = x < 0 ? -x : x;
-      if (a >= 1e-6 && a < 4503599627370496) {
-        BITS_F64[0] = a;
-        const hiBits = BITS_U32[1];
-        // From the binary exponent e2 (2^e2 <= a < 2^(e2+1)): n is floor(e2 log10 2) + 1 or one more.
-        let n = Math.floor((((hiBits >>> 20) & 0x7ff) - 1023) * LOG10_2) + 1;
-        if (n >= 0 ? a >= POW10F[n] : a * POW10F[-n] >= 1) n++;
-        if (n >= -5 && n <= 16) {
-          if ((hiBits & 0xfffff) !== 0 || BITS_U32[0] !== 0) {
-            const exponent = ((hiBits >>> 20) & 0x7ff) - 1075;
-            const b = POW10F[16 - n];
-            const ph = a * b;
-            let t = SPLIT * a;
-            const ah = t - (t - a);
-            const al = a - ah;
-            t = SPLIT * b;
-            const bh = t - (t - b);
-            const bl = b - bh;
-            const pl = ((ah * bh - ph) + ah * bl + al * bh) + al * bl;
-            const r = Math.round(ph);
-            if (r >= 1e15 && r < 1e16) {
-              let frac = Math.abs((ph - r) + pl);
-              if (frac > 0.5) frac = 1 - frac;
-              BITS_U32[0] = 0;
-              BITS_U32[1] = (exponent - 1 + 1023) << 20;
-              const half = BITS_F64[0] * b;
-              // 16 digits cannot read back, so 17 are needed: "d.ddd" (n > 0) or "0.00ddd" (n <= 0).
-              if (frac > half + 1e-6 * half) {
-                bytes += (x < 0 ? 1 : 0) + (n > 0 ? 18 : 19 - n) + 1;
-                continue;
-              }
-              // 16 digits read back and 15 do not (exact scaling as in roundTrips): 16 are needed.
-              if (frac < half - 1e-6 * half && n <= 15) {
-                const m15 = 15 - n;
-                if (Math.round(a * POW10F[m15]) / POW10F[m15] !== a) {
-                  bytes += (x < 0 ? 1 : 0) + (n > 0 ? 17 : 18 - n) + 1;
-                  continue;
-                }
-              }
-            }
-          }
-        }
-      }
-      bytes += numberTextLength(x) + 1;
+      bytes += numberCost(x);
     }
   }
   return bytes;
