@@ -87,9 +87,9 @@ export interface ReadTableOptions {
   namePrefix?: string;
 }
 
-/** Classification of one cell. */
-const BLANK = 0;
-const NUM = 1;
+/** Classification of one cell (NUM is 0, so a fresh kinds array reads "all numbers"). */
+const NUM = 0;
+const BLANK = 1;
 const BOOL = 2;
 const TEXT = 3;
 
@@ -162,41 +162,36 @@ export function detectHeader(rows: CellValue[][]): { header: boolean; evidence: 
   }
   if (!anyText) return { header: false, evidence: "none" };
   // One row-major pass over the rows below, for every column whose first cell is text: count its
-  // numbers/booleans and text, and note whether the first cell's text recurs.
+  // text and blank cells (numbers and booleans are the rest), and stop at the first recurring name.
   const width = first.length;
   const nameOf: (string | null)[] = new Array(width);
-  for (let j = 0; j < width; j++) nameOf[j] = classify(first[j]) === TEXT ? textOf(first[j]) : null;
-  const numeric = new Int32Array(width);
+  const named: number[] = [];
+  for (let j = 0; j < width; j++) {
+    nameOf[j] = classify(first[j]) === TEXT ? textOf(first[j]) : null;
+    if (nameOf[j] !== null) named.push(j);
+  }
   const text = new Int32Array(width);
-  const recurs = new Uint8Array(width);
+  const blank = new Int32Array(width);
   for (let i = 1; i < rows.length; i++) {
     const row = rows[i];
-    for (let j = 0; j < width; j++) {
-      const name = nameOf[j];
-      if (name === null || recurs[j]) continue;
+    for (let t = 0; t < named.length; t++) {
+      const j = named[t];
       const v = row[j];
-      if (typeof v === "number" || typeof v === "boolean") {
-        numeric[j]++;
-        continue;
-      }
+      if (typeof v === "number" || typeof v === "boolean") continue;
       const k = classify(v);
-      if (k === NUM) numeric[j]++;
+      if (k === BLANK) blank[j]++;
       else if (k === TEXT) {
         text[j]++;
-        if (textOf(v) === name) recurs[j] = 1;
+        // In a text column a category value recurs and a name does not (weak evidence): one
+        // recurring first cell makes the first row data, whatever the other columns show.
+        if (textOf(v) === nameOf[j]) return { header: false, evidence: "weak" };
       }
     }
   }
   let strong = false;
-  for (let j = 0; j < width; j++) {
-    if (nameOf[j] === null) continue;
+  for (const j of named) {
     // Text over a column of numbers/booleans is a name (strong evidence).
-    if (text[j] === 0 && numeric[j] > 0) {
-      strong = true;
-      continue;
-    }
-    // In a text column a category value recurs and a name does not (weak evidence).
-    if (recurs[j]) return { header: false, evidence: "weak" };
+    if (text[j] === 0 && rows.length - 1 - blank[j] > 0) strong = true;
   }
   return { header: true, evidence: strong ? "strong" : "weak" };
 }
@@ -294,11 +289,12 @@ function makeNames(headerRow: CellValue[] | null, width: number, prefix: string)
 }
 
 /**
- * Read every column of `rows` (data from row `start`) in one row-major pass: each cell is classified
- * and, when it is a number or boolean, converted into its column's Float64Array as it is met (the
- * range arrives as rows, so walking it row by row touches each row once). The per-column decisions
- * (kind, a 0 sent for a blank, the majority rule) and their errors then follow column by column, in
- * the same order as reading one column after another would raise them.
+ * Read every column of `rows` (data from row `start`) in one row-major pass: a number cell (most
+ * cells) is stored into its column's Float64Array and checked (finite; a 0 is counted) with nothing
+ * else written, since the kinds arrays start as "number"; every other cell is classified, and its
+ * kind and count recorded (the range arrives as rows, so walking it row by row touches each row
+ * once). The per-column decisions (kind, a 0 sent for a blank, the majority rule) and their errors
+ * then follow column by column, in the same order as reading one column after another would raise them.
  */
 function readColumns(rows: CellValue[][], start: number, width: number, names: string[], argument: string): TableColumn[] {
   const n = rows.length - start;
@@ -308,42 +304,38 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
     kinds.push(new Uint8Array(n));
     nums.push(new Float64Array(n));
   }
-  const nNum = new Int32Array(width);
+  // Per column: cells that are not numbers, by kind; numbers stored as text; zeros among the numbers.
+  const nBlank = new Int32Array(width);
   const nBool = new Int32Array(width);
   const nText = new Int32Array(width);
+  const nNumText = new Int32Array(width);
+  const nZero = new Int32Array(width);
   const firstText = new Int32Array(width).fill(-1);
-  const nonZeroNumber = new Uint8Array(width);
   const firstNonFinite = new Int32Array(width).fill(-1);
   for (let i = 0; i < n; i++) {
     const row = rows[start + i];
     for (let j = 0; j < width; j++) {
       const v = row[j];
       if (typeof v === "number") {
-        kinds[j][i] = NUM;
         nums[j][i] = v;
         // NaN and infinities are not valid values (reported below, in column order).
         if (v - v !== 0) {
           if (firstNonFinite[j] < 0) firstNonFinite[j] = i;
-        } else {
-          nNum[j]++;
-          // Only a real numeric 0 can be a blank sent by an older build.
-          if (v !== 0) nonZeroNumber[j] = 1;
-        }
+        } else if (v === 0) nZero[j]++; // only a real numeric 0 can be a blank sent by an older build
         continue;
       }
       const k = classify(v);
       kinds[j][i] = k;
-      if (k === BLANK) nums[j][i] = NaN;
-      else if (k === NUM) {
+      if (k === BLANK) {
+        nums[j][i] = NaN;
+        nBlank[j]++;
+      } else if (k === NUM) {
         // Numeric text: the text "0" was typed, so it is never a blank.
         const x = numberOf(v);
         nums[j][i] = x;
         if (!Number.isFinite(x)) {
           if (firstNonFinite[j] < 0) firstNonFinite[j] = i;
-        } else {
-          nNum[j]++;
-          nonZeroNumber[j] = 1;
-        }
+        } else nNumText[j]++;
       } else if (k === BOOL) {
         nums[j][i] = v ? 1 : 0;
         nBool[j]++;
@@ -359,7 +351,10 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
       const i = firstNonFinite[j];
       throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value: String(nums[j][i]) });
     }
-    columns.push(finishColumn(rows, start, j, names[j], argument, kinds[j], nums[j], nNum[j], nBool[j], nText[j], firstText[j], nonZeroNumber[j] === 1));
+    // Every number is finite here: the numbers (and numeric text) are the cells of no other kind.
+    const nNum = n - nBlank[j] - nBool[j] - nText[j];
+    const nonZeroNumber = nNumText[j] > 0 || nNum - nNumText[j] - nZero[j] > 0;
+    columns.push(finishColumn(rows, start, j, names[j], argument, kinds[j], nums[j], nNum, nBool[j], nText[j], nBlank[j], firstText[j], nonZeroNumber));
   }
   return columns;
 }
@@ -375,6 +370,7 @@ function finishColumn(
   nNumIn: number,
   nBool: number,
   nText: number,
+  nBlank: number,
   firstText: number,
   nonZeroNumber: boolean,
 ): TableColumn {
@@ -402,7 +398,7 @@ function finishColumn(
     return { name, kind: "text", values, missing };
   }
   // Blank cells are missing (their value is already NaN).
-  for (let i = 0; i < n; i++) if (kinds[i] === BLANK) missing[i] = 1;
+  if (nBlank > 0) for (let i = 0; i < n; i++) if (kinds[i] === BLANK) missing[i] = 1;
   const kind: ColumnKind = nNum + nBool === 0 ? "empty" : nNum === 0 ? "boolean" : "number";
   return { name, kind, values: nums, missing };
 }
