@@ -58,7 +58,7 @@ import {
   penalizedNote,
   type Interval,
 } from "./inference";
-import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, type RankRevealingResult } from "./linalg";
+import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, subsampleProvesFullRank, type RankRevealingResult } from "./linalg";
 import { fittingColumns, newtonLogistic, problemGram, type BlockDesign, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
@@ -761,12 +761,6 @@ export const WARM_START_ROWS_PER_COLUMN = 100;
 /** A subsample fit with a fitted probability this far out (|eta| above it) may be near separation: no warm start. */
 const WARM_START_MAX_ETA = 15;
 
-/**
- * Margin of the subsample's rank proof over ALIAS_TOLERANCE: far above the rounding of either
- * Cholesky, so the proof never decides a case the full-data check would call the other way.
- */
-const RANK_PROOF_MARGIN = 1000;
-
 /** Every stride-th row of a large design for the warm start and the rank proof, or 0 (no subsample). */
 function subsampleStride(n: number, k: number): number {
   if (n < WARM_START_MIN_ROWS) return 0;
@@ -785,15 +779,8 @@ function pickRows(src: Float64Array, stride: number): Float64Array {
 
 /**
  * True when a subsample proves that the full-data rank check (rankRevealingCholesky of Z'AZ + P
- * with ALIAS_TOLERANCE) keeps every column, so that large fits skip that full pass of p(p+1)/2 dot
- * products. The proof: the full Gram matrix is the subsample's plus the other rows' (and P is at
- * least the subsample's share of it), so it dominates the subsample's in the positive
- * semi-definite order, and so does every Schur complement: the residual d_j of column j on the
- * earlier columns is at least the subsample's (Horn & Johnson, Matrix Analysis, 2013, sec. 7.7).
- * When every subsample residual, divided by the full diagonal A_jj (known from the column
- * moments), is above RANK_PROOF_MARGIN x ALIAS_TOLERANCE, each full 1 - R^2 is above the tolerance
- * and every column is kept. Otherwise (some column might be aliased) false, and the caller forms
- * the full matrix as for small data.
+ * with ALIAS_TOLERANCE) keeps every column (see subsampleProvesFullRank), so that large fits skip
+ * that full pass; P enters with the subsample's share of it, which keeps the full matrix dominant.
  */
 function subsampleRankBound(design: BlockDesign, a: Float64Array, penalty: Float64Array, fullDiagonal: Float64Array): boolean {
   const n = design.rows;
@@ -806,13 +793,7 @@ function subsampleRankBound(design: BlockDesign, a: Float64Array, penalty: Float
   const sub: BlockDesign = { rows: m, columns, centre: design.centre, scale: design.scale, sparseRows: design.sparseRows ? sparseRowLists(columns, m, false) : null };
   const gram = problemGram(sub, subA);
   for (let j = 0; j < p; j++) gram[j * p + j] += penalty[j] * (m / n);
-  const rr = rankRevealingCholesky(gram, p, 0);
-  if (rr.dependent.length > 0) return false;
-  for (let j = 0; j < p; j++) {
-    const residual = rr.residualShare[j] * gram[j * p + j];
-    if (!(residual / fullDiagonal[j] > RANK_PROOF_MARGIN * ALIAS_TOLERANCE)) return false;
-  }
-  return true;
+  return subsampleProvesFullRank(gram, p, fullDiagonal, ALIAS_TOLERANCE);
 }
 
 /**

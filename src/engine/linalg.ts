@@ -311,6 +311,36 @@ export function rankRevealingCholesky(a: SquareMatrix, n: number, tol = RANK_TOL
   return { rank: kept.length, independent: kept, dependent, residualShare };
 }
 
+/**
+ * Margin of {@link subsampleProvesFullRank} over the tolerance: far above the rounding of either
+ * Cholesky, so a proof never decides a case the full-data check would call the other way.
+ */
+export const RANK_PROOF_MARGIN = 1000;
+
+/**
+ * True when the Gram matrix of a subset of the rows (plus at most the full matrix's own diagonal
+ * addition) proves that {@link rankRevealingCholesky} of the full Gram matrix, with tolerance
+ * `tol`, keeps every column; large fits then skip that full pass of n p(p+1)/2 multiply-adds.
+ * The proof: the full matrix is the subset's plus the other rows' Gram matrix, so it dominates the
+ * subset's in the positive semi-definite order, and so does every Schur complement (R. A. Horn &
+ * C. R. Johnson, Matrix Analysis, 2nd ed., 2013, sec. 7.7): the residual d_j of column j on the
+ * earlier columns is at least the subset's. When every subset residual divided by the full
+ * diagonal entry A_jj (which the caller knows from the column moments) is above
+ * RANK_PROOF_MARGIN x tol, each full 1 - R^2 = d_j / A_jj is above the tolerance. Otherwise false:
+ * some column might be aliased and the caller forms the full matrix.
+ * @param subsetGram - Gram matrix of the subset (p*p, not modified)
+ * @param fullDiagonal - diagonal of the full Gram matrix
+ */
+export function subsampleProvesFullRank(subsetGram: SquareMatrix, p: number, fullDiagonal: ArrayLike<number>, tol: number): boolean {
+  const rr = rankRevealingCholesky(subsetGram, p, 0);
+  if (rr.dependent.length > 0) return false;
+  for (let j = 0; j < p; j++) {
+    const residual = rr.residualShare[j] * subsetGram[j * p + j];
+    if (!(residual / fullDiagonal[j] > RANK_PROOF_MARGIN * tol)) return false;
+  }
+  return true;
+}
+
 /** Take the principal (or general) sub-matrix of A (n*n) on the given index set (Golub & Van Loan 2013 notation A(idx, idx)). */
 export function subMatrix(a: SquareMatrix, n: number, idx: readonly number[]): SquareMatrix {
   const m = idx.length;

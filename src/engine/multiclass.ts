@@ -70,6 +70,7 @@ import {
   multiplyVector,
   rankRevealingCholesky,
   RANK_TOLERANCE,
+  subsampleProvesFullRank,
   weightedCrossProduct,
 } from "./linalg";
 import { accumulateCrossProducts, accumulateWeightedGrams } from "./blockAccumulate";
@@ -297,7 +298,10 @@ export function fitMulticlassModel(
   const aliased = new Array<boolean>(pFull).fill(false);
   for (let t = 0; t < pFull; t++) if (!prep.termOfColumn.includes(t)) aliased[t] = true;
   const q = prep.z.length;
-  if (q > 0) {
+  // Large data: a subsample may already prove that no column is aliased (subsampleProvesFullRank;
+  // every internal column has weighted sum of squares `total`: centred and scaled to unit SD, or
+  // to unit root mean square without an intercept, and the intercept column is all ones).
+  if (q > 0 && !rankProvedOnSubsample(prep)) {
     const gram = weightedCrossProduct(prep.z, prep.w, prep.n, new Float64Array(q * q));
     const rr = rankRevealingCholesky(gram, q, RANK_TOLERANCE);
     if (rr.dependent.length > 0) {
@@ -467,6 +471,50 @@ function nullLogLikelihood(classWeight: Float64Array, total: number, intercept: 
 // Design preparation
 // ================================================================================================
 
+/**
+ * Weighted moments of a column divided by its largest magnitude m (so that squares of values near
+ * 1e300 or 1e-300 neither overflow nor underflow; mean, SD and RMS are m times these): maxAbs = m
+ * (0 for an all-zero column), meanU = weighted mean of x / m, ss and sq = weighted sums of squares
+ * of x / m about meanU and about 0. In the ordinary range of m the sums are taken on x itself and
+ * divided at the end (no division per value).
+ */
+function scaledMoments(col: Float64Array, w: Float64Array, total: number, n: number): { maxAbs: number; meanU: number; ss: number; sq: number } {
+  let maxAbs = 0;
+  let sum = 0;
+  for (let r = 0; r < n; r++) {
+    const a = Math.abs(col[r]);
+    if (a > maxAbs) maxAbs = a;
+    sum += w[r] * col[r];
+  }
+  const m = maxAbs > 0 ? maxAbs : 1;
+  if (m >= MOMENT_SAFE_MIN && m <= MOMENT_SAFE_MAX) {
+    const mean = sum / total;
+    let ss = 0;
+    let sq = 0;
+    for (let r = 0; r < n; r++) {
+      const d = col[r] - mean;
+      ss += w[r] * d * d;
+      sq += w[r] * col[r] * col[r];
+    }
+    return { maxAbs, meanU: mean / m, ss: ss / (m * m), sq: sq / (m * m) };
+  }
+  let meanU = 0;
+  for (let r = 0; r < n; r++) meanU += w[r] * (col[r] / m);
+  meanU /= total;
+  let ss = 0;
+  let sq = 0;
+  for (let r = 0; r < n; r++) {
+    const u = col[r] / m;
+    ss += w[r] * (u - meanU) * (u - meanU);
+    sq += w[r] * u * u;
+  }
+  return { maxAbs, meanU, ss, sq };
+}
+
+/** Range of the largest magnitude in which scaledMoments sums x and x^2 directly (squares near 1e+-200). */
+const MOMENT_SAFE_MIN = 1e-100;
+const MOMENT_SAFE_MAX = 1e100;
+
 function prepare(
   X: DesignMatrix,
   used: number[],
@@ -508,27 +556,21 @@ function prepare(
     const col = new Float64Array(n);
     if (allRows) col.set(x);
     else for (let r = 0; r < n; r++) col[r] = x[used[r]];
-    let maxAbs = 0;
-    for (let r = 0; r < n; r++) if (Math.abs(col[r]) > maxAbs) maxAbs = Math.abs(col[r]);
-    // Moments of the values divided by their largest magnitude m, so that squares of values near
-    // 1e300 (or 1e-300) neither overflow nor underflow; mean, SD and RMS are m times those.
+    const { maxAbs, meanU, ss, sq } = scaledMoments(col, w, total, n);
     const m = maxAbs > 0 ? maxAbs : 1;
-    let meanU = 0;
-    for (let r = 0; r < n; r++) meanU += w[r] * (col[r] / m);
-    meanU /= total;
-    let ss = 0;
-    let sq = 0;
-    for (let r = 0; r < n; r++) {
-      const u = col[r] / m;
-      ss += w[r] * (u - meanU) * (u - meanU);
-      sq += w[r] * u * u;
-    }
     const sdU = Math.sqrt(ss / total); // population SD (over m), weighted by the case weights
     // Policy: with an intercept a constant column is aliased with it; an all-zero column always is.
     if (intercept ? !(sdU > CONSTANT_COLUMN_SHARE) : maxAbs === 0) continue;
     const cU = intercept ? meanU : 0;
     const sU = intercept ? sdU : Math.sqrt(sq / total);
-    for (let r = 0; r < n; r++) col[r] = (col[r] / m - cU) / sU;
+    if (m >= MOMENT_SAFE_MIN && m <= MOMENT_SAFE_MAX) {
+      // (x / m - cU) / sU = (x - m cU) / (m sU), with one multiplication per value.
+      const c0 = m * cU;
+      const inv = 1 / (m * sU);
+      for (let r = 0; r < n; r++) col[r] = (col[r] - c0) * inv;
+    } else {
+      for (let r = 0; r < n; r++) col[r] = (col[r] / m - cU) / sU;
+    }
     const sd = m * sdU;
     const c = m * cU;
     const s = m * sU;
@@ -586,12 +628,15 @@ class SoftmaxKernel {
   /** Equation of each class (-1 for the reference class). */
   private readonly eqOfClass: Int32Array;
   private readonly refForm: boolean;
-  private readonly eta: Float64Array;
   private readonly etaBuf: Float64Array;
+  /** Chunk buffers: probabilities [e * CHUNK + i], row shift and sum of exponentials, equation of each row's class. */
+  private readonly prob: Float64Array;
+  private readonly shift: Float64Array;
+  private readonly sum: Float64Array;
+  private readonly yEq: Int32Array;
   /** Chunk buffers: residuals r_e = w (y_e - p_e) [e * CHUNK + i], block weights [pair * CHUNK + i]. */
   private readonly resid: Float64Array;
   private readonly v: Float64Array;
-  private readonly probRow: Float64Array;
   readonly score: Float64Array;
   /** Information blocks: [(a * q + b) * pairs + pair(e,f)] for a <= b and e <= f (see accumulateWeightedGrams). */
   readonly blocks: Float64Array;
@@ -608,9 +653,11 @@ class SoftmaxKernel {
     this.refForm = !symmetric;
     this.eqOfClass = new Int32Array(K).fill(-1);
     equationClassIdx.forEach((k, e) => (this.eqOfClass[k] = e));
-    this.eta = new Float64Array(this.E);
     this.etaBuf = new Float64Array(this.E * CHUNK);
-    this.probRow = new Float64Array(this.E);
+    this.prob = new Float64Array(this.E * CHUNK);
+    this.shift = new Float64Array(CHUNK);
+    this.sum = new Float64Array(CHUNK);
+    this.yEq = new Int32Array(CHUNK);
     this.resid = new Float64Array(this.E * CHUNK);
     this.v = new Float64Array(this.pairs * CHUNK);
     this.score = new Float64Array(this.E * this.q);
@@ -622,7 +669,7 @@ class SoftmaxKernel {
    *   "information" the score and the information blocks
    */
   evaluate(theta: Float64Array, mode: "value" | "score" | "information"): number {
-    const { q, E, pairs, eta, etaBuf, probRow, resid, v, score, blocks, refForm, eqOfClass } = this;
+    const { q, E, pairs, etaBuf, prob, shift, sum, yEq, resid, v, score, blocks, refForm, eqOfClass } = this;
     const { n, z, w, y } = this.prep;
     const derivs = mode !== "value";
     const info = mode === "information";
@@ -633,38 +680,60 @@ class SoftmaxKernel {
       const L = Math.min(CHUNK, n - r0);
       // Linear predictors of the chunk, column by column (contiguous); eta_ref = 0 (reference form).
       linearPredictors(z, theta, r0, L, q, E, etaBuf);
+      // The rest also runs over the chunk one equation at a time (long loops over rows rather than
+      // short loops over equations). Stable softmax: subtract the row maximum; log-sum-exp for the
+      // log-likelihood. In the reference form no exponential can overflow while every eta is below
+      // EXP_SAFE, so the shift is 0 then (the reference term is exp(0) = 1: one exponential fewer
+      // per row).
+      for (let i = 0; i < L; i++) shift[i] = refForm ? 0 : -Infinity;
+      for (let e = 0; e < E; e++) {
+        const o = e * CHUNK;
+        for (let i = 0; i < L; i++) {
+          const x = etaBuf[o + i];
+          if (x > shift[i]) shift[i] = x;
+        }
+      }
+      if (refForm) for (let i = 0; i < L; i++) if (shift[i] <= EXP_SAFE) shift[i] = 0;
+      for (let i = 0; i < L; i++) sum[i] = refForm ? (shift[i] === 0 ? 1 : Math.exp(-shift[i])) : 0;
+      for (let e = 0; e < E; e++) {
+        const o = e * CHUNK;
+        for (let i = 0; i < L; i++) {
+          const t = Math.exp(etaBuf[o + i] - shift[i]);
+          prob[o + i] = t;
+          sum[i] += t;
+        }
+      }
       for (let i = 0; i < L; i++) {
         const row = r0 + i;
-        let max = refForm ? 0 : -Infinity;
-        for (let e = 0; e < E; e++) {
-          const s = etaBuf[e * CHUNK + i];
-          eta[e] = s;
-          if (s > max) max = s;
-        }
-        // Stable softmax: subtract the row maximum; log-sum-exp for the log-likelihood. In the
-        // reference form no exponential can overflow while every eta is below EXP_SAFE, so the
-        // shift is 0 then (the reference term is exp(0) = 1: one exponential fewer per row).
-        const shift = refForm && max <= EXP_SAFE ? 0 : max;
-        let sum = refForm ? (shift === 0 ? 1 : Math.exp(-shift)) : 0;
-        for (let e = 0; e < E; e++) {
-          const t = Math.exp(eta[e] - shift);
-          probRow[e] = t;
-          sum += t;
-        }
         const ye = eqOfClass[y[row]];
-        const wi = w[row];
-        logLik += wi * ((ye >= 0 ? eta[ye] : 0) - shift - Math.log(sum));
-        if (!derivs) continue;
-        for (let e = 0; e < E; e++) probRow[e] /= sum;
-        for (let e = 0; e < E; e++) resid[e * CHUNK + i] = wi * ((e === ye ? 1 : 0) - probRow[e]);
-        if (!info) continue;
+        yEq[i] = ye;
+        logLik += w[row] * ((ye >= 0 ? etaBuf[ye * CHUNK + i] : 0) - shift[i] - Math.log(sum[i]));
+      }
+      if (!derivs) continue;
+      for (let e = 0; e < E; e++) {
+        const o = e * CHUNK;
+        for (let i = 0; i < L; i++) {
+          const p = prob[o + i] / sum[i];
+          prob[o + i] = p;
+          resid[o + i] = w[r0 + i] * ((yEq[i] === e ? 1 : 0) - p);
+        }
+      }
+      if (info) {
         let pr = 0;
         for (let e = 0; e < E; e++) {
-          const pe = probRow[e];
-          const wp = wi * pe;
-          v[pr * CHUNK + i] = wp * (1 - pe);
-          pr++;
-          for (let f = e + 1; f < E; f++) v[pr++ * CHUNK + i] = -wp * probRow[f];
+          const oe = e * CHUNK;
+          for (let f = e; f < E; f++) {
+            const of = f * CHUNK;
+            const ov = pr++ * CHUNK;
+            if (f === e) {
+              for (let i = 0; i < L; i++) {
+                const pe = prob[oe + i];
+                v[ov + i] = w[r0 + i] * pe * (1 - pe);
+              }
+            } else {
+              for (let i = 0; i < L; i++) v[ov + i] = -(w[r0 + i] * prob[oe + i]) * prob[of + i];
+            }
+          }
         }
       }
       if (!derivs) continue;
@@ -805,6 +874,17 @@ function newtonRaphson(
     }
   }
   return runNewton(prep, K, equationClassIdx, symmetric, total, opts, start, null);
+}
+
+/** See the aliasing check in fitMulticlassModel: every WARM_START_SUBSAMPLE_ROWS-th row of a large fit. */
+function rankProvedOnSubsample(prep: Prepared): boolean {
+  if (prep.n < WARM_START_MIN_ROWS) return false;
+  let total = 0;
+  for (let r = 0; r < prep.n; r++) total += prep.w[r];
+  const sub = subsample(prep, Math.floor(prep.n / WARM_START_SUBSAMPLE_ROWS));
+  const q = sub.z.length;
+  const gram = weightedCrossProduct(sub.z, sub.w, sub.n, new Float64Array(q * q));
+  return subsampleProvesFullRank(gram, q, new Float64Array(q).fill(total), RANK_TOLERANCE);
 }
 
 /** Rows at which the warm start from a subsample begins to pay (below it a full fit is quick). */
