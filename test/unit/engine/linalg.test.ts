@@ -7,8 +7,12 @@ import {
   mirrorUpper,
   multiplyVector,
   quadraticForm,
+  accumulateBlockGram,
   rankRevealingCholesky,
+  RANK_PROOF_MARGIN,
+  RANK_TOLERANCE,
   solveSymmetric,
+  subsampleProvesFullRank,
   subMatrix,
   weightedCrossProduct,
   weightedCrossVector,
@@ -154,5 +158,74 @@ describe("small helpers", () => {
     expect(b[1]).toBe(24);
     expect(b[3]).toBe(24);
     expect(b[8]).toBe(98);
+  });
+});
+
+/** Columns of `rows` values from a fixed sine/cosine recipe (deterministic, not collinear). */
+function testColumns(k: number, rows: number): Float64Array[] {
+  return Array.from({ length: k }, (_, j) => Float64Array.from({ length: rows }, (_, i) => Math.sin(0.37 * i * (j + 1) + j) + 0.1 * j));
+}
+
+describe("accumulateBlockGram", () => {
+  test("accumulates the same Gram matrix as the column-pair sums, block by block, up to rounding", () => {
+    const k = 6;
+    const rows = 700;
+    const stride = 512;
+    const cols = testColumns(k, rows);
+    const expected = weightedCrossProduct(cols, null, rows, new Float64Array(k * k));
+    const out = new Float64Array(k * k);
+    const block = new Float64Array(k * stride);
+    for (let r0 = 0; r0 < rows; r0 += stride) {
+      const len = Math.min(stride, rows - r0);
+      for (let j = 0; j < k; j++) for (let r = 0; r < len; r++) block[j * stride + r] = cols[j][r0 + r];
+      accumulateBlockGram(block, k, len, stride, out);
+    }
+    mirrorUpper(out, k);
+    for (let t = 0; t < k * k; t++) expect(Math.abs(out[t] - expected[t])).toBeLessThan(TOL * Math.abs(expected[t]) + 1e-12);
+  });
+});
+
+describe("subsampleProvesFullRank", () => {
+  const rows = 4000;
+  const every = 10;
+  function gramOf(cols: Float64Array[], pick: (i: number) => boolean): Float64Array {
+    const idx = Array.from({ length: rows }, (_, i) => i).filter(pick);
+    const sub = cols.map((c) => Float64Array.from(idx, (i) => c[i]));
+    return weightedCrossProduct(sub, null, idx.length, new Float64Array(cols.length ** 2));
+  }
+  const diagonalOf = (g: Float64Array, p: number) => Float64Array.from({ length: p }, (_, j) => g[j * p + j]);
+
+  test("independent columns: every 10th row proves what the full check finds (all kept)", () => {
+    const cols = testColumns(4, rows);
+    const full = gramOf(cols, () => true);
+    expect(subsampleProvesFullRank(gramOf(cols, (i) => i % every === 0), 4, diagonalOf(full, 4), RANK_TOLERANCE)).toBe(true);
+    expect(rankRevealingCholesky(full, 4).dependent).toEqual([]);
+  });
+
+  test("a column equal to another on the subset's rows only: no proof (the full check must decide)", () => {
+    const cols = testColumns(3, rows);
+    cols[2] = cols[1].map((v, i) => (i % every === 0 ? v : v + Math.cos(i)));
+    const full = gramOf(cols, () => true);
+    expect(subsampleProvesFullRank(gramOf(cols, (i) => i % every === 0), 3, diagonalOf(full, 3), RANK_TOLERANCE)).toBe(false);
+    expect(rankRevealingCholesky(full, 3).dependent).toEqual([]);
+  });
+
+  test("a column nearly dependent on the full data (1 - R^2 about 1e-12) is never proved independent", () => {
+    const cols = testColumns(3, rows);
+    cols[2] = cols[1].map((v, i) => v + 1e-6 * Math.sin(7.1 * i));
+    const full = gramOf(cols, () => true);
+    expect(rankRevealingCholesky(full, 3).dependent).toEqual([2]);
+    expect(subsampleProvesFullRank(gramOf(cols, (i) => i % every === 0), 3, diagonalOf(full, 3), RANK_TOLERANCE)).toBe(false);
+  });
+
+  test("the margin is what separates proof from doubt: a share just above the tolerance is not enough", () => {
+    // Two columns with 1 - R^2 = 1e-7 on every row: above the tolerance (kept by the full check) but
+    // below RANK_PROOF_MARGIN x tolerance, so the subset (a tenth of the rows) cannot prove it.
+    const x1 = Float64Array.from({ length: rows }, (_, i) => (i % 2 === 0 ? 1 : -1));
+    const x2 = x1.map((v, i) => v + (i % 4 < 2 ? 3.2e-4 : -3.2e-4));
+    const full = gramOf([x1, x2], () => true);
+    expect(rankRevealingCholesky(full, 2).dependent).toEqual([]);
+    expect(RANK_PROOF_MARGIN * RANK_TOLERANCE).toBeGreaterThan(1e-7);
+    expect(subsampleProvesFullRank(gramOf([x1, x2], (i) => i % every === 0), 2, diagonalOf(full, 2), RANK_TOLERANCE)).toBe(false);
   });
 });
