@@ -136,3 +136,33 @@ describe("large-data path of the multi-class fit equals plain Newton-Raphson", (
     expect(worst).toBeLessThan(IDENTITY_ABS);
   });
 });
+
+/**
+ * Large fits decide aliasing from a subsample when it proves every column independent with margin
+ * (see subsampleProvesFullRank in linalg.ts) and otherwise on all rows, as small fits do.
+ */
+describe("aliasing in the large-data path", () => {
+  const withColumn = (extra: Float64Array, name: string): DesignMatrix => ({
+    rows: doubled.rows,
+    columns: [...doubled.columns, extra],
+    names: [...names, name],
+  });
+
+  test("an exactly dependent column is reported aliased, and the other estimates stay", () => {
+    const dependent = doubled.columns[0].map((v, i) => 2 * v - doubled.columns[3][i]);
+    const fit = fitMulticlassModel(withColumn(dependent, "dependent"), yDoubled, classes);
+    expect(fit.aliased).toEqual([...new Array(P + 1).fill(false), true]);
+    expect(fit.diagnostics.map((d) => d.code)).toEqual(["ALIASED_COLUMNS"]);
+    const kept = fit.coefficients.map((eq) => Array.from(eq).slice(0, P + 1));
+    expectAllClose("coefficients", kept.flat(), flat(large.coefficients), SAME_ESTIMATE_REL, SAME_ESTIMATE_ABS);
+  });
+
+  test("a column equal to another on the subsample's rows only is kept (decided on all rows)", () => {
+    // The subsample takes every 12th row (60,000 rows, 5,000-row subsample): on those rows the
+    // column is x1 exactly, so the subsample cannot prove it independent; on odd rows it differs.
+    const nearCopy = doubled.columns[0].map((v, i) => (i % 2 === 1 ? v + 0.5 * Math.sin(i) : v));
+    const fit = fitMulticlassModel(withColumn(nearCopy, "nearCopy"), yDoubled, classes);
+    expect(fit.aliased).toEqual(new Array(P + 2).fill(false));
+    expect(fit.converged).toBe(true);
+  });
+});
