@@ -456,6 +456,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
 
   const trainingRows =
     encodedFromTable(built.encoding, predTable, ownRows[1], predictors) ??
+    encodedFromDesign(built.encoding, design, predTable, ownRows[1], predictors) ??
     encodeRows(built.encoding, predictors, { argument: "predictors", headers: predTable.header ? "yes" : "no" });
   return {
     kind: fit.kind,
@@ -485,24 +486,14 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
  */
 function encodedFromTable(encoding: DesignEncoding, table: Table, own: number, cells: CellValue[][]): EncodedRows | null {
   if (own === undefined || own > table.rows) return null;
-  const header = Array.isArray(cells) && Array.isArray(cells[0]) ? (cells[0] as CellValue[]) : null;
   for (let k = 0; k < encoding.columns.length; k++) {
     const c = encoding.columns[k];
     if (c.kind === "ignored") continue;
     if (c.kind !== "number") return null;
     const tc = table.columns[k];
     if (!tc || tc.kind === "text" || tc.name !== c.name) return null;
-    if (table.header) {
-      // Columns are matched by name: take the fast way only when the name sits at its own position.
-      if (!header) return null;
-      const v = header[k];
-      if (typeof v !== "string" || v.trim() !== c.name) return null;
-      for (let j = 0; j < k; j++) {
-        const w = header[j];
-        if (typeof w === "string" && w.trim() === c.name) return null;
-      }
-    }
   }
+  if (!namesAtOwnPositions(encoding, table, cells)) return null;
   const start = table.firstRow - 1;
   const ok = new Uint8Array(own).fill(1);
   const problems: RowProblem[] = [];
@@ -532,6 +523,49 @@ function encodedFromTable(encoding: DesignEncoding, table: Table, own: number, c
     problems.sort((a, b) => a.index - b.index);
   }
   return { design: { rows: own, columns, names: encoding.terms.slice() }, ok, problems, header: table.header, firstRow: start + 1 };
+}
+
+/**
+ * True when encodeRows would read column k of the training encoding from column k of `cells`: always
+ * without a header row (columns by position); with one, when each used column's name sits at its own
+ * position and nowhere before it (columns are matched by name).
+ */
+function namesAtOwnPositions(encoding: DesignEncoding, table: Table, cells: CellValue[][]): boolean {
+  if (!table.header) return true;
+  const header = Array.isArray(cells) && Array.isArray(cells[0]) ? (cells[0] as CellValue[]) : null;
+  if (!header) return false;
+  for (let k = 0; k < encoding.columns.length; k++) {
+    const c = encoding.columns[k];
+    if (c.kind === "ignored") continue;
+    const v = header[k];
+    if (typeof v !== "string" || v.trim() !== c.name) return false;
+    for (let j = 0; j < k; j++) {
+      const w = header[j];
+      if (typeof w === "string" && w.trim() === c.name) return false;
+    }
+  }
+  return true;
+}
+
+/**
+ * The training rows as encodeRows would encode them, taken from the fitted design itself when every
+ * data row of the predictors entered the fit (none skipped, none past the range's end) and the
+ * columns sit at their own positions; otherwise null. With no row skipped, no value is missing and
+ * every category level of the rows is one of the encoding's (the levels are those of the fitted
+ * rows), so encodeRows gives each row the very terms buildDesign gave it. The columns are shared
+ * with `design`, not copied (nothing writes to either: scoring copies the rows it uses).
+ * @param own data rows of the predictors range itself (before padding to the other ranges)
+ */
+function encodedFromDesign(encoding: DesignEncoding, design: DesignMatrix, table: Table, own: number, cells: CellValue[][]): EncodedRows | null {
+  if (own === undefined || own !== table.rows || design.rows !== table.rows) return null;
+  if (design.columns.length !== encoding.terms.length || !namesAtOwnPositions(encoding, table, cells)) return null;
+  return {
+    design: { rows: own, columns: design.columns, names: encoding.terms.slice() },
+    ok: new Uint8Array(own).fill(1),
+    problems: [],
+    header: table.header,
+    firstRow: table.firstRow,
+  };
 }
 
 /** Training predictors may be trimmed shorter than the labels: rows past their end are missing. */

@@ -1,6 +1,7 @@
 /**
  * A trained model keeps its training rows encoded for scoring. For numeric predictors they are taken
- * from the parsed table rather than by encoding the cells again; the result must be exactly what
+ * from the parsed table, and when every row entered the fit from the fitted design, rather than by
+ * encoding the cells again; the result must be exactly what
  * encodeRows gives on the same cells (values, NaN rows, per-row problems, header, first row).
  */
 import fc from "fast-check";
@@ -60,6 +61,29 @@ describe("training rows kept for scoring equal encodeRows on the training cells"
   test("text categories (encoded from the cells) agree too", () => {
     const p: CellValue[][] = [["u", "region"], [1, "N"], [2, "S"], [3, "N"], [4, null], [5, "S"], [6, "N"], [7, "S"]];
     expectSameAsEncodeRows(labels(7, true), p, "yes");
+  });
+
+  test("text categories with every row used (taken from the fitted design) agree, numbers in a text column included", () => {
+    const p: CellValue[][] = [["u", "region", "size"], [1, "N", "big"], [2, " S ", "small"], [3, "N", 3], [4, "E", "big"], [5, "S", "small"], [6, "N", "big"], [7, "E", 3]];
+    expectSameAsEncodeRows(labels(7, true), p, "yes");
+    const m = trainModel(labels(7, true), p, { headers: "yes" });
+    expect(m.skipped.total).toBe(0);
+  });
+
+  test("text categories without a header row, every row used", () => {
+    const p: CellValue[][] = [[1, "N"], [2, "S"], [3, "N"], [4, "E"], [5, "S"], [6, "N"], [7, "E"]];
+    expectSameAsEncodeRows(labels(7, false), p, "no");
+  });
+
+  test("text categories under repeated header names (columns then matched by position)", () => {
+    const p: CellValue[][] = [["g", "g"], ["a", "x"], ["b", "y"], ["a", "y"], ["b", "x"], ["a", "x"], ["b", "y"]];
+    expectSameAsEncodeRows(labels(6, true), p, "yes");
+  });
+
+  test("text categories with a row skipped for a missing label", () => {
+    const y: CellValue[][] = [["y"], ["a"], ["b"], [null], ["a"], ["b"], ["a"], ["b"]];
+    const p: CellValue[][] = [["u", "region"], [1, "N"], [2, "S"], [3, "W"], [4, "N"], [5, "S"], [6, "N"], [7, "S"]];
+    expectSameAsEncodeRows(y, p, "yes");
   });
 
   test("random numeric sheets with blanks, booleans and numeric text", () => {
