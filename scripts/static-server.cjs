@@ -15,6 +15,8 @@ const path = require("path");
 /**
  * The policy: everything from our own origin only; no eval; no connections elsewhere; no plugins;
  * no <base> tricks; forms post nowhere. data: images let the plot export a picture.
+ * 'wasm-unsafe-eval' lets the engine compile its own WebAssembly kernels (src/engine/kernels, bytes
+ * bundled with our scripts); it does not allow eval or new Function for JavaScript.
  * Every page carries this same policy as a meta tag: the pane and workbench pages (written by hand)
  * and the generated help page (scripts/help-page.js takes it from here). No page has an inline style
  * or script, so style-src is 'self' alone, as strict as the metas. test/unit/privacy.test.ts checks
@@ -22,7 +24,7 @@ const path = require("path");
  */
 const CONTENT_SECURITY_POLICY = [
   "default-src 'self'",
-  "script-src 'self'",
+  "script-src 'self' 'wasm-unsafe-eval'",
   "connect-src 'self'",
   "img-src 'self' data:",
   "style-src 'self'",

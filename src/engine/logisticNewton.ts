@@ -23,6 +23,7 @@
  */
 
 import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
+import { wasmKernels } from "./kernels/wasmKernels";
 import { accumulateBlockCrossProduct, accumulateBlockGram, cholesky, choleskySolve, mirrorUpper, subMatrix, type SquareMatrix } from "./linalg";
 
 /** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
@@ -262,11 +263,16 @@ function denseCrossProducts(
   const cols = p.columns;
   const centre = p.centre && p.scale ? p.centre : null;
   const scale = p.scale;
-  const z = buffers.gramBlock ?? (buffers.gramBlock = new Float64Array(Math.max(kp, 3) * ROW_BLOCK));
-  const acc = buffers.gramOut ?? (buffers.gramOut = new Float64Array(kp * kp));
+  // The block and its sums live in the WebAssembly kernel's memory when it is available
+  // (wasmKernels.ts: block [0, kp ROW_BLOCK), sums [accAt, accAt + kp kp)), else in buffers.
+  const wasm = wasmKernels();
+  const accAt = kp * ROW_BLOCK;
+  const mem = wasm ? wasm.reserve(accAt + kp * kp) : null;
+  const z = mem ?? buffers.gramBlock ?? (buffers.gramBlock = new Float64Array(Math.max(kp, 3) * ROW_BLOCK));
+  const acc = mem ? mem.subarray(accAt, accAt + kp * kp) : (buffers.gramOut ?? (buffers.gramOut = new Float64Array(kp * kp)));
   const sw = buffers.rootWeights ?? (buffers.rootWeights = new Float64Array(ROW_BLOCK));
   acc.fill(0);
-  z.fill(0);
+  z.fill(0, 0, accAt);
   if (vectorOut) vectorOut.fill(0);
   for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
     const len = Math.min(ROW_BLOCK, n - i0);
@@ -284,7 +290,9 @@ function denseCrossProducts(
       }
     }
     if (len < ROW_BLOCK) for (let j = 0; j < k; j++) z.fill(0, j * ROW_BLOCK + len, (j + 1) * ROW_BLOCK);
-    accumulateBlockGram(z, kp, len, ROW_BLOCK, acc);
+    // The WebAssembly kernel takes rows in pairs: a short odd block ends with a zero row.
+    if (wasm && mem) wasm.gram(0, kp, len + (len & 1), ROW_BLOCK, accAt);
+    else accumulateBlockGram(z, kp, len, ROW_BLOCK, acc);
   }
   for (let j = 0; j < k; j++) for (let l = j; l < k; l++) out[j * k + l] = acc[j * kp + l];
   return mirrorUpper(out, k);

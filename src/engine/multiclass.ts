@@ -74,6 +74,7 @@ import {
   weightedCrossProduct,
 } from "./linalg";
 import { accumulateCrossProducts, accumulateWeightedGrams } from "./blockAccumulate";
+import { wasmKernels } from "./kernels/wasmKernels";
 import { exampleRows, formatMessage, listNames, problem } from "./messages";
 import type { Diagnostic, DesignMatrix, ModelFit, MulticlassFitOptions } from "./types";
 
@@ -675,6 +676,14 @@ class SoftmaxKernel {
     const info = mode === "information";
     if (derivs) score.fill(0);
     if (info) blocks.fill(0);
+    // The information's sums go to the WebAssembly kernel when it is available (wasmKernels.ts):
+    // its memory holds the chunk's columns [0, q CHUNK), the block weights [vAt, vAt + pairs CHUNK)
+    // and the accumulated sums [outAt, outAt + q q pairs).
+    const vAt = q * CHUNK;
+    const outAt = vAt + pairs * CHUNK;
+    const wasm = info ? wasmKernels() : null;
+    const mem = wasm ? wasm.reserve(outAt + q * q * pairs) : null;
+    if (mem) mem.fill(0, outAt, outAt + q * q * pairs);
     let logLik = 0;
     for (let r0 = 0; r0 < n; r0 += CHUNK) {
       const L = Math.min(CHUNK, n - r0);
@@ -739,8 +748,23 @@ class SoftmaxKernel {
       if (!derivs) continue;
       // Score: X' r_e over the chunk; information: X' diag(v_ef) X, upper triangles, over the chunk.
       accumulateCrossProducts(z, r0, L, resid, CHUNK, E, score);
-      if (info) accumulateWeightedGrams(z, r0, L, v, CHUNK, pairs, blocks);
+      if (info && wasm && mem) {
+        // Rows in pairs: an odd chunk gets a zero row (weight 0).
+        const even = L + (L & 1);
+        for (let j = 0; j < q; j++) {
+          mem.set(z[j].subarray(r0, r0 + L), j * CHUNK);
+          if (even > L) mem[j * CHUNK + L] = 0;
+        }
+        for (let pr = 0; pr < pairs; pr++) {
+          mem.set(v.subarray(pr * CHUNK, pr * CHUNK + L), vAt + pr * CHUNK);
+          if (even > L) mem[vAt + pr * CHUNK + L] = 0;
+        }
+        wasm.weightedGrams(0, q, even, vAt, CHUNK, pairs, outAt);
+      } else if (info) {
+        accumulateWeightedGrams(z, r0, L, v, CHUNK, pairs, blocks);
+      }
     }
+    if (info && wasm && mem) blocks.set(mem.subarray(outAt, outAt + q * q * pairs));
     return logLik;
   }
 
