@@ -5,7 +5,8 @@
  *   npm run bench                 full run (a few minutes on 2 cores); writes bench/RESULTS.md
  *   npm run bench -- --quick      smoke run on small data; prints only (add --write to keep it)
  * Other flags: --no-peers, --only=<case,...> (binary_10k, binary_100k, binary_1m, multi_100k,
- *   onehot_100k, cell, boundary, memory; quick names: binary_10k, multi_10k, onehot_10k), --write
+ *   onehot_100k, cell, boundary, memory; quick names: binary_10k, multi_10k, onehot_10k), --write,
+ *   --no-wasm (our side with the JavaScript kernels only, as on an engine without WebAssembly)
  *
  * Method (what a skeptical reader should check):
  * - Data: bench/generate.ts writes seeded files once; every program reads the same bytes.
@@ -28,6 +29,7 @@ import { performance } from "perf_hooks";
 import * as v8 from "v8";
 import * as vm from "vm";
 import { DATA_DIR, ensureData, loadDataSet, type LoadedDataSet } from "./generate";
+import { setWasmKernelsEnabled, wasmKernels } from "../src/engine/kernels/wasmKernels";
 import type { CellValue, DesignMatrix, ModelFit, Prediction } from "../src/engine/types";
 
 const ROOT = path.resolve(__dirname, "..");
@@ -40,6 +42,10 @@ const LONG_FIT_SECONDS = 2;
 const argv = process.argv.slice(2);
 const QUICK = argv.includes("--quick");
 const NO_PEERS = argv.includes("--no-peers");
+const NO_WASM = argv.includes("--no-wasm");
+if (NO_WASM) setWasmKernelsEnabled(false);
+/** Which kernels our fits use in this run (see src/engine/kernels/wasmKernels.ts). */
+const KERNELS = NO_WASM ? "JavaScript only (--no-wasm)" : wasmKernels() ? "WebAssembly SIMD for the Gram-matrix sums, JavaScript for the rest" : "JavaScript only (WebAssembly SIMD unavailable)";
 const WRITE = argv.includes("--write") || (!QUICK && !argv.some((a) => a.startsWith("--only")));
 const ONLY = (argv.find((a) => a.startsWith("--only="))?.slice(7).split(",") ?? null) as string[] | null;
 const wants = (id: string): boolean => !ONLY || ONLY.includes(id);
@@ -694,7 +700,7 @@ function memoryChild(name: string): void {
 
 function memoryCase(name: string, rows: number, cols: number): MemoryInfo {
   const tsxCli = require.resolve("tsx/cli");
-  const res = spawnSync(process.execPath, [tsxCli, __filename, "--memory-child", name], { encoding: "utf8", maxBuffer: 1 << 24 });
+  const res = spawnSync(process.execPath, [tsxCli, __filename, "--memory-child", name, ...(NO_WASM ? ["--no-wasm"] : [])], { encoding: "utf8", maxBuffer: 1 << 24 });
   const base = { rows, cols, rawBytes: rows * cols * 8 };
   if (res.status !== 0) return { ...base, ok: false, error: (res.stderr || "child failed").trim().split("\n").slice(-3).join(" | ") };
   try {
@@ -711,6 +717,8 @@ interface RunRecord {
   quick: boolean;
   machine: { nproc: number; memoryGB: number; cpu: string; os: string };
   versions: Record<string, string | null>;
+  /** Which kernels our fits used (absent in records written before the WebAssembly kernels). */
+  kernels?: string;
   peersMissing: string[];
   uptimeStart: string;
   uptimeEnd: string;
@@ -885,8 +893,9 @@ function renderMarkdown(r: RunRecord, history: RunRecord[], notes: string): stri
       .map(([k, v]) => `${k} ${v ?? "missing"}`)
       .join(", ")}.`,
     `- Commit: ${r.commit}.`,
+    `- Our kernels: ${r.kernels ?? "JavaScript only"}.`,
     `- Peers missing: ${r.peersMissing.length ? r.peersMissing.join("; ") : "none"}.`,
-    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is JavaScript on one thread (V8's garbage collector uses helper threads).",
+    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is JavaScript (plus two small WebAssembly SIMD kernels) on one thread (V8's garbage collector uses helper threads).",
     "",
   );
   L.push("### Targets", "", "| target | goal | measured | status |", "|---|---|---|---|");
@@ -1000,7 +1009,7 @@ function main(): void {
   }
   const started = Date.now();
   const uptimeStart = sh("uptime", []);
-  log(`Oddsmith speed benchmark (${QUICK ? "quick" : "full"}) ${new Date().toISOString()}\n${uptimeStart}`);
+  log(`Oddsmith speed benchmark (${QUICK ? "quick" : "full"}) ${new Date().toISOString()}\n${uptimeStart}\nkernels: ${KERNELS}`);
   const written = ensureData({ quick: QUICK });
   if (written.length) log(`generated ${written.join(", ")} into ${DATA_DIR}`);
   const avail = NO_PEERS ? null : checkPeers();
@@ -1080,6 +1089,7 @@ function main(): void {
       R: avail?.r ?? null,
       nnet: avail?.nnet ?? null,
     },
+    kernels: KERNELS,
     peersMissing: NO_PEERS ? ["peers skipped (--no-peers)"] : avail!.notes,
     uptimeStart,
     uptimeEnd: sh("uptime", []),
