@@ -719,10 +719,11 @@ class SoftmaxKernel {
         logLik += w[row] * ((ye >= 0 ? etaBuf[ye * CHUNK + i] : 0) - shift[i] - Math.log(sum[i]));
       }
       if (!derivs) continue;
+      for (let i = 0; i < L; i++) sum[i] = 1 / sum[i];
       for (let e = 0; e < E; e++) {
         const o = e * CHUNK;
         for (let i = 0; i < L; i++) {
-          const p = prob[o + i] / sum[i];
+          const p = prob[o + i] * sum[i];
           prob[o + i] = p;
           resid[o + i] = w[r0 + i] * ((yEq[i] === e ? 1 : 0) - p);
         }
