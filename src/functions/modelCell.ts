@@ -10,9 +10,9 @@
 import { OddsmithError, problem, type MessageCode } from "../engine/messages";
 import { trainModel, type ModelOptions, type TrainedModel } from "../engine/model";
 import type { CellValue, Diagnostic } from "../engine/types";
-import { cellCount, contentKey, sharedFitCache } from "../shared/fitCache";
+import { cellCount, contentKey, contentKeyAndSizes, sharedFitCache } from "../shared/fitCache";
 import { FIT_OPTIONS, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
-import { checkPayload, surelyTooLarge, type PayloadPart } from "./payload";
+import { PAYLOAD_SIZER, checkPayload, surelyTooLarge, type PayloadPart } from "./payload";
 import { required } from "./required";
 
 export type FitCellOptions = ParsedOptions<typeof FIT_OPTIONS>;
@@ -56,13 +56,15 @@ export const MODEL_KEY_VERSION = "trainModel/1";
 /**
  * The shared-cache key of the model of labels x predictors under the fit options `model`: a hash of
  * every cell (value and type, header row included) and of every fit option (the threshold is not one:
- * it only changes scoring). The cell functions and the task pane both key fits with this function, so
- * a model the pane fitted (on its own thread or in its worker) is the one its formulas find.
+ * it only changes scoring). The task pane keys fits with this function and the cell functions compute
+ * the very same key (fittedModel, in the pass that also sizes the cells), so a model the pane fitted
+ * (on its own thread or in its worker) is the one its formulas find.
  * @example modelCacheKey([["y"], ["a"]], [["x"], [1]], { penalty: 0 }) === modelCacheKey([["y"], ["a"]], [["x"], [1]], { penalty: 0 })
  */
 export function modelCacheKey(labels: CellValue[][], predictors: CellValue[][], model: ModelOptions): string {
   return contentKey(MODEL_KEY_VERSION, labels, predictors, model as unknown as Record<string, unknown>);
 }
+
 
 /**
  * Train (or fetch from the cache) the model of labels x predictors under `options`.
@@ -81,29 +83,16 @@ export function fittedModel(
   const parts: PayloadPart[] = [{ argument: "labels", cells: l }, { argument: "predictors", cells: p }, ...extraInputs];
   // A call the cheapest bound rejects is refused before its cells are hashed.
   if (surelyTooLarge(parts, extraOutputCells)) checkPayload(parts, extraOutputCells);
-  const key = modelCacheKey(l, p, options.model);
-  // Same content, same sizes: a cached model's inputs keep the estimate made when it was fitted.
-  const cache = modelCache();
-  // (The shared cache may come from another bundle: `has` is checked before it is used.)
-  const known = typeof cache.has === "function" && cache.has(key) ? payloadSizes.get(key) : undefined;
-  if (known) {
-    parts[0].bytes = known[0];
-    parts[1].bytes = known[1];
-  }
+  // The pass that hashes the cells for the cache key (modelCacheKey's key) also sizes them by the
+  // estimate rule: the cells are read once for both. (Always sized, so that this one loop is compiled
+  // for one kind of call.)
+  const { key, sizes } = contentKeyAndSizes([MODEL_KEY_VERSION, l, p, options.model], PAYLOAD_SIZER);
+  parts[0].bytes = sizes[1];
+  parts[1].bytes = sizes[2];
   checkPayload(parts, extraOutputCells);
-  if (!known && parts[0].bytes !== undefined && parts[1].bytes !== undefined) {
-    if (payloadSizes.size >= PAYLOAD_SIZES_KEPT) payloadSizes.delete(payloadSizes.keys().next().value as string);
-    payloadSizes.set(key, [parts[0].bytes, parts[1].bytes]);
-  }
+  const cache = modelCache();
   return cache.getOrCreate(key, cellCount(l, p), () => trainModel(l, p, options.model));
 }
-
-/**
- * Payload estimates (labels, predictors) of recent model keys, oldest first; at most
- * PAYLOAD_SIZES_KEPT. Used only while the key's model is cached (so clearing the cache forgets them).
- */
-const payloadSizes = new Map<string, [number, number]>();
-const PAYLOAD_SIZES_KEPT = 64;
 
 /** The first diagnostic of severity "error" (the fit has no usable estimates), or null. */
 export function fitFailure(model: TrainedModel): Diagnostic | null {

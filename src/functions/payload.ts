@@ -18,9 +18,12 @@
  *   17 significant digits plus a separator) and added to the inputs.
  * The per-cell sizes are only computed when a cheap bound cannot decide: at 5 bytes per cell (the
  * least any cell costs) a call above the limit is rejected at once, and at 26 bytes per cell (the
- * most a number or blank costs: "-0.0000012345678901234567,") a call below it passes at once.
+ * most a number or blank costs: "-0.0000012345678901234567,") a call below it passes at once. The
+ * fitting functions size labels and predictors in the pass that hashes them for the fit cache
+ * (PAYLOAD_SIZER) and hand the sizes in as PayloadPart.bytes.
  */
 import { problem } from "../engine/messages";
+import type { CellSizer } from "../shared/fitCache";
 
 /** About 5 MB per call (Office custom-functions documentation, "payload limit"). */
 export const PAYLOAD_LIMIT_BYTES = 5_000_000;
@@ -176,6 +179,13 @@ export function estimateBytes(value: unknown): number {
 }
 
 /**
+ * The estimate rule's cell sizes (numberCost for numbers, cellBytes for the rest), for
+ * contentKeyAndSizes (src/shared/fitCache.ts): the pass that hashes a range for the fit cache also
+ * gives its estimateBytes, so the range is read once for both.
+ */
+export const PAYLOAD_SIZER: CellSizer = { number: numberCost, other: cellBytes };
+
+/**
  * Throw RANGE_TOO_LARGE when the call's estimated size (inputs plus `outputCells` output cells)
  * exceeds `limit`. The message names the largest argument.
  * @returns the estimated size in bytes (useful in tests and the workbench)
@@ -202,7 +212,7 @@ function checkCounted(parts: PayloadPart[], cells: number[], outputCells: number
   let sizes: number[] | null = null;
   if (totalCells * MIN_CELL_BYTES + outputBytes > limit) {
     bytes = totalCells * MIN_CELL_BYTES + outputBytes;
-  } else if (totalCells * MAX_NONTEXT_CELL_BYTES + outputBytes <= limit && !parts.some((p) => hasLongText(p.cells))) {
+  } else if (cheaplyUnder(parts, totalCells, outputBytes, limit)) {
     return totalCells * MAX_NONTEXT_CELL_BYTES + outputBytes; // an upper bound, already under the limit
   } else {
     sizes = parts.map((p) => (p.bytes ??= estimateBytes(p.cells)));
@@ -219,6 +229,11 @@ function checkCounted(parts: PayloadPart[], cells: number[], outputCells: number
     });
   }
   return bytes;
+}
+
+/** The 26-bytes-per-cell bound is under the limit (and no text is longer than a number's text). */
+function cheaplyUnder(parts: PayloadPart[], totalCells: number, outputBytes: number, limit: number): boolean {
+  return totalCells * MAX_NONTEXT_CELL_BYTES + outputBytes <= limit && !parts.some((p) => hasLongText(p.cells));
 }
 
 function hasLongText(value: unknown): boolean {

@@ -174,15 +174,17 @@ function feedNumber(st: KeyState, x: number): void {
 
 /**
  * The elements of an array (typically a worksheet row), each as feedValue feeds it, with numbers and
- * text, most cells, hashed in locals.
+ * text, most cells, hashed in locals; with a sizer, also the sum of the cells' sizes (else 0).
  */
-function feedElements(st: KeyState, v: readonly unknown[]): void {
+function feedElements(st: KeyState, v: readonly unknown[], sizer: CellSizer | null): number {
+  let bytes = 0;
   let a = st[A];
   let b = st[B];
   let n = st[N];
   for (let i = 0; i < v.length; i++) {
     const x = v[i];
     if (typeof x === "number") {
+      if (sizer !== null) bytes += sizer.number(x);
       // TAG.number, then the two words of the bits (-0 as 0), as feedValue feeds a number.
       F64[0] = x === 0 ? 0 : x;
       const lo = U32[0];
@@ -200,6 +202,7 @@ function feedElements(st: KeyState, v: readonly unknown[]): void {
       b ^= b >>> 15;
       n = (n + 1) | 0;
     } else if (typeof x === "string") {
+      if (sizer !== null) bytes += sizer.other(x);
       // TAG.text, the length, then the UTF-16 code units, as feedValue feeds text.
       for (let u = -2; u < x.length; u++) {
         const c = u === -2 ? TEXT_TAG : u === -1 ? x.length : x.charCodeAt(u);
@@ -209,6 +212,7 @@ function feedElements(st: KeyState, v: readonly unknown[]): void {
         n = (n + 1) | 0;
       }
     } else {
+      if (sizer !== null) bytes += sizer.other(x);
       st[A] = a;
       st[B] = b;
       st[N] = n;
@@ -221,6 +225,30 @@ function feedElements(st: KeyState, v: readonly unknown[]): void {
   st[A] = a;
   st[B] = b;
   st[N] = n;
+  return bytes;
+}
+
+/**
+ * An array as feedValue feeds it, a range's rows each in one loop; with a sizer, also returns the
+ * size of the array as JSON text by the sizer's cell sizes: 2 for the brackets, 2 more per row
+ * (without one, 0).
+ */
+function feedArray(st: KeyState, v: readonly unknown[], sizer: CellSizer | null): number {
+  unit(st, TAG.array);
+  unit(st, v.length);
+  let bytes = 2;
+  for (let i = 0; i < v.length; i++) {
+    const row: unknown = v[i];
+    if (Array.isArray(row)) {
+      unit(st, TAG.array);
+      unit(st, row.length);
+      bytes += 2 + feedElements(st, row, sizer);
+    } else {
+      feedValue(st, row);
+      if (sizer !== null) bytes += typeof row === "number" ? sizer.number(row) : sizer.other(row);
+    }
+  }
+  return sizer === null ? 0 : bytes;
 }
 
 function feedValue(st: KeyState, v: unknown): void {
@@ -232,19 +260,8 @@ function feedValue(st: KeyState, v: unknown): void {
   else if (typeof v === "string") {
     unit(st, TAG.text);
     feedText(st, v);
-  } else if (Array.isArray(v)) {
-    unit(st, TAG.array);
-    unit(st, v.length);
-    // A range's rows: each row's cells in one loop.
-    for (let i = 0; i < v.length; i++) {
-      const row: unknown = v[i];
-      if (Array.isArray(row)) {
-        unit(st, TAG.array);
-        unit(st, row.length);
-        feedElements(st, row);
-      } else feedValue(st, row);
-    }
-  } else if (ArrayBuffer.isView(v) && "length" in v) {
+  } else if (Array.isArray(v)) feedArray(st, v, null);
+  else if (ArrayBuffer.isView(v) && "length" in v) {
     const arr = v as unknown as ArrayLike<number>;
     unit(st, TAG.typed);
     unit(st, arr.length);
@@ -280,6 +297,31 @@ export function contentKey(...parts: unknown[]): string {
   const st = newState();
   for (const p of parts) feedValue(st, p);
   return digest(st);
+}
+
+/** Sizes of cells, for contentKeyAndSizes: one number cell, and any other cell. */
+export interface CellSizer {
+  number(x: number): number;
+  other(v: unknown): number;
+}
+
+/**
+ * contentKey(...parts), and in the same pass over the cells the size of each array part by `sizer`
+ * (0 for a part that is not an array, and for every part without a sizer): a range is read once for
+ * its key and its size.
+ * @example contentKeyAndSizes(["fit", [[1, "a"]]], sizer).key === contentKey("fit", [[1, "a"]])
+ */
+export function contentKeyAndSizes(parts: readonly unknown[], sizer: CellSizer | null): { key: string; sizes: number[] } {
+  const st = newState();
+  const sizes: number[] = [];
+  for (const p of parts) {
+    if (Array.isArray(p)) sizes.push(feedArray(st, p, sizer));
+    else {
+      feedValue(st, p);
+      sizes.push(0);
+    }
+  }
+  return { key: digest(st), sizes };
 }
 
 /** Number of cells in a list of 2-D ranges (non-arrays count 1). */

@@ -7,6 +7,7 @@
 import * as spector from "../../fixtures/binary/spector.json";
 import * as model from "../../../src/engine/model";
 import { fit, margin, predictClass, prob, report } from "../../../src/functions/functions";
+import { modelCacheKey, readModelOptions } from "../../../src/functions/modelCell";
 import { DEFAULT_MAX_ENTRIES, sharedFitCache } from "../../../src/shared/fitCache";
 import { OMITTED, column, failure, lookup, table, type Range } from "./excel";
 
@@ -51,6 +52,24 @@ describe("one fit per distinct input", () => {
     fit(labels(), predictors(), [["level=0.9; firth=false"]]);
     fit(labels(), predictors(), [["Level", 0.9], ["FIRTH", "no"]]);
     expect(trains).toHaveBeenCalledTimes(1);
+  });
+});
+
+describe("the key the cell functions compute", () => {
+  test("is modelCacheKey's (the task pane's), for a small call and for one near the payload limit", () => {
+    const small = { l: labels() as unknown as (string | number)[][], p: predictors() as unknown as (string | number)[][] };
+    // 150,000 rows x 2 cells: beyond the 26-bytes-per-cell quick bound, so the sizes computed while hashing decide.
+    const n = 150_000;
+    const big = {
+      l: [["y"], ...Array.from({ length: n }, (_, i) => [i % 3 === 0 ? 1 : 0])],
+      p: [["x"], ...Array.from({ length: n }, (_, i) => [Math.sin(i) + (i % 3 === 0 ? 0.7 : 0)])],
+    };
+    for (const { l, p } of [small, big]) {
+      sharedFitCache().clear();
+      fit(l, p, OMITTED);
+      const key = modelCacheKey(l, p, readModelOptions("ODDS.FIT", null).model);
+      expect(sharedFitCache().has(key)).toBe(true);
+    }
   });
 });
 

@@ -2,7 +2,7 @@
  * The fit cache (src/shared/fitCache.ts): content keys that see every cell and its type, LRU
  * eviction bounded by entries and by cells, no caching of failures, one instance per runtime.
  */
-import { FitCache, cellCount, contentKey, sharedFitCache } from "../../../src/shared/fitCache";
+import { FitCache, cellCount, contentKey, contentKeyAndSizes, sharedFitCache, type CellSizer } from "../../../src/shared/fitCache";
 
 describe("contentKey", () => {
   test("equal content gives equal keys, whatever the object key order", () => {
@@ -33,6 +33,27 @@ describe("contentKey", () => {
   test("sees typed arrays and undefined object fields as documented", () => {
     expect(contentKey(new Float64Array([1, 2]))).not.toBe(contentKey(new Float64Array([1, 3])));
     expect(contentKey({ a: 1, b: undefined })).toBe(contentKey({ a: 1 }));
+  });
+});
+
+describe("contentKeyAndSizes", () => {
+  const parts = ["v1", [["y"], [1], [0]], [["x", "flag"], [0.5, true], [null, "a"]], [1, "b", null], { penalty: 0 }];
+  /** One byte per number, ten per other cell: easy to count by hand. */
+  const sizer: CellSizer = { number: () => 1, other: () => 10 };
+
+  test("gives the key contentKey gives for the same parts, with or without a sizer", () => {
+    expect(contentKeyAndSizes(parts, sizer).key).toBe(contentKey(...parts));
+    expect(contentKeyAndSizes(parts, null).key).toBe(contentKey(...parts));
+  });
+
+  test("sizes each array part: 2 for its brackets, 2 per row, the sizer's size per cell; 0 for other parts", () => {
+    // [["y"], [1], [0]]: 2 + 3 rows x 2 + 10 + 1 + 1; [["x","flag"], [0.5,true], [null,"a"]]: 2 + 3 x 2 + 10 + 10 + 1 + 10 + 10 + 10;
+    // [1, "b", null] (a flat row): 2 + 1 + 10 + 10.
+    expect(contentKeyAndSizes(parts, sizer).sizes).toEqual([0, 20, 59, 23, 0]);
+  });
+
+  test("sizes nothing without a sizer", () => {
+    expect(contentKeyAndSizes(parts, null).sizes).toEqual([0, 0, 0, 0, 0]);
   });
 });
 

@@ -4,7 +4,9 @@
  */
 import { formatMessage } from "../../../src/engine/messages";
 import { OddsmithError } from "../../../src/engine/messages";
-import { PAYLOAD_LIMIT_BYTES, checkPayload, estimateBytes } from "../../../src/functions/payload";
+import fc from "fast-check";
+import { PAYLOAD_LIMIT_BYTES, PAYLOAD_SIZER, checkPayload, estimateBytes } from "../../../src/functions/payload";
+import { contentKeyAndSizes } from "../../../src/shared/fitCache";
 
 /** Excel's largest sheet: a whole-column reference carries this many rows. */
 const SHEET_ROWS = 1_048_576;
@@ -75,5 +77,21 @@ describe("checkPayload", () => {
     const t = [[1, 2, 3]];
     expect(() => checkPayload([{ argument: "x", cells: t }], 0, 5)).toThrow(OddsmithError);
     expect(checkPayload([{ argument: "x", cells: t }], 0, 1000)).toBeGreaterThan(0);
+  });
+});
+
+describe("sizing in the pass that hashes the cells", () => {
+  test("contentKeyAndSizes with PAYLOAD_SIZER gives estimateBytes of every range", () => {
+    const cell = fc.oneof(
+      { weight: 4, arbitrary: fc.double({ noNaN: true, noDefaultInfinity: true }) },
+      { weight: 1, arbitrary: fc.constantFrom<unknown>(null, true, false, "", "North", "a longer text than any number here", 0, -0, 12, 2.5) },
+    );
+    fc.assert(
+      fc.property(fc.array(fc.array(cell, { minLength: 1, maxLength: 6 }), { minLength: 1, maxLength: 10 }), (rows) => {
+        const { sizes } = contentKeyAndSizes(["v", rows], PAYLOAD_SIZER);
+        return sizes[1] === estimateBytes(rows);
+      }),
+      { numRuns: 2_000 },
+    );
   });
 });
