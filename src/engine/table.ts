@@ -115,15 +115,17 @@ function classify(v: CellValue): number {
   if (v === null || v === undefined) return BLANK;
   if (typeof v === "number") return NUM;
   if (typeof v === "boolean") return BOOL;
-  // Numbers stored as text follow the locale-free rule (the regex runs only on a plausible start).
-  if (typeof v === "string") {
-    const t = v.trim();
-    const c = t.charCodeAt(0);
-    if (t === "") return BLANK;
-    const plausible = (c >= 48 && c <= 57) || c === 43 || c === 45 || c === 46;
-    return plausible && NUMERIC_TEXT.test(t) ? NUM : TEXT;
-  }
+  if (typeof v === "string") return classifyTrimmed(v.trim());
   return TEXT;
+}
+
+/** Kind of a text cell, given its trimmed text: BLANK, NUM (a number stored as text) or TEXT. */
+function classifyTrimmed(t: string): number {
+  if (t === "") return BLANK;
+  // Numbers stored as text follow the locale-free rule (the regex runs only on a plausible start).
+  const c = t.charCodeAt(0);
+  const plausible = (c >= 48 && c <= 57) || c === 43 || c === 45 || c === 46;
+  return plausible && NUMERIC_TEXT.test(t) ? NUM : TEXT;
 }
 
 function numberOf(v: CellValue): number {
@@ -178,13 +180,15 @@ export function detectHeader(rows: CellValue[][]): { header: boolean; evidence: 
       const j = named[t];
       const v = row[j];
       if (typeof v === "number" || typeof v === "boolean") continue;
-      const k = classify(v);
+      // Text is trimmed once, for its kind and for the comparison with the name.
+      const trimmed = typeof v === "string" ? v.trim() : null;
+      const k = trimmed !== null ? classifyTrimmed(trimmed) : classify(v);
       if (k === BLANK) blank[j]++;
       else if (k === TEXT) {
         text[j]++;
         // In a text column a category value recurs and a name does not (weak evidence): one
         // recurring first cell makes the first row data, whatever the other columns show.
-        if (textOf(v) === nameOf[j]) return { header: false, evidence: "weak" };
+        if ((trimmed ?? textOf(v)) === nameOf[j]) return { header: false, evidence: "weak" };
       }
     }
   }
@@ -312,6 +316,8 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
   const nZero = new Int32Array(width);
   const firstText = new Int32Array(width).fill(-1);
   const firstNonFinite = new Int32Array(width).fill(-1);
+  // Per column from its first text cell on: the trimmed text of its text cells.
+  const texts: (string[] | null)[] = new Array<string[] | null>(width).fill(null);
   for (let i = 0; i < n; i++) {
     const row = rows[start + i];
     for (let j = 0; j < width; j++) {
@@ -324,14 +330,16 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
         } else if (v === 0) nZero[j]++; // only a real numeric 0 can be a blank sent by an older build
         continue;
       }
-      const k = classify(v);
+      // Text is trimmed once: for its kind, its number, and its value in a text column (kept).
+      const t = typeof v === "string" ? v.trim() : null;
+      const k = t !== null ? classifyTrimmed(t) : classify(v);
       kinds[j][i] = k;
       if (k === BLANK) {
         nums[j][i] = NaN;
         nBlank[j]++;
       } else if (k === NUM) {
         // Numeric text: the text "0" was typed, so it is never a blank.
-        const x = numberOf(v);
+        const x = t !== null ? Number(t) : numberOf(v);
         nums[j][i] = x;
         if (!Number.isFinite(x)) {
           if (firstNonFinite[j] < 0) firstNonFinite[j] = i;
@@ -341,7 +349,11 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
         nBool[j]++;
       } else {
         nText[j]++;
-        if (firstText[j] < 0) firstText[j] = i;
+        if (firstText[j] < 0) {
+          firstText[j] = i;
+          texts[j] = new Array<string>(n);
+        }
+        if (t !== null) (texts[j] as string[])[i] = t;
       }
     }
   }
@@ -354,7 +366,7 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
     // Every number is finite here: the numbers (and numeric text) are the cells of no other kind.
     const nNum = n - nBlank[j] - nBool[j] - nText[j];
     const nonZeroNumber = nNumText[j] > 0 || nNum - nNumText[j] - nZero[j] > 0;
-    columns.push(finishColumn(rows, start, j, names[j], argument, kinds[j], nums[j], nNum, nBool[j], nText[j], nBlank[j], firstText[j], nonZeroNumber));
+    columns.push(finishColumn(rows, start, j, names[j], argument, kinds[j], nums[j], texts[j], nNum, nBool[j], nText[j], nBlank[j], firstText[j], nonZeroNumber));
   }
   return columns;
 }
@@ -367,6 +379,7 @@ function finishColumn(
   argument: string,
   kinds: Uint8Array,
   nums: Float64Array,
+  texts: string[] | null,
   nNumIn: number,
   nBool: number,
   nText: number,
@@ -393,7 +406,8 @@ function finishColumn(
       if (k === BLANK || (zeroIsBlank && k === NUM)) {
         values[i] = "";
         missing[i] = 1;
-      } else values[i] = textOf(rows[start + i][j]);
+      } else if (k === TEXT && texts !== null && texts[i] !== undefined) values[i] = texts[i];
+      else values[i] = textOf(rows[start + i][j]);
     }
     return { name, kind: "text", values, missing };
   }
