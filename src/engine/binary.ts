@@ -758,6 +758,12 @@ export const WARM_START_MIN_ROWS = 40000;
 export const WARM_START_ROWS = 5000;
 /** Rows of the warm-start subsample per design column (wide designs need more for a close information). */
 export const WARM_START_ROWS_PER_COLUMN = 100;
+/**
+ * Convergence tolerance of the subsample fit. Its estimate only chooses where the full-data
+ * iterations begin: it differs from the full-data estimate by the subsample's sampling error (about
+ * sqrt(rows / subsample rows) full-data standard errors), far more than a tighter tolerance removes.
+ */
+const WARM_START_TOLERANCE = 1e-4;
 /** A subsample fit with a fitted probability this far out (|eta| above it) may be near separation: no warm start. */
 const WARM_START_MAX_ETA = 15;
 
@@ -834,6 +840,7 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
     weights,
     offset: pick(prob.offset),
     penalty: prob.penalty.map((v) => v * fraction),
+    tolerance: Math.max(prob.tolerance, WARM_START_TOLERANCE),
     keepHistory: false,
     unitGram: null,
     start: null,
