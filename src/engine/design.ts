@@ -195,14 +195,12 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
     }
     // Own keys only: a column named "constructor" or "toString" must not pick up Object.prototype members.
     const wanted = Object.prototype.hasOwnProperty.call(refs, c.name) ? refs[c.name] : null;
-    const enc = encodeCategory(c, inputRows, minCount, wanted ?? null, notes);
+    const { encoding: enc, rowLevels } = encodeCategory(c, inputRows, minCount, wanted ?? null, notes);
     columns.push(enc);
-    const values = c.values as string[];
-    const levelIndex = levelLookup(enc);
     const ref = enc.levels.indexOf(enc.reference);
     const outs = enc.terms.map(() => new Float64Array(m));
     for (let r = 0; r < m; r++) {
-      const li = levelIndex.get(values[inputRows[r]]) as number;
+      const li = rowLevels[r];
       if (li === ref) continue;
       outs[li < ref ? li : li - 1][r] = 1;
     }
@@ -222,19 +220,37 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
   };
 }
 
+/**
+ * The encoding of a text column over the fitted rows, and each fitted row's level (its index in
+ * `levels`; a pooled level's row has the index of "(other)"). Each row's text is looked up once: rows
+ * get a code in order of first appearance, and the codes are mapped to levels at the end.
+ */
 function encodeCategory(
   c: TableColumn,
   inputRows: Int32Array,
   minCount: number,
   wantedRef: string | null,
   notes: Diagnostic[],
-): ColumnEncoding & { kind: "category" } {
+): { encoding: ColumnEncoding & { kind: "category" }; rowLevels: Int32Array } {
   const values = c.values as string[];
-  const counts = new Map<string, number>();
+  const codeOf = new Map<string, number>();
+  const seen: string[] = [];
+  const seenCount: number[] = [];
+  const rowLevels = new Int32Array(inputRows.length);
   for (let r = 0; r < inputRows.length; r++) {
     const v = values[inputRows[r]];
-    counts.set(v, (counts.get(v) ?? 0) + 1);
+    let code = codeOf.get(v);
+    if (code === undefined) {
+      code = seen.length;
+      codeOf.set(v, code);
+      seen.push(v);
+      seenCount.push(0);
+    }
+    seenCount[code]++;
+    rowLevels[r] = code;
   }
+  const counts = new Map<string, number>();
+  seen.forEach((v, k) => counts.set(v, seenCount[k]));
   let levels = [...counts.keys()].sort(compareText);
   let pooled: string[] = [];
   if (minCount > 0) {
@@ -266,7 +282,12 @@ function encodeCategory(
   }
   // The reference level is the caller's, otherwise the first in sorted order.
   const terms = levels.filter((l) => l !== reference).map((l) => `${c.name}=${l}`);
-  return { name: c.name, kind: "category", levels, reference, pooled, terms };
+  const encoding: ColumnEncoding & { kind: "category" } = { name: c.name, kind: "category", levels, reference, pooled, terms };
+  // Codes of first appearance -> levels (pooled levels -> "(other)").
+  const lookup = levelLookup(encoding);
+  const levelOfCode = Int32Array.from(seen, (v) => lookup.get(v) as number);
+  for (let r = 0; r < rowLevels.length; r++) rowLevels[r] = levelOfCode[rowLevels[r]];
+  return { encoding, rowLevels };
 }
 
 function matchLevel(levels: string[], pooled: string[], wanted: string, column: string): string {
