@@ -91,23 +91,52 @@ export function readLabels(column: TableColumn, opts: ReadLabelsOptions = {}): L
   const use = opts.use ?? null;
   const source: LabelInfo["source"] = column.kind === "text" ? "text" : column.kind === "boolean" ? "boolean" : "number";
 
-  // Collect distinct values among usable, non-missing rows.
-  const keyOf: (i: number) => string =
-    column.kind === "text"
-      ? (i) => (column.values as string[])[i]
-      : column.kind === "boolean"
-        ? (i) => ((column.values as Float64Array)[i] === 1 ? "TRUE" : "FALSE")
-        : (i) => String((column.values as Float64Array)[i]);
-  const countByKey = new Map<string, number>();
-  const numericByKey = new Map<string, number>();
+  // Collect distinct values among usable, non-missing rows: each row's value is looked up once (a code
+  // in order of first appearance), its key text made once per distinct value.
+  const text = column.kind === "text" ? (column.values as string[]) : null;
+  const numbers = column.kind === "text" ? null : (column.values as Float64Array);
+  const codeOfText = new Map<string, number>();
+  const codeOfNumber = new Map<number, number>();
+  const keys: string[] = [];
+  const keyCount: number[] = [];
+  const keyNumber: number[] = [];
+  const rowCode = new Int32Array(n).fill(-1);
   let usable = 0;
   for (let i = 0; i < n; i++) {
     if (column.missing[i] || (use && !use[i])) continue;
     usable++;
-    const k = keyOf(i);
-    countByKey.set(k, (countByKey.get(k) ?? 0) + 1);
-    if (column.kind !== "text") numericByKey.set(k, (column.values as Float64Array)[i]);
+    let code: number | undefined;
+    if (text) {
+      const v = text[i];
+      code = codeOfText.get(v);
+      if (code === undefined) {
+        code = keys.length;
+        codeOfText.set(v, code);
+        keys.push(v);
+        keyCount.push(0);
+        keyNumber.push(NaN);
+      }
+    } else {
+      const x = (numbers as Float64Array)[i];
+      code = codeOfNumber.get(x);
+      if (code === undefined) {
+        code = keys.length;
+        codeOfNumber.set(x, code);
+        keys.push(column.kind === "boolean" ? (x === 1 ? "TRUE" : "FALSE") : String(x));
+        keyCount.push(0);
+        keyNumber.push(x);
+      }
+    }
+    keyCount[code]++;
+    rowCode[i] = code;
   }
+  // (0 and -0 are one key, "0", as String() writes both.)
+  const countByKey = new Map<string, number>();
+  const numericByKey = new Map<string, number>();
+  keys.forEach((k, c) => {
+    countByKey.set(k, (countByKey.get(k) ?? 0) + keyCount[c]);
+    if (column.kind !== "text") numericByKey.set(k, keyNumber[c]);
+  });
   let sorted = [...countByKey.keys()];
   // Sorted order: numbers by value, booleans FALSE before TRUE, text case-insensitively.
   if (column.kind === "text") sorted.sort(compareText);
@@ -157,11 +186,9 @@ export function readLabels(column: TableColumn, opts: ReadLabelsOptions = {}): L
     referenceIndex = classes.indexOf(referenceClass);
   }
   const index = new Map(classes.map((c, i) => [c, i] as [string, number]));
+  const classOfCode = Int32Array.from(keys, (k) => index.get(k) as number);
   const codes = new Int32Array(n).fill(-1);
-  for (let i = 0; i < n; i++) {
-    if (column.missing[i] || (use && !use[i])) continue;
-    codes[i] = index.get(keyOf(i)) as number;
-  }
+  for (let i = 0; i < n; i++) if (rowCode[i] >= 0) codes[i] = classOfCode[rowCode[i]];
   return {
     name: column.name,
     kind: classes.length === 2 ? "binary" : "multiclass",
