@@ -182,8 +182,9 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
     if (c.kind === "number" || c.kind === "boolean") {
       const v = c.values as Float64Array;
       let out: Float64Array;
-      // Every row used: one block copy instead of a gather.
-      if (m === n && v.length === n) out = v.slice();
+      // Every row used: the table's column itself, not a copy (the fitters never write to a design
+      // column, and the table is the caller's own parse of the cells).
+      if (m === n && v.length === n) out = v;
       else {
         out = new Float64Array(m);
         for (let r = 0; r < m; r++) out[r] = v[inputRows[r]];

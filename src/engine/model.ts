@@ -502,7 +502,7 @@ function encodedFromTable(encoding: DesignEncoding, table: Table, own: number, c
     const c = encoding.columns[k];
     if (c.kind === "ignored") continue;
     const tc = table.columns[k] as NumericColumn;
-    // The table is trainModel's own (the design holds copies): its column is taken as it is.
+    // The table is trainModel's own (read-only from here on, the design may share its columns too): its column is taken as it is.
     columns.push(own === tc.values.length ? tc.values : tc.values.slice(0, own));
     const missing = tc.missing;
     for (let i = 0; i < own; i++) {
