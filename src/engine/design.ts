@@ -147,6 +147,8 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
   const perColumn: { column: string; count: number }[] = [];
   for (const c of checks) {
     let count = 0;
+    // (A column without a missing value, the usual case, is passed over by the built-in search.)
+    if (!c.missing.includes(1)) continue;
     for (let i = 0; i < n; i++) {
       if (c.missing[i]) {
         count++;
@@ -155,21 +157,12 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
     }
     if (count > 0) perColumn.push({ column: c.name, count });
   }
-  const rowMap = new Int32Array(n).fill(-1);
-  const inputRowsList: number[] = [];
-  const skippedRows: number[] = [];
-  for (let i = 0; i < n; i++) {
-    if (used[i]) {
-      rowMap[i] = inputRowsList.length;
-      inputRowsList.push(i);
-    } else skippedRows.push(i);
-  }
+  const { rowMap, inputRows, skippedRows } = usedRowMaps(used);
   const skipped: SkippedRows = { total: skippedRows.length, perColumn, rows: skippedRows };
-  const m = inputRowsList.length;
+  const m = inputRows.length;
   if (m === 0) {
     throw problem("NO_USABLE_ROWS", { missing: skippedDetail(skipped) || "none" });
   }
-  const inputRows = Int32Array.from(inputRowsList);
 
   const columns: ColumnEncoding[] = [];
   const designColumns: Float64Array[] = [];
@@ -226,6 +219,31 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
  * `levels`; a pooled level's row has the index of "(other)"). Each row's text is looked up once: rows
  * get a code in order of first appearance, and the codes are mapped to levels at the end.
  */
+/**
+ * Row maps of the used rows: input row -> design row (or -1), design row -> input row, and the
+ * skipped input rows. Every row used (the usual case): identity maps without a per-row test.
+ */
+function usedRowMaps(used: Uint8Array): { rowMap: Int32Array; inputRows: Int32Array; skippedRows: number[] } {
+  const n = used.length;
+  const rowMap = new Int32Array(n);
+  if (!used.includes(0)) {
+    for (let i = 0; i < n; i++) rowMap[i] = i;
+    return { rowMap, inputRows: rowMap.slice(), skippedRows: [] };
+  }
+  const inputRowsList: number[] = [];
+  const skippedRows: number[] = [];
+  for (let i = 0; i < n; i++) {
+    if (used[i]) {
+      rowMap[i] = inputRowsList.length;
+      inputRowsList.push(i);
+    } else {
+      rowMap[i] = -1;
+      skippedRows.push(i);
+    }
+  }
+  return { rowMap, inputRows: Int32Array.from(inputRowsList), skippedRows };
+}
+
 function encodeCategory(
   c: TableColumn,
   inputRows: Int32Array,

@@ -269,6 +269,16 @@ function fitOptions(o: ModelOptions) {
   } as const;
 }
 
+/**
+ * Class codes of the design rows from those of the input rows. (A loop of its own: trainModel runs
+ * once per fit, mostly before it is optimized, and a loop inside it runs at the interpreter's pace.)
+ */
+function gatherCodes(codes: Int32Array, inputRows: Int32Array): Int32Array {
+  const out = new Int32Array(inputRows.length);
+  for (let r = 0; r < inputRows.length; r++) out[r] = codes[inputRows[r]];
+  return out;
+}
+
 /** Gather used rows of a per-input-row array into design-row order. */
 function gather(values: Float64Array, inputRows: Int32Array): Float64Array {
   const out = new Float64Array(inputRows.length);
@@ -388,11 +398,9 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
       reference: options.reference ?? null,
       use: built.used,
     });
-    const codes = new Int32Array(inputRows.length);
-    for (let r = 0; r < inputRows.length; r++) codes[r] = classes.codes[inputRows[r]];
+    const codes = gatherCodes(classes.codes, inputRows);
     if (classes.kind === "binary") {
-      const y = new Float64Array(codes.length);
-      for (let r = 0; r < codes.length; r++) y[r] = codes[r];
+      const y = Float64Array.from(codes);
       checkModelSize(terms, 1);
       fit = fitBinaryModel(design, y, {
         ...common,
@@ -505,6 +513,8 @@ function encodedFromTable(encoding: DesignEncoding, table: Table, own: number, c
     // The table is trainModel's own (read-only from here on, the design may share its columns too): its column is taken as it is.
     columns.push(own === tc.values.length ? tc.values : tc.values.slice(0, own));
     const missing = tc.missing;
+    // (A column without a missing value, the usual case, is passed over by the built-in search.)
+    if (!missing.subarray(0, own).includes(1)) continue;
     for (let i = 0; i < own; i++) {
       // A missing value is a problem of that row only (the first column missing names it).
       if (missing[i] && ok[i]) {
