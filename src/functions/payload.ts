@@ -8,8 +8,8 @@
  *   - a number costs the length of its shortest decimal text plus 1 separator (e.g. "0.25," = 5),
  *     except that a number whose shortest text needs 16 or 17 significant digits (full double
  *     precision, e.g. a computed 0.30000000000000004 or a random draw) between 1e-6 and 1e15 is
- *     counted as if it needed 17: at most one byte more than its text (measured: about 0.6 bytes per
- *     number on full-precision random data, about 3% of its JSON size). This keeps the estimate to a
+ *     counted as if it needed 17: at most one byte more than its text (measured on the benchmark's
+ *     full-precision normal draws: about 0.5 bytes per number, 2.6% of their JSON size). This keeps the estimate to a
  *     few operations per number (the 16-or-17 decision would need an error-free product per number);
  *   - a blank (null) costs 5 ("null,"), TRUE 5, FALSE 6;
  *   - text costs its length plus 3 (two quotes and a separator);
@@ -37,8 +37,8 @@ export interface PayloadPart {
   argument: string;
   cells: unknown;
   /**
-   * The part's estimateBytes, when already known (e.g. remembered from an earlier call on the same
-   * content); checkPayload fills it in when it computes it.
+   * The part's estimateBytes, when already known (e.g. computed in the pass that hashes the cells,
+   * with PAYLOAD_SIZER); checkPayload fills it in when it computes it.
    */
   bytes?: number;
 }
