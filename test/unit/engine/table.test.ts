@@ -177,6 +177,25 @@ describe("readTable: header row", () => {
     expect(t.names).toEqual(["outcome"]);
   });
 
+  test("a recurring first cell in any text column makes the first row data, even beside a column of numbers under a name", () => {
+    // Column 1 alone is strong evidence for a header; column 2's "red" recurs, so the row is data.
+    expect(detectHeader([["size", "red"], [1, "blue"], [2, "red"]])).toEqual({ header: false, evidence: "weak" });
+    expect(detectHeader([["red", "size"], ["blue", 1], ["red", 2]])).toEqual({ header: false, evidence: "weak" });
+  });
+
+  test("names over numbers and over non-recurring text: a header with strong evidence", () => {
+    expect(detectHeader([["size", "colour"], [1, "blue"], [2, "red"]])).toEqual({ header: true, evidence: "strong" });
+  });
+
+  test("a name over a column of blanks only is no evidence of its own (weak, from the other columns)", () => {
+    expect(detectHeader([["note", "colour"], [null, "blue"], ["", "red"]])).toEqual({ header: true, evidence: "weak" });
+  });
+
+  test("numbers stored as text count as numbers under a name; a name matching after trimming recurs", () => {
+    expect(detectHeader([["size"], [" 1.5 "], ["2"]])).toEqual({ header: true, evidence: "strong" });
+    expect(detectHeader([["red"], ["blue"], ["  red "]])).toEqual({ header: false, evidence: "weak" });
+  });
+
   test("a single row is never a header under auto", () => {
     expect(detectHeader([["a", "b"]])).toEqual({ header: false, evidence: "none" });
   });
