@@ -478,11 +478,19 @@ export function fitBinaryModel(
   // penalty needs log det of the unpenalized information, so with bias reduction it does not.
   const rankPenalty = opt.biasReduction ? new Float64Array(p) : penaltyAll;
   // Large data: a subsample may already prove that no column is aliased (see subsampleRankBound).
+  // The full diagonal (Z'AZ)_jj is known from the moments (sumA for a column scaled to unit SD, or
+  // unit root mean square without an intercept); a column whose spread is at the rounding level of
+  // its values (or zero) gets NaN, which no proof passes, and is left to the full check.
   const fullDiagonal = new Float64Array(p);
   for (let j = 0; j < p; j++) {
     const c = j - off0;
-    const m = c < 0 ? sumA : (moments[c].big / scale[c]) ** 2 * (opt.intercept ? moments[c].v : moments[c].ms);
-    fullDiagonal[j] = m + rankPenalty[j];
+    if (c < 0) {
+      fullDiagonal[j] = sumA + rankPenalty[j];
+      continue;
+    }
+    const { big, v, ms } = moments[c];
+    const spread = opt.intercept ? sd[c] : scale[c];
+    fullDiagonal[j] = spread > RANK_PROOF_MIN_SPREAD * big ? (big / scale[c]) ** 2 * (opt.intercept ? v : ms) + rankPenalty[j] : NaN;
   }
   const provenFullRank = !opt.biasReduction && subsampleRankBound({ rows: n, columns: raw, centre: centreAll, scale: scaleAll, sparseRows: sparseAll }, a, rankPenalty, fullDiagonal);
   let unitGram: Float64Array | null = null;
@@ -766,6 +774,9 @@ export const WARM_START_ROWS_PER_COLUMN = 100;
 const WARM_START_TOLERANCE = 1e-4;
 /** A subsample fit with a fitted probability this far out (|eta| above it) may be near separation: no warm start. */
 const WARM_START_MAX_ETA = 15;
+
+/** The subsample rank proof is only tried for columns whose spread is above this share of their largest magnitude. */
+const RANK_PROOF_MIN_SPREAD = 1e-8;
 
 /** Every stride-th row of a large design for the warm start and the rank proof, or 0 (no subsample). */
 function subsampleStride(n: number, k: number): number {

@@ -227,3 +227,16 @@ describe("designs with mostly-zero (indicator) columns", () => {
     expect(fit.converged).toBe(true);
   });
 });
+
+describe("large fits with a constant or nearly constant column", () => {
+  test("a constant column is aliased with the intercept, as in a small fit (never proved independent)", () => {
+    const rows = WARM_START_MIN_ROWS + 1000;
+    const u = lcg(71);
+    const x = Float64Array.from({ length: rows }, () => u() * 2 - 1);
+    const constant = new Float64Array(rows).fill(1234.5);
+    const y = x.map((v) => (u() < 1 / (1 + Math.exp(-v)) ? 1 : 0));
+    const fit = fitBinaryModel({ rows, columns: [x, constant], names: ["x", "constant"] }, y);
+    expect(fit.aliased).toEqual([false, false, true]);
+    expect(fit.converged).toBe(true);
+  });
+});
