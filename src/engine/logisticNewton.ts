@@ -606,9 +606,9 @@ function evaluate(
 
 /**
  * Per-column multipliers of the fused evaluation (evaluateDense): f_j = g_j / s_j, so that
- * g_j z_ij = f_j (x_ij - c_j), and r_j = 1 / s_j for the score. Null when some column's scale or
- * multiplier lies outside [FUSED_MIN, FUSED_MAX] (data near the ends of the double range), where the
- * block path, which forms z_ij first, keeps its accuracy.
+ * g_j z_ij = f_j (x_ij - c_j). Null when some column's scale or multiplier lies outside
+ * [FUSED_MIN, FUSED_MAX] (data near the ends of the double range, or a diverged g), where the block
+ * path, which forms z_ij first, keeps its accuracy.
  */
 function fusedMultipliers(p: NewtonProblem, g: Float64Array, out: Float64Array): Float64Array | null {
   const k = p.columns.length;
