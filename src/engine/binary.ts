@@ -130,6 +130,28 @@ function diag(code: MessageCode, severity: Severity, params: Record<string, unkn
   return { code, severity, message: formatMessage(code, params), params, ...extra };
 }
 
+/*
+ * The helpers of screen are module functions rather than closures: optimized code that calls a
+ * closure created per call depends on that closure object, and is discarded once a garbage
+ * collection frees it, so the next fit would start its row loops unoptimized.
+ */
+
+function checkLength(arr: Float64Array | null | undefined, argument: string, n: number): void {
+  if (arr && arr.length !== n) throw problem("RANGE_SHAPE_MISMATCH", { argument, got: arr.length, expectedArgument: "predictors", expected: n });
+}
+
+function countMissing(missingBy: Record<string, number>, what: string): void {
+  missingBy[what] = (missingBy[what] ?? 0) + 1;
+}
+
+/** The used rows of a column (the column itself when every row is used). */
+function compactRows(src: Float64Array, rowIndex: Int32Array, all: boolean): Float64Array {
+  if (all) return src;
+  const out = new Float64Array(rowIndex.length);
+  for (let r = 0; r < rowIndex.length; r++) out[r] = src[rowIndex[r]];
+  return out;
+}
+
 /** Validate shapes and values; throw problem(...) for invalid input; compact the usable rows. */
 function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData {
   const n = X.rows;
@@ -141,13 +163,10 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
       throw problem("RANGE_SHAPE_MISMATCH", { argument: `predictor ${X.names[j]}`, got: X.columns[j].length, expectedArgument: "the design", expected: n });
     }
   }
-  const checkLength = (arr: Float64Array | null | undefined, argument: string): void => {
-    if (arr && arr.length !== n) throw problem("RANGE_SHAPE_MISMATCH", { argument, got: arr.length, expectedArgument: "predictors", expected: n });
-  };
-  checkLength(y, "response");
-  checkLength(o.weights, "weights");
-  checkLength(o.offset, "offset");
-  checkLength(o.trials, "trials");
+  checkLength(y, "response", n);
+  checkLength(o.weights, "weights", n);
+  checkLength(o.offset, "offset", n);
+  checkLength(o.trials, "trials", n);
   const w = o.weights ?? null;
   const off = o.offset ?? null;
   const tr = o.trials ?? null;
@@ -155,9 +174,6 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
   let used = 0;
   let skipped = 0;
   const missingBy: Record<string, number> = {};
-  const miss = (what: string): void => {
-    missingBy[what] = (missingBy[what] ?? 0) + 1;
-  };
   // Predictors column by column (cache-friendly): NaN = missing; an infinity is invalid input,
   // reported at the first such row.
   const missingX = new Uint8Array(n);
@@ -189,13 +205,13 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
     const yi = y[i];
     if (Number.isNaN(yi)) {
       missing = true;
-      miss("response");
+      countMissing(missingBy, "response");
     }
     if (w) {
       const wi = w[i];
       if (Number.isNaN(wi)) {
         missing = true;
-        miss("weights");
+        countMissing(missingBy, "weights");
       } else if (!(wi >= 0) || !Number.isFinite(wi)) {
         throw problem("BAD_WEIGHT", { row: i + 1, value: wi });
       }
@@ -204,7 +220,7 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
       const v = off[i];
       if (Number.isNaN(v)) {
         missing = true;
-        miss("offset");
+        countMissing(missingBy, "offset");
       } else if (!Number.isFinite(v)) {
         throw problem("NOT_FINITE_VALUE", { argument: "offset", row: i + 1, column: "offset", value: v });
       }
@@ -213,7 +229,7 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
       const t = tr[i];
       if (Number.isNaN(t)) {
         missing = true;
-        miss("trials");
+        countMissing(missingBy, "trials");
       } else if (!(t >= 0) || !Number.isFinite(t) || (!Number.isNaN(yi) && !(yi >= 0 && yi <= t))) {
         throw problem("BAD_TRIALS", { row: i + 1, successes: yi, trials: t });
       }
@@ -233,12 +249,12 @@ function screen(X: DesignMatrix, y: Float64Array, o: BinaryFitOptions): FitData 
   for (let i = 0; i < n; i++) if (keep[i]) rowIndex[r++] = i;
   // Compact column by column; when every row is used the caller's arrays are shared (never written).
   const all = used === n;
-  const compact = (src: Float64Array): Float64Array => (all ? src : Float64Array.from(rowIndex, (i) => src[i]));
-  const columns = X.columns.map(compact);
-  const successes = compact(y);
-  const trials = tr ? compact(tr) : new Float64Array(used).fill(1);
-  const weights = w ? compact(w) : new Float64Array(used).fill(1);
-  const offset = off ? compact(off) : new Float64Array(used);
+  const columns: Float64Array[] = [];
+  for (let j = 0; j < X.columns.length; j++) columns.push(compactRows(X.columns[j], rowIndex, all));
+  const successes = compactRows(y, rowIndex, all);
+  const trials = tr ? compactRows(tr, rowIndex, all) : new Float64Array(used).fill(1);
+  const weights = w ? compactRows(w, rowIndex, all) : new Float64Array(used).fill(1);
+  const offset = off ? compactRows(off, rowIndex, all) : new Float64Array(used);
   const skippedDetail = Object.entries(missingBy)
     .map(([k, v]) => `${k}: ${v}`)
     .join(", ");
@@ -266,31 +282,38 @@ function validateOptions(o: BinaryFitOptions): Required<Omit<BinaryFitOptions, "
 /**
  * Weighted moments of one column for centring and scaling: big = max|x| (1 for an all-zero
  * column), m = weighted mean of x, and v, ms = weighted sums of squares about the mean and about 0
- * of x / big. When big lies in [MOMENT_SAFE_MIN, MOMENT_SAFE_MAX] the sums are taken on x itself
- * (no square or sum can overflow or underflow there) and divided by big^2 at the end; otherwise on
- * x / big, so that neither 1e200 nor 1e-200 overflows or underflows when squared. Two passes: the
- * maximum with the weighted sum, then the squares. A function of its own so that V8 optimizes
- * these row loops on their own.
+ * of x / big. Usually one pass (the passes over the design dominate the fit's time, and this loop
+ * is bound by memory, not arithmetic): sums of d = x - x_0 and d^2 give the mean and
+ * v = sum a d^2 - (sum a d)^2 / sum a (the shifted-data formula; Chan, Golub & LeVeque, "Algorithms
+ * for computing the sample variance", Amer. Statist. 37, 1983), accepted when its cancellation
+ * loses at most four digits (sum a d^2 <= 1e4 v) and big lies in [MOMENT_SAFE_MIN,
+ * MOMENT_SAFE_MAX] (no square or sum can overflow or underflow there). Otherwise two passes on
+ * x / big (the mean, then the squares about it), so that neither 1e200 nor 1e-200 overflows or
+ * underflows when squared. A function of its own so that V8 optimizes these row loops on their own.
  */
 function columnMoments(x: Float64Array, a: Float64Array, sumA: number, n: number): { big: number; m: number; v: number; ms: number } {
+  const shift = n > 0 ? x[0] : 0;
   let big = 0;
-  let sum = 0;
+  let d1 = 0;
+  let d2 = 0;
+  let sq = 0;
   for (let i = 0; i < n; i++) {
-    big = Math.max(big, Math.abs(x[i]));
-    sum += a[i] * x[i];
+    const xi = x[i];
+    big = Math.max(big, Math.abs(xi));
+    const d = xi - shift;
+    const ad = a[i] * d;
+    d1 += ad;
+    d2 += ad * d;
+    sq += a[i] * xi * xi;
   }
   if (!(big > 0)) big = 1;
   if (big >= MOMENT_SAFE_MIN && big <= MOMENT_SAFE_MAX) {
-    const m = sum / sumA;
-    let v = 0;
-    let ms = 0;
-    for (let i = 0; i < n; i++) {
-      const d = x[i] - m;
-      v += a[i] * d * d;
-      ms += a[i] * x[i] * x[i];
+    const md = d1 / sumA;
+    const v = d2 - d1 * md;
+    if (d2 <= MOMENT_MAX_CANCELLATION * v || d2 === 0) {
+      const big2 = big * big;
+      return { big, m: shift + md, v: Math.max(v, 0) / big2, ms: sq / big2 };
     }
-    const big2 = big * big;
-    return { big, m, v: v / big2, ms: ms / big2 };
   }
   // Multiply by reciprocals (cheaper than dividing) unless the reciprocal would overflow.
   const invBig = 1 / big;
@@ -308,12 +331,41 @@ function columnMoments(x: Float64Array, a: Float64Array, sumA: number, n: number
   return { big, m: m * big, v, ms };
 }
 
+/** The one-pass variance is used when sum a (x - x_0)^2 is at most this many times the result (four digits lost at most). */
+const MOMENT_MAX_CANCELLATION = 1e4;
+
 /**
  * Range of max|x| in which columnMoments sums x and x^2 directly: squares stay within about
  * 1e+-200 and sums of up to 2^53 weighted squares far from overflow.
  */
 const MOMENT_SAFE_MIN = 1e-100;
 const MOMENT_SAFE_MAX = 1e100;
+
+/*
+ * Row loops of fitBinaryModel live in small functions of their own: fitBinaryModel builds closures
+ * per call, so its optimized code is discarded after a garbage collection frees them, and loops
+ * inside it would then run unoptimized in the next fit.
+ */
+
+/** Sum of the case weights, and weighted sums of successes and trials. */
+function weightedTotals(d: FitData): { observations: number; totalSucc: number; totalTrials: number } {
+  let observations = 0;
+  let totalSucc = 0;
+  let totalTrials = 0;
+  for (let i = 0; i < d.rows; i++) {
+    observations += d.weights[i];
+    totalSucc += d.weights[i] * d.successes[i];
+    totalTrials += d.weights[i] * d.trials[i];
+  }
+  return { observations, totalSucc, totalTrials };
+}
+
+/** w_i t_i per row: the Bernoulli observations each row stands for. */
+function bernoulliWeights(d: FitData): Float64Array {
+  const a = new Float64Array(d.rows);
+  for (let i = 0; i < d.rows; i++) a[i] = d.weights[i] * d.trials[i];
+  return a;
+}
 
 /** sum_i w_i log C(t_i, y_i) and the saturated kernel log-likelihood. */
 function constantTerms(d: FitData): { logBinom: number; saturated: number } {
@@ -371,14 +423,7 @@ export function fitBinaryModel(
   if (data.skipped > 0) {
     diagnostics.push(diag("ROWS_SKIPPED", "warning", { count: data.skipped, detail: data.skippedDetail }));
   }
-  let observations = 0;
-  let totalSucc = 0;
-  let totalTrials = 0;
-  for (let i = 0; i < data.rows; i++) {
-    observations += data.weights[i];
-    totalSucc += data.weights[i] * data.successes[i];
-    totalTrials += data.weights[i] * data.trials[i];
-  }
+  const { observations, totalSucc, totalTrials } = weightedTotals(data);
   const base = {
     kind: "binary" as const,
     classes: [...classes],
@@ -434,12 +479,9 @@ export function fitBinaryModel(
 
   // ---- internal coordinates: centre (with an intercept) and scale every column -------------
   const n = data.rows;
-  const a = new Float64Array(n); // Bernoulli observations each row stands for: w_i t_i
+  const a = bernoulliWeights(data); // Bernoulli observations each row stands for: w_i t_i
   let sumA = 0;
-  for (let i = 0; i < n; i++) {
-    a[i] = data.weights[i] * data.trials[i];
-    sumA += a[i];
-  }
+  for (let i = 0; i < n; i++) sumA += a[i];
   const q = X.columns.length;
   const centre = new Float64Array(q);
   const scale = new Float64Array(q);
@@ -804,7 +846,8 @@ function subsampleRankBound(design: BlockDesign, a: Float64Array, penalty: Float
   const p = design.columns.length;
   const stride = subsampleStride(n, p);
   if (stride === 0) return false;
-  const columns = design.columns.map((x) => pickRows(x, stride));
+  const columns: Float64Array[] = [];
+  for (let j = 0; j < p; j++) columns.push(pickRows(design.columns[j], stride));
   const subA = pickRows(a, stride);
   const m = subA.length;
   const sub: BlockDesign = { rows: m, columns, centre: design.centre, scale: design.scale, sparseRows: design.sparseRows ? sparseRowLists(columns, m, false) : null };
@@ -827,10 +870,9 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
   const stride = subsampleStride(n, prob.columns.length);
   if (stride === 0) return null;
   const m = Math.floor((n - 1) / stride) + 1;
-  const pick = (src: Float64Array): Float64Array => pickRows(src, stride);
-  const successes = pick(prob.successes);
-  const trials = pick(prob.trials);
-  const weights = pick(prob.weights);
+  const successes = pickRows(prob.successes, stride);
+  const trials = pickRows(prob.trials, stride);
+  const weights = pickRows(prob.weights, stride);
   let total = 0;
   for (let i = 0; i < n; i++) total += prob.weights[i] * prob.trials[i];
   let part = 0;
@@ -841,7 +883,8 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
   }
   if (!(partSucc > 0 && partSucc < part)) return null;
   const fraction = part / total;
-  const columns = prob.columns.map(pick);
+  const columns: Float64Array[] = [];
+  for (let j = 0; j < prob.columns.length; j++) columns.push(pickRows(prob.columns[j], stride));
   const sub = newtonLogistic({
     ...prob,
     rows: m,
@@ -849,8 +892,8 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
     successes,
     trials,
     weights,
-    offset: pick(prob.offset),
-    penalty: prob.penalty.map((v) => v * fraction),
+    offset: pickRows(prob.offset, stride),
+    penalty: scaledCopy(prob.penalty, fraction),
     tolerance: Math.max(prob.tolerance, WARM_START_TOLERANCE),
     keepHistory: false,
     unitGram: null,
@@ -860,7 +903,14 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
   });
   if (!sub.converged || sub.singular || !sub.coefficients.every(Number.isFinite)) return null;
   for (let r = 0; r < m; r++) if (Math.abs(sub.eta[r]) > WARM_START_MAX_ETA) return null;
-  return { start: sub.coefficients, information: sub.information.map((v) => v / fraction) };
+  return { start: sub.coefficients, information: scaledCopy(sub.information, 1 / fraction) };
+}
+
+/** v times each entry of x (a loop rather than a closure, see weightedTotals). */
+function scaledCopy(x: Float64Array, v: number): Float64Array {
+  const out = new Float64Array(x.length);
+  for (let i = 0; i < x.length; i++) out[i] = x[i] * v;
+  return out;
 }
 
 /**

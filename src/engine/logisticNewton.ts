@@ -151,15 +151,28 @@ interface BlockBuffers {
   /** Per-column multipliers of the fused evaluation (length k). */
   multipliers: Float64Array;
   /** denseCrossProducts only, made on first use: the sqrt(W)-scaled block, its Gram sums, the root weights. */
-  gramBlock?: Float64Array;
-  gramOut?: Float64Array;
-  rootWeights?: Float64Array;
+  gramBlock: Float64Array | null;
+  gramOut: Float64Array | null;
+  rootWeights: Float64Array | null;
   /** Sparse columns only: a column of ones (length rows), made on first use. */
-  ones?: Float64Array;
+  ones: Float64Array | null;
 }
 
+/**
+ * Every field is present from the start (null until first use): objects that gain properties later
+ * get maps that V8 may collect between fits, which discards the optimized code of the kernels that
+ * saw them (a "weak objects" deoptimization) and makes the fit after a garbage collection slower.
+ */
 function blockBuffers(k: number): BlockBuffers {
-  return { z: new Float64Array(Math.max(k, 1) * ROW_BLOCK), wz: new Float64Array(Math.max(k, 1) * ROW_BLOCK), multipliers: new Float64Array(k) };
+  return {
+    z: new Float64Array(Math.max(k, 1) * ROW_BLOCK),
+    wz: new Float64Array(Math.max(k, 1) * ROW_BLOCK),
+    multipliers: new Float64Array(k),
+    gramBlock: null,
+    gramOut: null,
+    rootWeights: null,
+    ones: null,
+  };
 }
 
 /**
@@ -435,7 +448,37 @@ function crossVector(p: BlockDesign, v: Float64Array, out: Float64Array, buffers
  * of the IRLS step (McCullagh & Nelder 1989, ch. 2) for given weights.
  */
 export function problemGram(p: BlockDesign, weights: Float64Array, out: SquareMatrix = new Float64Array(p.columns.length ** 2)): SquareMatrix {
-  return crossProducts(p, weights, out, blockBuffers(p.columns.length));
+  const design: BlockDesign = { rows: p.rows, columns: p.columns, centre: p.centre ?? null, scale: p.scale ?? null, sparseRows: p.sparseRows ?? null };
+  return crossProducts(design, weights, out, blockBuffers(p.columns.length));
+}
+
+/**
+ * The problem as an object of one fixed shape (every optional field present, null when absent).
+ * Callers build problems by spreading and adding fields, which gives objects maps that V8 may
+ * collect between fits; the kernels' optimized code would then be discarded after each garbage
+ * collection (see blockBuffers). One literal here keeps one map for every fit.
+ */
+function stableProblem(q: NewtonProblem): NewtonProblem {
+  return {
+    rows: q.rows,
+    columns: q.columns,
+    successes: q.successes,
+    trials: q.trials,
+    weights: q.weights,
+    offset: q.offset,
+    penalty: q.penalty,
+    firth: q.firth,
+    maxIterations: q.maxIterations,
+    tolerance: q.tolerance,
+    start: q.start ?? null,
+    keepHistory: q.keepHistory ?? false,
+    free: q.free ?? null,
+    unitGram: q.unitGram ?? null,
+    centre: q.centre ?? null,
+    scale: q.scale ?? null,
+    startInformation: q.startInformation ?? null,
+    sparseRows: q.sparseRows ?? null,
+  };
 }
 
 /**
@@ -763,6 +806,30 @@ function information(p: NewtonProblem, mu: Float64Array, fisherW: Float64Array, 
   return crossProducts(p, fisherW, out, buffers);
 }
 
+/**
+ * The information Z'WZ at the fitted probabilities mu (into info, with W into fisherW) and the
+ * score's Z' part Z'(w (y - t mu)) (into score, with the residuals into work) in one pass over the
+ * data. A module function, not a closure of newtonLogistic, so that its optimized code does not
+ * depend on a per-fit closure object (see blockBuffers).
+ */
+function exactInformationAndScore(
+  p: NewtonProblem,
+  mu: Float64Array,
+  fisherW: Float64Array,
+  work: Float64Array,
+  buffers: BlockBuffers,
+  info: SquareMatrix,
+  score: Float64Array,
+): void {
+  const n = p.rows;
+  for (let i = 0; i < n; i++) {
+    const m = mu[i];
+    fisherW[i] = p.weights[i] * p.trials[i] * m * (1 - m);
+    work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * m);
+  }
+  crossProducts(p, fisherW, info, buffers, work, score);
+}
+
 function penaltyValue(p: NewtonProblem, g: Float64Array): number {
   let s = 0;
   for (let j = 0; j < g.length; j++) s += p.penalty[j] * g[j] * g[j];
@@ -778,7 +845,7 @@ function penaltyValue(p: NewtonProblem, g: Float64Array): number {
  */
 export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   // Firth's hat values need whole fitting columns: form the scaled copy once.
-  const p = problem.firth && problem.centre && problem.scale ? { ...problem, columns: fittingColumns(problem), centre: null, scale: null } : problem;
+  const p = stableProblem(problem.firth && problem.centre && problem.scale ? { ...problem, columns: fittingColumns(problem), centre: null, scale: null } : problem);
   const n = p.rows;
   const k = p.columns.length;
   const eta = new Float64Array(n);
@@ -844,16 +911,6 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   let singular = factor === null && p.firth;
   let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
 
-  /** Information and the score's Z' part at the current g in one pass over the data. */
-  function exactInformationAndScore(): void {
-    for (let i = 0; i < n; i++) {
-      const m = mu[i];
-      fisherW[i] = p.weights[i] * p.trials[i] * m * (1 - m);
-      work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * m);
-    }
-    crossProducts(p, fisherW, info, buffers, work, score);
-    scoreReady = true;
-  }
 
   let iterations = 0;
   let halvings = 0;
@@ -906,7 +963,8 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       if (predicted < p.tolerance || approximateSteps >= MAX_APPROXIMATE_STEPS) {
         iterations--;
         approximate = false;
-        exactInformationAndScore();
+        exactInformationAndScore(p, mu, fisherW, work, buffers, info, score);
+        scoreReady = true;
         checkDecrement = true;
         continue;
       }
@@ -973,7 +1031,8 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       // The approximate information gave no descent step: continue with the exact one.
       iterations--;
       approximate = false;
-      exactInformationAndScore();
+      exactInformationAndScore(p, mu, fisherW, work, buffers, info, score);
+      scoreReady = true;
       continue;
     }
     if (!accepted) {
@@ -1015,7 +1074,8 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
       approximateSteps++;
       continue;
     } else {
-      exactInformationAndScore();
+      exactInformationAndScore(p, mu, fisherW, work, buffers, info, score);
+      scoreReady = true;
     }
     // Firth's iteration uses I (not the Hessian of the penalized objective), so it converges only
     // linearly: a small change of the objective is not enough, the step must be negligible too.
@@ -1027,7 +1087,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     }
   }
   // The iteration cap can end the approximate phase: the information returned is the exact one.
-  if (approximate) exactInformationAndScore();
+  if (approximate) exactInformationAndScore(p, mu, fisherW, work, buffers, info, score);
   // Information at the final g (already current: it is refreshed after each accepted step).
   const penalizedInformation = Float64Array.from(info);
   for (let j = 0; j < k; j++) penalizedInformation[j * k + j] += p.penalty[j];

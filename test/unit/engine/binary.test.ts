@@ -283,6 +283,33 @@ describe("invariants", () => {
     expectScalarClose(f.table[1].z, base.table[1].z, IDENTITY_TOL, "z unchanged");
   });
 
+  test("an outlying first row (where the one-pass centring moments are refused) changes nothing against its row order", () => {
+    // 20,000 invented rows and one row with x = 1000 (the rest are about N(0, 1)), first or last.
+    // First: sum (x - x_0)^2 is about 20,000 times the variance, over the four-digit limit, so the
+    // two-pass moments are used; last: the one-pass moments are. Both fits must agree to rounding.
+    let seed = 12345;
+    const u = () => {
+      seed = (Math.imul(seed, 1664525) + 1013904223) >>> 0;
+      return (seed + 0.5) / 4294967296;
+    };
+    const rows = 20000;
+    const x = Array.from({ length: rows }, () => Math.sqrt(-2 * Math.log(u())) * Math.cos(2 * Math.PI * u()));
+    const z = Array.from({ length: rows }, () => u());
+    const y = x.map((v, i) => (u() < 1 / (1 + Math.exp(-(0.5 * v - z[i]))) ? 1 : 0));
+    const fitWith = (first: boolean) => {
+      const xs = first ? [1000, ...x] : [...x, 1000];
+      const zs = first ? [0.5, ...z] : [...z, 0.5];
+      const ys = first ? [1, ...y] : [...y, 1];
+      return fitBinaryModel(design({ x: xs, z: zs }), Float64Array.from(ys));
+    };
+    const a = fitWith(true);
+    const b = fitWith(false);
+    expect(a.converged).toBe(true);
+    expectClose(col(a, "estimate"), col(b, "estimate"), IDENTITY_TOL, "coef");
+    expectClose(col(a, "standardError"), col(b, "standardError"), IDENTITY_TOL, "se");
+    expectScalarClose(a.logLikelihood, b.logLikelihood, IDENTITY_TOL, "logLik");
+  });
+
   test("shifting a column by a constant moves only the intercept", () => {
     const X = design({ GPA: spX.columns[0].map((v) => v + 100), TUCE: spX.columns[1], PSI: spX.columns[2] });
     const f = fitBinaryModel(X, spY);
