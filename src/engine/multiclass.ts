@@ -983,20 +983,40 @@ function maxAbs(a: Float64Array): number {
   return m;
 }
 
+/** Every stride-th entry of a column. */
+function pickEvery(a: Float64Array, stride: number): Float64Array {
+  const m = Math.floor((a.length - 1) / stride) + 1;
+  const out = new Float64Array(m);
+  for (let r = 0; r < m; r++) out[r] = a[r * stride];
+  return out;
+}
+
+/**
+ * Every stride-th row. The result is written out field by field in the shape of prepare's (not
+ * spread and overridden): V8 may collect the map of a spread-and-overridden object between fits,
+ * which discards the optimized code of the kernels that saw it (a "weak objects" deoptimization).
+ */
 function subsample(prep: Prepared, stride: number): Prepared {
   const m = Math.floor((prep.n - 1) / stride) + 1;
-  const pick = (a: Float64Array) => {
-    const out = new Float64Array(m);
-    for (let r = 0; r < m; r++) out[r] = a[r * stride];
-    return out;
-  };
   const y = new Int32Array(m);
   const rowIndex = new Int32Array(m);
   for (let r = 0; r < m; r++) {
     y[r] = prep.y[r * stride];
     rowIndex[r] = prep.rowIndex[r * stride];
   }
-  return { ...prep, n: m, rowIndex, y, w: pick(prep.w), z: prep.z.map(pick) };
+  const z: Float64Array[] = [];
+  for (let j = 0; j < prep.z.length; j++) z.push(pickEvery(prep.z[j], stride));
+  return {
+    n: m,
+    rowIndex,
+    w: pickEvery(prep.w, stride),
+    y,
+    z,
+    termOfColumn: prep.termOfColumn,
+    centre: prep.centre,
+    scale: prep.scale,
+    penaltyWeight: prep.penaltyWeight,
+  };
 }
 
 function runNewton(
