@@ -59,7 +59,7 @@ import {
   type Interval,
 } from "./inference";
 import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, subsampleProvesFullRank, type RankRevealingResult } from "./linalg";
-import { fittingColumns, newtonLogistic, problemGram, type BlockDesign, type NewtonProblem, type NewtonResult } from "./logisticNewton";
+import { fittingColumns, newtonLogistic, problemGram, withChanges, type BlockDesign, type NewtonProblem, type NewtonResult } from "./logisticNewton";
 import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { logGamma } from "./numerics";
 import { firthProfileIntervals, PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
@@ -567,9 +567,13 @@ export function fitBinaryModel(
   const response: BinaryResponse = { rows: n, successes: data.successes, trials: data.trials };
 
   // ---- main fit ----------------------------------------------------------------------------
+  // Written out field by field (no spread): see stableProblem in logisticNewton.ts.
   const problemK: NewtonProblem = {
     rows: n,
-    ...(firthColumns ? { columns: firthColumns } : keptDesign),
+    columns: firthColumns ?? keptDesign.columns,
+    centre: firthColumns ? null : keptDesign.centre,
+    scale: firthColumns ? null : keptDesign.scale,
+    sparseRows: firthColumns ? null : keptDesign.sparseRows,
     successes: data.successes,
     trials: data.trials,
     weights: data.weights,
@@ -584,7 +588,7 @@ export function fitBinaryModel(
   // Large data: start from a fit on a systematic subsample, with its information scaled up
   // standing in for the full-data one at first (see NewtonProblem.startInformation).
   const warm = opt.biasReduction ? null : subsampleWarmStart(problemK);
-  const fit = newtonLogistic(warm ? { ...problemK, start: warm.start, startInformation: warm.information } : problemK);
+  const fit = newtonLogistic(warm ? withChanges(problemK, { start: warm.start, startInformation: warm.information }) : problemK);
   const { logBinom, saturated } = constantTerms(data);
 
   // ---- separation --------------------------------------------------------------------------
@@ -691,7 +695,7 @@ export function fitBinaryModel(
     // the Jacobian of the parametrization cancels and the statistic does not depend on units.
     const free = new Uint8Array(k);
     if (interceptIndex === 0) free[0] = 1;
-    const nullFirth = newtonLogistic({ ...problemK, keepHistory: false, free, start: null });
+    const nullFirth = newtonLogistic(withChanges(problemK, { keepHistory: false, free, start: null }));
     const statistic = 2 * (nullFirth.objective - fit.objective);
     lrTest = { statistic, df, p: df > 0 ? chiSquareSurvival(Math.max(statistic, 0), df) : NaN };
   }
@@ -885,8 +889,7 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
   const fraction = part / total;
   const columns: Float64Array[] = [];
   for (let j = 0; j < prob.columns.length; j++) columns.push(pickRows(prob.columns[j], stride));
-  const sub = newtonLogistic({
-    ...prob,
+  const sub = newtonLogistic(withChanges(prob, {
     rows: m,
     columns,
     successes,
@@ -900,7 +903,7 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
     start: null,
     startInformation: null,
     sparseRows: prob.sparseRows ? sparseRowLists(columns, m, false) : null,
-  });
+  }));
   if (!sub.converged || sub.singular || !sub.coefficients.every(Number.isFinite)) return null;
   for (let r = 0; r < m; r++) if (Math.abs(sub.eta[r]) > WARM_START_MAX_ETA) return null;
   return { start: sub.coefficients, information: scaledCopy(sub.information, 1 / fraction) };

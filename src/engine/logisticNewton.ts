@@ -806,6 +806,72 @@ function information(p: NewtonProblem, mu: Float64Array, fisherW: Float64Array, 
   return crossProducts(p, fisherW, out, buffers);
 }
 
+/*
+ * Row loops of newtonLogistic live in small functions of their own (below): if the loop's code is
+ * discarded (V8 drops optimized code whose objects a garbage collection freed), loops inside it
+ * would run unoptimized until recompiled; these functions keep their own optimized code.
+ */
+
+function sumOf(x: Float64Array, n: number): number {
+  let s = 0;
+  for (let i = 0; i < n; i++) s += x[i];
+  return s;
+}
+
+/** Pooled success rate sum w y / sum w t. */
+function pooledRate(p: NewtonProblem): number {
+  let sy = 0;
+  let st = 0;
+  for (let i = 0; i < p.rows; i++) {
+    sy += p.weights[i] * p.successes[i];
+    st += p.weights[i] * p.trials[i];
+  }
+  return sy / st;
+}
+
+function allEqual(x: Float64Array, n: number): boolean {
+  for (let i = 1; i < n; i++) if (x[i] !== x[0]) return false;
+  return true;
+}
+
+/** W_i = w_i t_i v for one common variance v. */
+function fisherWeights(p: NewtonProblem, v: number, out: Float64Array): void {
+  for (let i = 0; i < p.rows; i++) out[i] = p.weights[i] * p.trials[i] * v;
+}
+
+/** w_i (y_i - t_i mu_i). */
+function residuals(p: NewtonProblem, mu: Float64Array, out: Float64Array): void {
+  for (let i = 0; i < p.rows; i++) out[i] = p.weights[i] * (p.successes[i] - p.trials[i] * mu[i]);
+}
+
+/**
+ * The problem with some fields replaced, as an object of the one fixed shape of stableProblem.
+ * Callers use this instead of spreading a problem and overriding fields (see stableProblem).
+ */
+export function withChanges(base: NewtonProblem, changes: Partial<NewtonProblem>): NewtonProblem {
+  const pick = <K extends keyof NewtonProblem>(key: K): NewtonProblem[K] => (key in changes ? (changes[key] as NewtonProblem[K]) : base[key]);
+  return stableProblem({
+    rows: pick("rows"),
+    columns: pick("columns"),
+    successes: pick("successes"),
+    trials: pick("trials"),
+    weights: pick("weights"),
+    offset: pick("offset"),
+    penalty: pick("penalty"),
+    firth: pick("firth"),
+    maxIterations: pick("maxIterations"),
+    tolerance: pick("tolerance"),
+    start: pick("start"),
+    keepHistory: pick("keepHistory"),
+    free: pick("free"),
+    unitGram: pick("unitGram"),
+    centre: pick("centre"),
+    scale: pick("scale"),
+    startInformation: pick("startInformation"),
+    sparseRows: pick("sparseRows"),
+  });
+}
+
 /**
  * The information Z'WZ at the fitted probabilities mu (into info, with W into fisherW) and the
  * score's Z' part Z'(w (y - t mu)) (into score, with the residuals into work) in one pass over the
@@ -845,7 +911,7 @@ function penaltyValue(p: NewtonProblem, g: Float64Array): number {
  */
 export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   // Firth's hat values need whole fitting columns: form the scaled copy once.
-  const p = stableProblem(problem.firth && problem.centre && problem.scale ? { ...problem, columns: fittingColumns(problem), centre: null, scale: null } : problem);
+  const p = problem.firth && problem.centre && problem.scale ? withChanges(problem, { columns: fittingColumns(problem), centre: null, scale: null }) : stableProblem(problem);
   const n = p.rows;
   const k = p.columns.length;
   const eta = new Float64Array(n);
@@ -870,21 +936,14 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   const history: Float64Array[] = [];
 
   // The convergence floor (0.1 in glm.fit) in units of the mean case weight: see the file header.
-  let weightSum = 0;
-  for (let i = 0; i < n; i++) weightSum += p.weights[i];
+  const weightSum = sumOf(p.weights, n);
   const floor = 0.1 * (n > 0 && weightSum > 0 ? weightSum / n : 1);
   const freeIdx = p.free ? Array.from({ length: k }, (_, j) => j).filter((j) => p.free![j]) : null;
   const g = new Float64Array(k);
   if (p.start) {
     g.set(p.start);
   } else if (k > 0 && isInterceptColumn(p, n) && (!p.free || p.free[0])) {
-    let sy = 0;
-    let st = 0;
-    for (let i = 0; i < n; i++) {
-      sy += p.weights[i] * p.successes[i];
-      st += p.weights[i] * p.trials[i];
-    }
-    const rate = Math.min(Math.max(sy / st, 1e-8), 1 - 1e-8);
+    const rate = Math.min(Math.max(pooledRate(p), 1e-8), 1 - 1e-8);
     g[0] = Math.log(rate / (1 - rate));
   }
 
@@ -895,13 +954,12 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   let ll = evaluate(p, g, eta, mu, buffers, approximate ? score : null);
   let approximateSteps = 0;
   let checkDecrement = false; // after switching to the exact information: test the Newton decrement first
-  let constantMu = !!p.unitGram && !approximate;
-  for (let i = 1; constantMu && i < n; i++) if (mu[i] !== mu[0]) constantMu = false;
+  const constantMu = !!p.unitGram && !approximate && allEqual(mu, n);
   if (approximate) {
     info.set(p.startInformation!);
   } else if (constantMu && n > 0) {
     const v = mu[0] * (1 - mu[0]);
-    for (let i = 0; i < n; i++) fisherW[i] = p.weights[i] * p.trials[i] * v;
+    fisherWeights(p, v, fisherW);
     for (let j = 0; j < k * k; j++) info[j] = v * p.unitGram![j];
   } else {
     information(p, mu, fisherW, buffers, info);
@@ -920,7 +978,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
     iterations++;
     // Score U = Z'(w (y - t mu)) - pen .* g  [+ Firth adjustment].
     if (!scoreReady) {
-      for (let i = 0; i < n; i++) work[i] = p.weights[i] * (p.successes[i] - p.trials[i] * mu[i]);
+      residuals(p, mu, work);
       crossVector(p, work, score, buffers);
     }
     scoreReady = false;

@@ -15,7 +15,7 @@
 
 import { criticalZ } from "./distributions";
 import type { Interval } from "./inference";
-import { newtonLogistic, type NewtonProblem } from "./logisticNewton";
+import { newtonLogistic, withChanges, type NewtonProblem } from "./logisticNewton";
 
 /** Data of the fitted model on the original scale (rows already screened, zero weights removed). */
 export interface ProfileData {
@@ -263,7 +263,7 @@ export function firthProfileIntervals(data: ProfileData, level: number): Profile
     const signedRoot = (c: number): number => {
       const start = Float64Array.from(warm);
       start[j] = c * scale[j];
-      const r = newtonLogistic({ ...problem, start, free });
+      const r = newtonLogistic(withChanges(problem, { start, free }));
       if (r.converged && !r.singular) warm = Float64Array.from(r.coefficients);
       const root = Math.sqrt(Math.max(0, 2 * (r.objective - fMin)));
       return c >= bHat ? root : -root;
