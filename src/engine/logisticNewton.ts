@@ -23,7 +23,7 @@
  */
 
 import { addFirthScoreAdjustment, hatValues, logDetFromCholesky } from "./firth";
-import { wasmKernels } from "./kernels/wasmKernels";
+import { wasmKernels, type WasmKernels } from "./kernels/wasmKernels";
 import { accumulateBlockCrossProduct, accumulateBlockGram, cholesky, choleskySolve, mirrorUpper, subMatrix, type SquareMatrix } from "./linalg";
 
 /** Everything the Newton core needs, in the fitting (centred and scaled) coordinates. */
@@ -261,6 +261,7 @@ function fusedScalesOk(p: BlockDesign): boolean {
  * part z_j'residual is taken from the original columns with the centring fused, as in
  * evaluateDense. One buffer instead of a weighted and an unweighted copy halves the block's
  * memory traffic. Rounding: sqrt(W)^2 differs from W by at most an ulp, below the sums' own.
+ * With the WebAssembly kernels (wasmKernels.ts) the same sums run there (denseCrossProductsWasm).
  */
 function denseCrossProducts(
   p: BlockDesign,
@@ -276,16 +277,16 @@ function denseCrossProducts(
   const cols = p.columns;
   const centre = p.centre && p.scale ? p.centre : null;
   const scale = p.scale;
-  // The block and its sums live in the WebAssembly kernel's memory when it is available
-  // (wasmKernels.ts: block [0, kp ROW_BLOCK), sums [accAt, accAt + kp kp)), else in buffers.
   const wasm = wasmKernels();
-  const accAt = kp * ROW_BLOCK;
-  const mem = wasm ? wasm.reserve(accAt + kp * kp) : null;
-  const z = mem ?? buffers.gramBlock ?? (buffers.gramBlock = new Float64Array(Math.max(kp, 3) * ROW_BLOCK));
-  const acc = mem ? mem.subarray(accAt, accAt + kp * kp) : (buffers.gramOut ?? (buffers.gramOut = new Float64Array(kp * kp)));
+  if (wasm) {
+    const done = denseCrossProductsWasm(p, weights, out, residual, vectorOut, wasm);
+    if (done) return done;
+  }
+  const z = buffers.gramBlock ?? (buffers.gramBlock = new Float64Array(Math.max(kp, 3) * ROW_BLOCK));
+  const acc = buffers.gramOut ?? (buffers.gramOut = new Float64Array(kp * kp));
   const sw = buffers.rootWeights ?? (buffers.rootWeights = new Float64Array(ROW_BLOCK));
   acc.fill(0);
-  z.fill(0, 0, accAt);
+  z.fill(0);
   if (vectorOut) vectorOut.fill(0);
   for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
     const len = Math.min(ROW_BLOCK, n - i0);
@@ -302,13 +303,74 @@ function denseCrossProducts(
         vectorOut[j] += s0 * inv;
       }
     }
-    if (len < ROW_BLOCK) for (let j = 0; j < k; j++) z.fill(0, j * ROW_BLOCK + len, (j + 1) * ROW_BLOCK);
-    // The WebAssembly kernel takes rows in pairs: a short odd block ends with a zero row.
-    if (wasm && mem) wasm.gram(0, kp, len + (len & 1), ROW_BLOCK, accAt);
-    else accumulateBlockGram(z, kp, len, ROW_BLOCK, acc);
+    accumulateBlockGram(z, kp, len, ROW_BLOCK, acc);
   }
   for (let j = 0; j < k; j++) for (let l = j; l < k; l++) out[j * k + l] = acc[j * kp + l];
   return mirrorUpper(out, k);
+}
+
+/**
+ * denseCrossProducts on the WebAssembly kernels: each block's columns are copied as they are into
+ * the kernels' memory (a plain copy), where scaleBlock centres, scales and weights them in place
+ * (taking the score part on the way) and gram accumulates the block's Gram matrix. Null when the
+ * kernels' memory cannot hold the block (the caller then uses its JavaScript loop).
+ * Memory (doubles): block [0, kp ROW_BLOCK), Gram sums (kp kp), sqrt(W) and residuals (ROW_BLOCK
+ * each), centres, reciprocal scales and score sums (k each).
+ */
+function denseCrossProductsWasm(
+  p: BlockDesign,
+  weights: Float64Array,
+  out: SquareMatrix,
+  residual: Float64Array | null,
+  vectorOut: Float64Array | null,
+  wasm: WasmKernels,
+): SquareMatrix | null {
+  const n = p.rows;
+  const k = p.columns.length;
+  const kp = 3 * Math.ceil(k / 3);
+  const cols = p.columns;
+  const accAt = kp * ROW_BLOCK;
+  const swAt = accAt + kp * kp;
+  const uAt = swAt + ROW_BLOCK;
+  const cAt = uAt + ROW_BLOCK;
+  const fAt = cAt + k;
+  const sAt = fAt + k;
+  const mem = wasm.reserve(sAt + k);
+  if (!mem) return null;
+  const centred = !!(p.centre && p.scale);
+  for (let j = 0; j < k; j++) {
+    mem[cAt + j] = centred ? p.centre![j] : 0;
+    mem[fAt + j] = centred ? 1 / p.scale![j] : 1;
+  }
+  mem.fill(0, 0, accAt); // the padding columns k .. kp-1 stay zero
+  mem.fill(0, accAt, swAt);
+  mem.fill(0, sAt, sAt + k);
+  const withScore = !!(residual && vectorOut);
+  for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
+    const len = Math.min(ROW_BLOCK, n - i0);
+    // Rows in pairs: an odd block ends with a zero row (weight 0 and residual 0, so it adds nothing).
+    const even = len + (len & 1);
+    for (let j = 0; j < k; j++) {
+      mem.set(cols[j].subarray(i0, i0 + len), j * ROW_BLOCK);
+      if (even > len) mem[j * ROW_BLOCK + len] = 0;
+    }
+    rootWeights(weights, i0, len, mem, swAt);
+    if (even > len) mem[swAt + len] = 0;
+    if (withScore) {
+      mem.set(residual!.subarray(i0, i0 + len), uAt);
+      if (even > len) mem[uAt + len] = 0;
+    }
+    wasm.scaleBlock(0, k, even, ROW_BLOCK, swAt, cAt, fAt, withScore ? uAt : 0, sAt);
+    wasm.gram(0, kp, even, ROW_BLOCK, accAt);
+  }
+  if (withScore) for (let j = 0; j < k; j++) vectorOut![j] = mem[sAt + j] * mem[fAt + j];
+  for (let j = 0; j < k; j++) for (let l = j; l < k; l++) out[j * k + l] = mem[accAt + j * kp + l];
+  return mirrorUpper(out, k);
+}
+
+/** out[at + r] = sqrt(weights[i0 + r]) for r < len. */
+function rootWeights(weights: Float64Array, i0: number, len: number, out: Float64Array, at: number): void {
+  for (let r = 0; r < len; r++) out[at + r] = Math.sqrt(weights[i0 + r]);
 }
 
 /**

@@ -80,6 +80,38 @@
       (local.set $j (i32.add (local.get $j) (i32.const 3)))
       (br $jLoop))))
 
+  ;; scaleBlock(x, k, len, sb, sw, c, f, u, out): for each column j (at x + j*sb) and row r < len,
+;; d = x_j[r] - c[j]; out[j] += sum_r u[r] d (when u is not 0: the score part of the pass); then
+;; x_j[r] = sw[r] (d f[j]) in place (the block of the information: rows weighted by sqrt(W), columns
+;; centred and scaled by f = 1 / scale). c, f and out hold k doubles; sw and u hold len.
+  (func (export "scaleBlock") (param $x i32) (param $k i32) (param $len i32) (param $sb i32) (param $sw i32)
+      (param $c i32) (param $f i32) (param $u i32) (param $out i32)
+    (local $j i32) (local $r i32) (local $rb i32) (local $p i32) (local $cj v128) (local $fj v128)
+    (local $d v128) (local $s v128)
+    (local.set $rb (i32.shl (local.get $len) (i32.const 3)))
+    (local.set $j (i32.const 0))
+    (block $jDone (loop $jLoop
+      (br_if $jDone (i32.ge_s (local.get $j) (local.get $k)))
+      (local.set $p (i32.add (local.get $x) (i32.mul (local.get $j) (local.get $sb))))
+      (local.set $cj (v128.load64_splat (i32.add (local.get $c) (i32.shl (local.get $j) (i32.const 3)))))
+      (local.set $fj (v128.load64_splat (i32.add (local.get $f) (i32.shl (local.get $j) (i32.const 3)))))
+      (local.set $s (v128.const f64x2 0 0))
+      (local.set $r (i32.const 0))
+      (block $rDone (loop $rLoop
+        (br_if $rDone (i32.ge_u (local.get $r) (local.get $rb)))
+        (local.set $d (f64x2.sub (v128.load (i32.add (local.get $p) (local.get $r))) (local.get $cj)))
+        (if (local.get $u) (then
+          (local.set $s (f64x2.add (local.get $s)
+            (f64x2.mul (v128.load (i32.add (local.get $u) (local.get $r))) (local.get $d))))))
+        (v128.store (i32.add (local.get $p) (local.get $r))
+          (f64x2.mul (v128.load (i32.add (local.get $sw) (local.get $r))) (f64x2.mul (local.get $d) (local.get $fj))))
+        (local.set $r (i32.add (local.get $r) (i32.const 16)))
+        (br $rLoop)))
+      (if (local.get $u) (then
+        (call $addLanes (i32.add (local.get $out) (i32.shl (local.get $j) (i32.const 3))) (local.get $s))))
+      (local.set $j (i32.add (local.get $j) (i32.const 1)))
+      (br $jLoop))))
+
   ;; weightedGrams(z, q, len, v, sb, m, out): out[(a*q + b)*m + k] += sum_{r < len} z_a[r] z_b[r] v_k[r]
   ;; for a <= b, in tiles of two columns (a, a+1) against four weight vectors, then one at a time
   ;; (entries with a = b + 1 are written too and belong to the lower triangle, as in

@@ -21,12 +21,18 @@ export interface WasmKernels {
   gram(a: number, k: number, len: number, stride: number, out: number): void;
   /** out[(a*q + b)*m + k] += sum_{r < len} z_a[r] z_b[r] v_k[r] for a <= b (len even). */
   weightedGrams(z: number, q: number, len: number, v: number, stride: number, m: number, out: number): void;
+  /**
+   * For each column j < k: with d = x_j[r] - c[j], out[j] += sum_r u[r] d when u is not 0 (u is an
+   * offset; 0 means no residual), then x_j[r] = sw[r] d f[j] in place (len even).
+   */
+  scaleBlock(x: number, k: number, len: number, stride: number, sw: number, c: number, f: number, u: number, out: number): void;
 }
 
 interface KernelExports {
   memory: WebAssembly.Memory;
   gram(a: number, k: number, len: number, strideBytes: number, out: number): void;
   weightedGrams(z: number, q: number, len: number, v: number, strideBytes: number, m: number, out: number): void;
+  scaleBlock(x: number, k: number, len: number, strideBytes: number, sw: number, c: number, f: number, u: number, out: number): void;
 }
 
 const PAGE_BYTES = 65536;
@@ -83,5 +89,6 @@ function load(): WasmKernels | null {
     },
     gram: (a, k, len, stride, out) => ex.gram(a * 8, k, len, stride * 8, out * 8),
     weightedGrams: (z, q, len, v, stride, m, out) => ex.weightedGrams(z * 8, q, len, v * 8, stride * 8, m, out * 8),
+    scaleBlock: (x, k, len, stride, sw, c, f, u, out) => ex.scaleBlock(x * 8, k, len, stride * 8, sw * 8, c * 8, f * 8, u * 8, out * 8),
   };
 }

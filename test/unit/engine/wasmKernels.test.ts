@@ -111,6 +111,46 @@ describe("weightedGrams kernel", () => {
   });
 });
 
+describe("scaleBlock kernel", () => {
+  test.each([true, false])("centres, scales and weights a block in place, and sums the residual products (with residuals: %s)", (withResidual) => {
+    const k = 4;
+    const len = 10;
+    const stride = 16;
+    const wasm = wasmKernels()!;
+    const swAt = k * stride;
+    const uAt = swAt + stride;
+    const cAt = uAt + stride;
+    const fAt = cAt + k;
+    const outAt = fAt + k;
+    const mem = wasm.reserve(outAt + k)!;
+    const x = Array.from({ length: k }, (_, j) => column(len, j).map((v) => 100 + 10 * v));
+    const sw = column(len, 7).map((v) => Math.sqrt(0.25 * Math.abs(v)));
+    const u = column(len, 8);
+    const c = [100, 101, 99, 100.5];
+    const f = [0.1, 0.2, 0.05, 1];
+    x.forEach((col, j) => mem.set(col, j * stride));
+    mem.set(sw, swAt);
+    mem.set(u, uAt);
+    mem.set(c, cAt);
+    mem.set(f, fAt);
+    mem.fill(0, outAt, outAt + k);
+    wasm.scaleBlock(0, k, len, stride, swAt, cAt, fAt, withResidual ? uAt : 0, outAt);
+    const got = wasm.reserve(outAt + k)!;
+    for (let j = 0; j < k; j++) {
+      let dot = 0;
+      let scale = 0;
+      for (let r = 0; r < len; r++) {
+        const d = x[j][r] - c[j];
+        expect(Math.abs(got[j * stride + r] - sw[r] * d * f[j])).toBeLessThanOrEqual(SUM_TOL * Math.abs(sw[r] * d * f[j]));
+        dot += u[r] * d;
+        scale += Math.abs(u[r] * d);
+      }
+      if (withResidual) expect(Math.abs(got[outAt + j] - dot)).toBeLessThanOrEqual(SUM_TOL * scale);
+      else expect(got[outAt + j]).toBe(0);
+    }
+  });
+});
+
 function expectSameFit(a: ModelFit, b: ModelFit): void {
   expect(a.converged).toBe(true);
   expect(b.converged).toBe(true);
