@@ -895,7 +895,7 @@ function renderMarkdown(r: RunRecord, history: RunRecord[], notes: string): stri
     `- Commit: ${r.commit}.`,
     `- Our kernels: ${r.kernels ?? "JavaScript only"}.`,
     `- Peers missing: ${r.peersMissing.length ? r.peersMissing.join("; ") : "none"}.`,
-    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is JavaScript (plus two small WebAssembly SIMD kernels) on one thread (V8's garbage collector uses helper threads).",
+    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is JavaScript (plus small WebAssembly SIMD kernels for the Gram-matrix sums) on one thread (V8's garbage collector uses helper threads).",
     "",
   );
   L.push("### Targets", "", "| target | goal | measured | status |", "|---|---|---|---|");
