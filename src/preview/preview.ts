@@ -5,6 +5,7 @@
  *
  * URL options: ?runner=worker|inline (force where the pane fits; default picks by size).
  */
+import { wasmKernels } from "../engine/kernels/wasmKernels";
 import { mountPane } from "../taskpane/pane";
 import { MemoryPort, MemoryWorkbook } from "../taskpane/memoryPort";
 import { loadDemo } from "./demo";
@@ -25,8 +26,10 @@ function start(): void {
     workerUrl: "fitworker.js",
     runner: runner === "worker" || runner === "inline" ? runner : "auto",
   });
-  // Handles for the browser tests (read-only use).
-  (window as unknown as Record<string, unknown>).oddsmithWorkbench = { workbook, controller };
+  // Handles for the browser tests (read-only use). `kernels` says whether the engine's WebAssembly
+  // kernels loaded under this page's Content-Security-Policy (else it runs its JavaScript kernels).
+  const kernels = wasmKernels() ? "webassembly" : "javascript";
+  (window as unknown as Record<string, unknown>).oddsmithWorkbench = { workbook, controller, kernels };
 }
 
 start();

@@ -116,6 +116,14 @@ async function chooseSplineForFirmness(page: Page): Promise<void> {
 }
 
 describe("preview workbench", () => {
+  test("the engine's WebAssembly kernels load under the page's Content-Security-Policy", async () => {
+    // The page's own script compiles the kernels ('wasm-unsafe-eval' in script-src); if the policy
+    // refused them the engine would fall back to its JavaScript kernels and this would say so.
+    const page = await openWorkbench();
+    expect(await page.evaluate(() => (window as unknown as { oddsmithWorkbench: { kernels: string } }).oddsmithWorkbench.kernels)).toBe("webassembly");
+    await page.close();
+  });
+
   test("the pane shows the safety cautions", async () => {
     const page = await openWorkbench();
     const text = await page.textContent("#osm-cautions");
