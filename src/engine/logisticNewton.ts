@@ -614,6 +614,39 @@ function sparseScore(p: NewtonProblem, sparse: readonly (Int32Array | null)[], m
 }
 
 /**
+ * Fitted probabilities mu_i and the weighted kernel log-likelihood of rows i0 .. i1-1 from their
+ * linear predictors, with one exp and one log1p per row: with u = exp(-|e|) and
+ * L = log(1 + u) = log1pExp(-|e|), sigmoid(e) = 1/(1+u) or u/(1+u), log sigmoid(e) = -L or e - L,
+ * log sigmoid(-e) = -e - L or -L (the same stable forms as numerics.ts, written out because this
+ * loop dominates the fit).
+ */
+function blockLogLikelihood(p: NewtonProblem, eta: Float64Array, mu: Float64Array, i0: number, i1: number): number {
+  const y = p.successes;
+  const t = p.trials;
+  const w = p.weights;
+  let ll = 0;
+  for (let i = i0; i < i1; i++) {
+    const e = eta[i];
+    const u = Math.exp(-Math.abs(e));
+    const L = Math.log1p(u);
+    const yi = y[i];
+    const fi = t[i] - yi;
+    let li = 0;
+    if (e >= 0) {
+      mu[i] = 1 / (1 + u);
+      if (yi !== 0) li -= yi * L;
+      if (fi !== 0) li -= fi * (e + L);
+    } else {
+      mu[i] = u / (1 + u);
+      if (yi !== 0) li += yi * (e - L);
+      if (fi !== 0) li -= fi * L;
+    }
+    ll += w[i] * li;
+  }
+  return ll;
+}
+
+/**
  * Evaluate l(g) into eta/mu buffers; returns the kernel log-likelihood (sum over rows). Works a
  * row block at a time: the block's fitting columns give its linear predictor, then its fitted
  * probabilities and log-likelihood terms, and with `scoreOut` also its part of the score's
@@ -668,27 +701,7 @@ function evaluate(
       const a = j * ROW_BLOCK - i0;
       for (let i = i0; i < i1; i++) eta[i] += gj * z[a + i];
     }
-    // One exp and one log1p per row: with u = exp(-|e|) and L = log(1 + u) = log1pExp(-|e|),
-    // sigmoid(e) = 1/(1+u) or u/(1+u), log sigmoid(e) = -L or e - L, log sigmoid(-e) = -e - L or -L
-    // (the same stable forms as numerics.ts, inlined because this loop dominates the fit).
-    for (let i = i0; i < i1; i++) {
-      const e = eta[i];
-      const u = Math.exp(-Math.abs(e));
-      const L = Math.log1p(u);
-      const yi = y[i];
-      const fi = t[i] - yi;
-      let li = 0;
-      if (e >= 0) {
-        mu[i] = 1 / (1 + u);
-        if (yi !== 0) li -= yi * L;
-        if (fi !== 0) li -= fi * (e + L);
-      } else {
-        mu[i] = u / (1 + u);
-        if (yi !== 0) li += yi * (e - L);
-        if (fi !== 0) li -= fi * L;
-      }
-      ll += w[i] * li;
-    }
+    ll += blockLogLikelihood(p, eta, mu, i0, i1);
     if (scoreOut) {
       for (let i = i0; i < i1; i++) res[i - i0] = w[i] * (y[i] - t[i] * mu[i]);
       for (let jj = 0; jj < k; jj++) {
@@ -805,25 +818,7 @@ function evaluateDense(
       const cj = centre ? centre[j] : 0;
       for (let i = i0; i < i1; i++) eta[i] += fj * (x[i] - cj);
     }
-    // One exp and one log1p per row, as in evaluate.
-    for (let i = i0; i < i1; i++) {
-      const e = eta[i];
-      const u = Math.exp(-Math.abs(e));
-      const L = Math.log1p(u);
-      const yi = y[i];
-      const fi = t[i] - yi;
-      let li = 0;
-      if (e >= 0) {
-        mu[i] = 1 / (1 + u);
-        if (yi !== 0) li -= yi * L;
-        if (fi !== 0) li -= fi * (e + L);
-      } else {
-        mu[i] = u / (1 + u);
-        if (yi !== 0) li += yi * (e - L);
-        if (fi !== 0) li -= fi * L;
-      }
-      ll += w[i] * li;
-    }
+    ll += blockLogLikelihood(p, eta, mu, i0, i1);
     if (!scoreOut) continue;
     const len = i1 - i0;
     for (let i = i0; i < i1; i++) res[i - i0] = w[i] * (y[i] - t[i] * mu[i]);
