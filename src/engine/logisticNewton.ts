@@ -1005,10 +1005,10 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   }
 
   // State at g: log-likelihood, objective (needs log det I for Firth), information and its factor.
-  // Warm start: iterate with the approximate information until the changes are small. Its first
+  // Warm start: iterate with the approximate information until the changes are small. The first
   // score comes with the evaluation at the start (no separate pass).
   let approximate = !!p.startInformation && !p.firth && !p.free;
-  let ll = evaluate(p, g, eta, mu, buffers, approximate ? score : null);
+  let ll = evaluate(p, g, eta, mu, buffers, score);
   let approximateSteps = 0;
   let checkDecrement = false; // after switching to the exact information: test the Newton decrement first
   const constantMu = !!p.unitGram && !approximate && allEqual(mu, n);
@@ -1021,7 +1021,7 @@ export function newtonLogistic(problem: NewtonProblem): NewtonResult {
   } else {
     information(p, mu, fisherW, buffers, info);
   }
-  let scoreReady = approximate; // true when the score's Z' part at g is already in `score`
+  let scoreReady = true; // true when the score's Z' part at g is already in `score`
   let factor = firthFactor(p, info, k);
   let singular = factor === null && p.firth;
   let objective = -ll + penaltyValue(p, g) - (p.firth && factor ? 0.5 * logDetFromCholesky(factor, k) : 0);
