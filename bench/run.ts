@@ -45,7 +45,7 @@ const NO_PEERS = argv.includes("--no-peers");
 const NO_WASM = argv.includes("--no-wasm");
 if (NO_WASM) setWasmKernelsEnabled(false);
 /** Which kernels our fits use in this run (see src/engine/kernels/wasmKernels.ts). */
-const KERNELS = NO_WASM ? "JavaScript only (--no-wasm)" : wasmKernels() ? "WebAssembly SIMD for the Gram-matrix sums, JavaScript for the rest" : "JavaScript only (WebAssembly SIMD unavailable)";
+const KERNELS = NO_WASM ? "JavaScript only (--no-wasm)" : wasmKernels() ? "WebAssembly SIMD for the Gram-matrix sums and the multi-class score passes, JavaScript for the rest" : "JavaScript only (WebAssembly SIMD unavailable)";
 const WRITE = argv.includes("--write") || (!QUICK && !argv.some((a) => a.startsWith("--only")));
 const ONLY = (argv.find((a) => a.startsWith("--only="))?.slice(7).split(",") ?? null) as string[] | null;
 const wants = (id: string): boolean => !ONLY || ONLY.includes(id);
@@ -895,7 +895,7 @@ function renderMarkdown(r: RunRecord, history: RunRecord[], notes: string): stri
     `- Commit: ${r.commit}.`,
     `- Our kernels: ${r.kernels ?? "JavaScript only"}.`,
     `- Peers missing: ${r.peersMissing.length ? r.peersMissing.join("; ") : "none"}.`,
-    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is JavaScript (plus small WebAssembly SIMD kernels for the Gram-matrix sums) on one thread (V8's garbage collector uses helper threads).",
+    "- Python and R here use Debian's reference BLAS/LAPACK (single-threaded, unoptimized); with OpenBLAS or MKL the matrix-heavy peers (statsmodels, glm.fit, newton-cholesky) would be faster. Oddsmith is JavaScript (plus small WebAssembly SIMD kernels for sums over row blocks) on one thread (V8's garbage collector uses helper threads).",
     "",
   );
   L.push("### Targets", "", "| target | goal | measured | status |", "|---|---|---|---|");

@@ -670,25 +670,49 @@ class SoftmaxKernel {
    *   "information" the score and the information blocks
    */
   evaluate(theta: Float64Array, mode: "value" | "score" | "information"): number {
-    const { q, E, pairs, etaBuf, prob, shift, sum, yEq, resid, v, score, blocks, refForm, eqOfClass } = this;
+    const { q, E, pairs, prob, shift, sum, yEq, v, score, blocks, refForm, eqOfClass } = this;
     const { n, z, w, y } = this.prep;
     const derivs = mode !== "value";
     const info = mode === "information";
     if (derivs) score.fill(0);
     if (info) blocks.fill(0);
-    // The information's sums go to the WebAssembly kernel when it is available (wasmKernels.ts):
-    // its memory holds the chunk's columns [0, q CHUNK), the block weights [vAt, vAt + pairs CHUNK)
-    // and the accumulated sums [outAt, outAt + q q pairs).
+    // With the WebAssembly kernels (wasmKernels.ts) the chunk's sums run there: its memory holds the
+    // chunk's columns [0, q CHUNK), the block weights [vAt, + pairs CHUNK), the information sums
+    // [outAt, + q q pairs), theta [thetaAt, + E q), the linear predictors [etaAt, + E CHUNK), the
+    // residuals [residAt, + E CHUNK) and the score sums [scoreAt, + E q); etaBuf and resid are then
+    // views of that memory. Without them, linearPredictors and the kernels of blockAccumulate.ts.
     const vAt = q * CHUNK;
     const outAt = vAt + pairs * CHUNK;
-    const wasm = info ? wasmKernels() : null;
-    const mem = wasm ? wasm.reserve(outAt + q * q * pairs) : null;
-    if (mem) mem.fill(0, outAt, outAt + q * q * pairs);
+    const thetaAt = outAt + q * q * pairs;
+    const etaAt = thetaAt + E * q;
+    const residAt = etaAt + E * CHUNK;
+    const scoreAt = residAt + E * CHUNK;
+    const wasm = wasmKernels();
+    const mem = wasm ? wasm.reserve(scoreAt + E * q) : null;
+    let etaBuf = this.etaBuf;
+    let resid = this.resid;
+    if (mem) {
+      mem.fill(0, outAt, outAt + q * q * pairs);
+      mem.set(theta.subarray(0, E * q), thetaAt);
+      mem.fill(0, scoreAt, scoreAt + E * q);
+      etaBuf = mem.subarray(etaAt, etaAt + E * CHUNK);
+      resid = mem.subarray(residAt, residAt + E * CHUNK);
+    }
     let logLik = 0;
     for (let r0 = 0; r0 < n; r0 += CHUNK) {
       const L = Math.min(CHUNK, n - r0);
-      // Linear predictors of the chunk, column by column (contiguous); eta_ref = 0 (reference form).
-      linearPredictors(z, theta, r0, L, q, E, etaBuf);
+      // Rows in pairs for the WebAssembly kernels: an odd chunk gets a zero row (weight and residual 0).
+      const even = L + (L & 1);
+      if (wasm && mem) {
+        for (let j = 0; j < q; j++) {
+          mem.set(z[j].subarray(r0, r0 + L), j * CHUNK);
+          if (even > L) mem[j * CHUNK + L] = 0;
+        }
+        wasm.predictors(0, q, even, CHUNK, thetaAt, E, etaAt);
+      } else {
+        // Linear predictors of the chunk, column by column (contiguous); eta_ref = 0 (reference form).
+        linearPredictors(z, theta, r0, L, q, E, etaBuf);
+      }
       // The rest also runs over the chunk one equation at a time (long loops over rows rather than
       // short loops over equations). Stable softmax: subtract the row maximum; log-sum-exp for the
       // log-likelihood. In the reference form no exponential can overflow while every eta is below
@@ -748,14 +772,13 @@ class SoftmaxKernel {
       }
       if (!derivs) continue;
       // Score: X' r_e over the chunk; information: X' diag(v_ef) X, upper triangles, over the chunk.
-      accumulateCrossProducts(z, r0, L, resid, CHUNK, E, score);
+      if (wasm && mem) {
+        if (even > L) for (let e = 0; e < E; e++) resid[e * CHUNK + L] = 0;
+        wasm.crossSums(0, q, even, CHUNK, residAt, E, scoreAt);
+      } else {
+        accumulateCrossProducts(z, r0, L, resid, CHUNK, E, score);
+      }
       if (info && wasm && mem) {
-        // Rows in pairs: an odd chunk gets a zero row (weight 0).
-        const even = L + (L & 1);
-        for (let j = 0; j < q; j++) {
-          mem.set(z[j].subarray(r0, r0 + L), j * CHUNK);
-          if (even > L) mem[j * CHUNK + L] = 0;
-        }
         for (let pr = 0; pr < pairs; pr++) {
           mem.set(v.subarray(pr * CHUNK, pr * CHUNK + L), vAt + pr * CHUNK);
           if (even > L) mem[vAt + pr * CHUNK + L] = 0;
@@ -766,6 +789,7 @@ class SoftmaxKernel {
       }
     }
     if (info && wasm && mem) blocks.set(mem.subarray(outAt, outAt + q * q * pairs));
+    if (derivs && wasm && mem) score.set(mem.subarray(scoreAt, scoreAt + E * q));
     return logLik;
   }
 

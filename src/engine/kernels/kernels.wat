@@ -112,6 +112,113 @@
       (local.set $j (i32.add (local.get $j) (i32.const 1)))
       (br $jLoop))))
 
+  ;; predictors(z, q, len, sb, theta, m, eta): eta_e[r] = sum_j theta[e*q + j] z_j[r] for e < m, r < len
+;; (eta_e at eta + e*sb), four columns per pass over eta.
+  (func (export "predictors") (param $z i32) (param $q i32) (param $len i32) (param $sb i32) (param $theta i32) (param $m i32) (param $eta i32)
+    (local $e i32) (local $j i32) (local $r i32) (local $rb i32) (local $pe i32) (local $th i32) (local $pr i32)
+    (local $p0 i32) (local $p1 i32) (local $p2 i32) (local $p3 i32)
+    (local $t0 v128) (local $t1 v128) (local $t2 v128) (local $t3 v128)
+    (local.set $rb (i32.shl (local.get $len) (i32.const 3)))
+    (local.set $e (i32.const 0))
+    (block $eDone (loop $eLoop
+      (br_if $eDone (i32.ge_s (local.get $e) (local.get $m)))
+      (local.set $pe (i32.add (local.get $eta) (i32.mul (local.get $e) (local.get $sb))))
+      (local.set $th (i32.add (local.get $theta) (i32.shl (i32.mul (local.get $e) (local.get $q)) (i32.const 3))))
+      (local.set $r (i32.const 0))
+      (block $zDone (loop $zLoop
+        (br_if $zDone (i32.ge_u (local.get $r) (local.get $rb)))
+        (v128.store (i32.add (local.get $pe) (local.get $r)) (v128.const f64x2 0 0))
+        (local.set $r (i32.add (local.get $r) (i32.const 16)))
+        (br $zLoop)))
+      (local.set $j (i32.const 0))
+      (block $j4Done (loop $j4Loop
+        (br_if $j4Done (i32.gt_s (i32.add (local.get $j) (i32.const 4)) (local.get $q)))
+        (local.set $p0 (i32.add (local.get $z) (i32.mul (local.get $j) (local.get $sb))))
+        (local.set $p1 (i32.add (local.get $p0) (local.get $sb)))
+        (local.set $p2 (i32.add (local.get $p1) (local.get $sb)))
+        (local.set $p3 (i32.add (local.get $p2) (local.get $sb)))
+        (local.set $t0 (v128.load64_splat (i32.add (local.get $th) (i32.shl (local.get $j) (i32.const 3)))))
+        (local.set $t1 (v128.load64_splat offset=8 (i32.add (local.get $th) (i32.shl (local.get $j) (i32.const 3)))))
+        (local.set $t2 (v128.load64_splat offset=16 (i32.add (local.get $th) (i32.shl (local.get $j) (i32.const 3)))))
+        (local.set $t3 (v128.load64_splat offset=24 (i32.add (local.get $th) (i32.shl (local.get $j) (i32.const 3)))))
+        (local.set $r (i32.const 0))
+        (block $rDone (loop $rLoop
+          (br_if $rDone (i32.ge_u (local.get $r) (local.get $rb)))
+          (local.set $pr (i32.add (local.get $pe) (local.get $r)))
+          (v128.store (local.get $pr)
+            (f64x2.add (v128.load (local.get $pr))
+              (f64x2.add
+                (f64x2.add (f64x2.mul (local.get $t0) (v128.load (i32.add (local.get $p0) (local.get $r))))
+                           (f64x2.mul (local.get $t1) (v128.load (i32.add (local.get $p1) (local.get $r)))))
+                (f64x2.add (f64x2.mul (local.get $t2) (v128.load (i32.add (local.get $p2) (local.get $r))))
+                           (f64x2.mul (local.get $t3) (v128.load (i32.add (local.get $p3) (local.get $r))))))))
+          (local.set $r (i32.add (local.get $r) (i32.const 16)))
+          (br $rLoop)))
+        (local.set $j (i32.add (local.get $j) (i32.const 4)))
+        (br $j4Loop)))
+      (block $j1Done (loop $j1Loop
+        (br_if $j1Done (i32.ge_s (local.get $j) (local.get $q)))
+        (local.set $p0 (i32.add (local.get $z) (i32.mul (local.get $j) (local.get $sb))))
+        (local.set $t0 (v128.load64_splat (i32.add (local.get $th) (i32.shl (local.get $j) (i32.const 3)))))
+        (local.set $r (i32.const 0))
+        (block $r1Done (loop $r1Loop
+          (br_if $r1Done (i32.ge_u (local.get $r) (local.get $rb)))
+          (local.set $pr (i32.add (local.get $pe) (local.get $r)))
+          (v128.store (local.get $pr)
+            (f64x2.add (v128.load (local.get $pr)) (f64x2.mul (local.get $t0) (v128.load (i32.add (local.get $p0) (local.get $r))))))
+          (local.set $r (i32.add (local.get $r) (i32.const 16)))
+          (br $r1Loop)))
+        (local.set $j (i32.add (local.get $j) (i32.const 1)))
+        (br $j1Loop)))
+      (local.set $e (i32.add (local.get $e) (i32.const 1)))
+      (br $eLoop))))
+
+  ;; crossSums(z, q, len, sb, u, m, out): out[k*q + j] += sum_{r < len} z_j[r] u_k[r] for j < q, k < m
+  ;; (u_k at u + k*sb), two weight vectors per pass over a column.
+  (func (export "crossSums") (param $z i32) (param $q i32) (param $len i32) (param $sb i32) (param $u i32) (param $m i32) (param $out i32)
+    (local $j i32) (local $k i32) (local $r i32) (local $rb i32) (local $pz i32) (local $u0 i32) (local $u1 i32)
+    (local $x v128) (local $s0 v128) (local $s1 v128)
+    (local.set $rb (i32.shl (local.get $len) (i32.const 3)))
+    (local.set $j (i32.const 0))
+    (block $jDone (loop $jLoop
+      (br_if $jDone (i32.ge_s (local.get $j) (local.get $q)))
+      (local.set $pz (i32.add (local.get $z) (i32.mul (local.get $j) (local.get $sb))))
+      (local.set $k (i32.const 0))
+      (block $k2Done (loop $k2Loop
+        (br_if $k2Done (i32.gt_s (i32.add (local.get $k) (i32.const 2)) (local.get $m)))
+        (local.set $u0 (i32.add (local.get $u) (i32.mul (local.get $k) (local.get $sb))))
+        (local.set $u1 (i32.add (local.get $u0) (local.get $sb)))
+        (local.set $s0 (v128.const f64x2 0 0))
+        (local.set $s1 (v128.const f64x2 0 0))
+        (local.set $r (i32.const 0))
+        (block $rDone (loop $rLoop
+          (br_if $rDone (i32.ge_u (local.get $r) (local.get $rb)))
+          (local.set $x (v128.load (i32.add (local.get $pz) (local.get $r))))
+          (local.set $s0 (f64x2.add (local.get $s0) (f64x2.mul (local.get $x) (v128.load (i32.add (local.get $u0) (local.get $r))))))
+          (local.set $s1 (f64x2.add (local.get $s1) (f64x2.mul (local.get $x) (v128.load (i32.add (local.get $u1) (local.get $r))))))
+          (local.set $r (i32.add (local.get $r) (i32.const 16)))
+          (br $rLoop)))
+        (call $addLanes (i32.add (local.get $out) (i32.shl (i32.add (i32.mul (local.get $k) (local.get $q)) (local.get $j)) (i32.const 3))) (local.get $s0))
+        (call $addLanes (i32.add (local.get $out) (i32.shl (i32.add (i32.mul (i32.add (local.get $k) (i32.const 1)) (local.get $q)) (local.get $j)) (i32.const 3))) (local.get $s1))
+        (local.set $k (i32.add (local.get $k) (i32.const 2)))
+        (br $k2Loop)))
+      (block $k1Done (loop $k1Loop
+        (br_if $k1Done (i32.ge_s (local.get $k) (local.get $m)))
+        (local.set $u0 (i32.add (local.get $u) (i32.mul (local.get $k) (local.get $sb))))
+        (local.set $s0 (v128.const f64x2 0 0))
+        (local.set $r (i32.const 0))
+        (block $r1Done (loop $r1Loop
+          (br_if $r1Done (i32.ge_u (local.get $r) (local.get $rb)))
+          (local.set $s0 (f64x2.add (local.get $s0)
+            (f64x2.mul (v128.load (i32.add (local.get $pz) (local.get $r))) (v128.load (i32.add (local.get $u0) (local.get $r))))))
+          (local.set $r (i32.add (local.get $r) (i32.const 16)))
+          (br $r1Loop)))
+        (call $addLanes (i32.add (local.get $out) (i32.shl (i32.add (i32.mul (local.get $k) (local.get $q)) (local.get $j)) (i32.const 3))) (local.get $s0))
+        (local.set $k (i32.add (local.get $k) (i32.const 1)))
+        (br $k1Loop)))
+      (local.set $j (i32.add (local.get $j) (i32.const 1)))
+      (br $jLoop))))
+
   ;; weightedGrams(z, q, len, v, sb, m, out): out[(a*q + b)*m + k] += sum_{r < len} z_a[r] z_b[r] v_k[r]
   ;; for a <= b, in tiles of two columns (a, a+1) against four weight vectors, then one at a time
   ;; (entries with a = b + 1 are written too and belong to the lower triangle, as in

@@ -26,6 +26,10 @@ export interface WasmKernels {
    * offset; 0 means no residual), then x_j[r] = sw[r] d f[j] in place (len even).
    */
   scaleBlock(x: number, k: number, len: number, stride: number, sw: number, c: number, f: number, u: number, out: number): void;
+  /** eta_e[r] = sum_j theta[e*q + j] z_j[r] for e < m, r < len (len even; eta_e at eta + e*stride). */
+  predictors(z: number, q: number, len: number, stride: number, theta: number, m: number, eta: number): void;
+  /** out[k*q + j] += sum_{r < len} z_j[r] u_k[r] for j < q, k < m (len even; u_k at u + k*stride). */
+  crossSums(z: number, q: number, len: number, stride: number, u: number, m: number, out: number): void;
 }
 
 interface KernelExports {
@@ -33,6 +37,8 @@ interface KernelExports {
   gram(a: number, k: number, len: number, strideBytes: number, out: number): void;
   weightedGrams(z: number, q: number, len: number, v: number, strideBytes: number, m: number, out: number): void;
   scaleBlock(x: number, k: number, len: number, strideBytes: number, sw: number, c: number, f: number, u: number, out: number): void;
+  predictors(z: number, q: number, len: number, strideBytes: number, theta: number, m: number, eta: number): void;
+  crossSums(z: number, q: number, len: number, strideBytes: number, u: number, m: number, out: number): void;
 }
 
 const PAGE_BYTES = 65536;
@@ -90,5 +96,7 @@ function load(): WasmKernels | null {
     gram: (a, k, len, stride, out) => ex.gram(a * 8, k, len, stride * 8, out * 8),
     weightedGrams: (z, q, len, v, stride, m, out) => ex.weightedGrams(z * 8, q, len, v * 8, stride * 8, m, out * 8),
     scaleBlock: (x, k, len, stride, sw, c, f, u, out) => ex.scaleBlock(x * 8, k, len, stride * 8, sw * 8, c * 8, f * 8, u * 8, out * 8),
+    predictors: (z, q, len, stride, theta, m, eta) => ex.predictors(z * 8, q, len, stride * 8, theta * 8, m, eta * 8),
+    crossSums: (z, q, len, stride, u, m, out) => ex.crossSums(z * 8, q, len, stride * 8, u * 8, m, out * 8),
   };
 }

@@ -151,6 +151,52 @@ describe("scaleBlock kernel", () => {
   });
 });
 
+describe("predictors and crossSums kernels", () => {
+  test.each([
+    [5, 3, 10],
+    [8, 4, 256],
+    [1, 1, 2],
+  ])("match direct sums for %i columns, %i equations and %i rows", (q, m, len) => {
+    const stride = 256;
+    const wasm = wasmKernels()!;
+    const thetaAt = q * stride;
+    const etaAt = thetaAt + m * q;
+    const uAt = etaAt + m * stride;
+    const outAt = uAt + m * stride;
+    const mem = wasm.reserve(outAt + m * q)!;
+    const z = Array.from({ length: q }, (_, j) => column(len, j));
+    const theta = Float64Array.from({ length: m * q }, (_, t) => Math.cos(1.7 * t) - 0.2);
+    const u = Array.from({ length: m }, (_, k) => column(len, 20 + k));
+    z.forEach((c, j) => mem.set(c, j * stride));
+    mem.set(theta, thetaAt);
+    u.forEach((c, k) => mem.set(c, uAt + k * stride));
+    mem.fill(0, outAt, outAt + m * q);
+    wasm.predictors(0, q, len, stride, thetaAt, m, etaAt);
+    wasm.crossSums(0, q, len, stride, uAt, m, outAt);
+    const got = wasm.reserve(outAt + m * q)!;
+    for (let e = 0; e < m; e++) {
+      for (let r = 0; r < len; r++) {
+        let eta = 0;
+        let scale = 0;
+        for (let j = 0; j < q; j++) {
+          eta += theta[e * q + j] * z[j][r];
+          scale += Math.abs(theta[e * q + j] * z[j][r]);
+        }
+        expect(Math.abs(got[etaAt + e * stride + r] - eta)).toBeLessThanOrEqual(SUM_TOL * scale);
+      }
+      for (let j = 0; j < q; j++) {
+        let dot = 0;
+        let scale = 0;
+        for (let r = 0; r < len; r++) {
+          dot += z[j][r] * u[e][r];
+          scale += Math.abs(z[j][r] * u[e][r]);
+        }
+        expect(Math.abs(got[outAt + e * q + j] - dot)).toBeLessThanOrEqual(SUM_TOL * scale);
+      }
+    }
+  });
+});
+
 function expectSameFit(a: ModelFit, b: ModelFit): void {
   expect(a.converged).toBe(true);
   expect(b.converged).toBe(true);
