@@ -201,6 +201,19 @@ function fillBlock(p: BlockDesign, i0: number, len: number, z: Float64Array, slo
   }
 }
 
+/** sum_r v[i0 + r] z[base + r] for r < len, in two partial sums (independent additions). */
+function blockDot(v: Float64Array, i0: number, z: Float64Array, base: number, len: number): number {
+  let s0 = 0;
+  let s1 = 0;
+  let r = 0;
+  for (; r + 1 < len; r += 2) {
+    s0 += v[i0 + r] * z[base + r];
+    s1 += v[i0 + r + 1] * z[base + r + 1];
+  }
+  for (; r < len; r++) s0 += v[i0 + r] * z[base + r];
+  return s0 + s1;
+}
+
 /**
  * Z' diag(weights) Z of the problem's fitting columns (k*k, exactly symmetric), accumulated a row
  * block at a time (see accumulateBlockCrossProduct); with `residual`, also Z'residual into
@@ -227,17 +240,7 @@ function crossProducts(
     for (let j = 0; j < k; j++) {
       const base = j * ROW_BLOCK;
       for (let r = 0; r < len; r++) wz[base + r] = weights[i0 + r] * z[base + r];
-      if (residual && vectorOut) {
-        let s0 = 0;
-        let s1 = 0;
-        let r = 0;
-        for (; r + 1 < len; r += 2) {
-          s0 += residual[i0 + r] * z[base + r];
-          s1 += residual[i0 + r + 1] * z[base + r + 1];
-        }
-        for (; r < len; r++) s0 += residual[i0 + r] * z[base + r];
-        vectorOut[j] += s0 + s1;
-      }
+      if (residual && vectorOut) vectorOut[j] += blockDot(residual, i0, z, base, len);
     }
     accumulateBlockCrossProduct(wz, z, k, len, ROW_BLOCK, out);
   }
@@ -488,18 +491,7 @@ function crossVector(p: BlockDesign, v: Float64Array, out: Float64Array, buffers
   for (let i0 = 0; i0 < n; i0 += ROW_BLOCK) {
     const len = Math.min(ROW_BLOCK, n - i0);
     fillBlock(p, i0, len, z);
-    for (let j = 0; j < k; j++) {
-      const base = j * ROW_BLOCK;
-      let s0 = 0;
-      let s1 = 0;
-      let r = 0;
-      for (; r + 1 < len; r += 2) {
-        s0 += v[i0 + r] * z[base + r];
-        s1 += v[i0 + r + 1] * z[base + r + 1];
-      }
-      for (; r < len; r++) s0 += v[i0 + r] * z[base + r];
-      out[j] += s0 + s1;
-    }
+    for (let j = 0; j < k; j++) out[j] += blockDot(v, i0, z, j * ROW_BLOCK, len);
   }
   return out;
 }
