@@ -32,13 +32,13 @@
  *   that cannot be scored keeps its place with NaN numbers and a per-row problem.
  */
 import { fitBinaryModel } from "./binary";
-import { buildDesign, encodeRows, skippedDetail, type DesignEncoding, type EncodedRows, type RowProblem, type SkippedRows } from "./design";
-import { readLabels, type LabelInfo } from "./labels";
+import { buildDesign, encodeRows, skippedDetail, type DesignEncoding, type EncodedRows, type RowProblem, type SkippedRows } from "./data/design";
+import { readLabels, type LabelInfo } from "./data/labels";
 import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
 import { fitMulticlassModel } from "./multiclass";
 import { predictMulticlass } from "./predictMulticlass";
 import { predictBinary } from "./predictBinary";
-import { detectHeader, normalizeRange, padTable, rangeRow, readTable, type HeaderEvidence, type NumericColumn, type Table } from "./table";
+import { detectHeader, normalizeRange, padTable, rangeRow, readTable, type HeaderEvidence, type NumericColumn, type Table } from "./data/table";
 import type { CellValue, DesignMatrix, Diagnostic, ModelFit, Prediction } from "./types";
 
 /** Most coefficients (equations x terms) one fit may estimate; see the policy above. */

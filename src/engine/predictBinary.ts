@@ -10,7 +10,7 @@
  * predicted = -1 for that row; other rows are unaffected.
  */
 
-import { checkScoringDesign } from "./checkScoringDesign";
+import { checkScoringDesign } from "./data/checkScoringDesign";
 import { criticalZ } from "./distributions";
 import { cholesky, subMatrix } from "./linalg";
 import { problem } from "./messages";

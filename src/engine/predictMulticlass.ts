@@ -10,7 +10,7 @@
  * Reference: A. Agresti, Categorical Data Analysis, 3rd ed. (2013), §8.1 (baseline-category logits).
  */
 
-import { checkScoringDesign } from "./checkScoringDesign";
+import { checkScoringDesign } from "./data/checkScoringDesign";
 import { problem } from "./messages";
 import type { DesignMatrix, ModelFit, Prediction } from "./types";
 

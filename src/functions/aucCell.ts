@@ -3,8 +3,7 @@
  * probabilities, with the DeLong standard error and a normal interval cut to [0, 1] (the engine's
  * rocAuc). Two classes only.
  */
-import { rocAuc } from "../engine/metrics/rocAuc";
-import type { CellValue } from "../engine/types";
+import { rocAuc, type CellValue } from "../engine";
 import { levelLabel, spill } from "./cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { AUC_OPTIONS } from "./metricOptions";

@@ -16,11 +16,7 @@
  * - Only when no data row yields any value is an error thrown: the first row's reason (its catalogue
  *   code and cell error), with the row counted as in the range (header = row 1).
  */
-import type { BasisColumn, RowNote } from "../engine/basis/common";
-import { applyRecipe, fitRecipe, parseRecipe } from "../engine/basis/recipe";
-import { problem } from "../engine/messages";
-import { rangeRow, readTable, type Table } from "../engine/table";
-import type { CellValue } from "../engine/types";
+import { applyRecipe, fitRecipe, parseRecipe, problem, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 
 /** The columns of a parsed table in the form the basis transforms read (blank = null). */

@@ -2,7 +2,7 @@
  * Registry entry of ODDS.BASIS: the payload guard, then src/functions/basisCell.ts (the basis
  * engineer's adapter, which owns the recipe handling).
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import { basisCell } from "./basisCell";
 import { checkPayload } from "./payload";
 import { required } from "./required";

@@ -4,10 +4,7 @@
  * Hosmer-Lemeshow test on those groups (engine hosmerLemeshow). Two classes only. The grouping rule is
  * written under the table, because H-L results depend on it.
  */
-import { OddsmithError } from "../engine/messages";
-import { calibrationTable } from "../engine/metrics/calibrationTable";
-import { hosmerLemeshow, type HosmerLemeshowResult } from "../engine/metrics/hosmerLemeshow";
-import type { CellValue } from "../engine/types";
+import { OddsmithError, calibrationTable, hosmerLemeshow, type HosmerLemeshowResult, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CALIBRATION_OPTIONS } from "./metricOptions";

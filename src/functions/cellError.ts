@@ -12,7 +12,7 @@
  *
  * This module never touches Office at import time, so the adapters and the workbench can import it.
  */
-import { MESSAGES, OddsmithError, problem, type CellErrorKind, type MessageCode } from "../engine/messages";
+import { MESSAGES, OddsmithError, problem, type CellErrorKind, type MessageCode } from "../engine";
 
 /** What a failing cell shows, independent of Office. */
 export interface CellFailureInfo {

@@ -6,7 +6,7 @@
  *   Where a non-finite value would hide a real problem, the adapter throws a catalogue error instead.
  * - Integers-as-counts stay numbers; text stays text; booleans stay booleans.
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 
 /** One cell for output: finite numbers, text and booleans pass; everything else becomes "". */
 export function cell(value: unknown): CellValue {

@@ -5,10 +5,7 @@
  * probable class is predicted (engine confusionMatrix), with accuracy and each class's recall.
  * Layout: one row per ACTUAL class, one column per PREDICTED class.
  */
-import { problem } from "../engine/messages";
-import { confusionCounts } from "../engine/metrics/confusionCounts";
-import { confusionMatrix } from "../engine/metrics/confusionMatrix";
-import type { CellValue } from "../engine/types";
+import { problem, confusionCounts, confusionMatrix, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CONFUSION_OPTIONS } from "./metricOptions";

@@ -13,8 +13,7 @@
  * - Below the table, after one blank row: every warning and note of the fit, in words.
  * - A fit without usable estimates (separation without a remedy, divergence) is #N/A with the reason.
  */
-import type { CoefficientRow, ModelFit } from "../engine/types";
-import type { CellValue } from "../engine/types";
+import type { CoefficientRow, ModelFit, CellValue } from "../engine";
 import { levelLabel, spill } from "./cellOutput";
 import { fittedModel, readModelOptions, requireUsableFit } from "./modelCell";
 

@@ -4,9 +4,7 @@
  * class: the multi-class (categorical cross-entropy) form. Probabilities are clipped to
  * [1e-15, 1 - 1e-15] by the engine so one overconfident row gives a large finite loss, not Infinity.
  */
-import { logLoss } from "../engine/metrics/logLoss";
-import { multiclassLogLoss } from "../engine/metrics/multiclassLogLoss";
-import type { CellValue } from "../engine/types";
+import { logLoss, multiclassLogLoss, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { LOGLOSS_OPTIONS } from "./metricOptions";

@@ -16,10 +16,7 @@
  *   probabilities blank is an error (METRIC_MISSING_VALUE) naming the sheet row.
  * - Row numbers in every message are 1-based rows of the ranges as selected (header row = row 1).
  */
-import { compareText, matchClass, readLabels, type LabelInfo } from "../engine/labels";
-import { OddsmithError, listNames, problem } from "../engine/messages";
-import { readTable, type HeaderEvidence, type Table } from "../engine/table";
-import type { CellValue } from "../engine/types";
+import { compareText, matchClass, readLabels, OddsmithError, listNames, problem, readTable, type LabelInfo, type HeaderEvidence, type Table, type CellValue } from "../engine";
 
 export interface MetricInputOptions {
   /** Function name as the user sees it, for messages ("ODDS.AUC"). */

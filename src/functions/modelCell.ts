@@ -7,9 +7,7 @@
  * REPORT over the same ranges share one fit, and any edited, appended or deleted cell refits. The
  * cache is src/shared/fitCache.ts, shared with the task pane in the shared runtime.
  */
-import { OddsmithError, problem, type MessageCode } from "../engine/messages";
-import { trainModel, type ModelOptions, type TrainedModel } from "../engine/model";
-import type { CellValue, Diagnostic } from "../engine/types";
+import { OddsmithError, problem, trainModel, type MessageCode, type ModelOptions, type TrainedModel, type CellValue, type Diagnostic } from "../engine";
 import { cellCount, contentKey, contentKeyAndSizes, sharedFitCache } from "../shared/fitCache";
 import { FIT_OPTIONS, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
 import { PAYLOAD_SIZER, checkPayload, surelyTooLarge, type PayloadPart } from "./payload";

@@ -16,8 +16,7 @@
  * Problems: OPTION_SYNTAX, UNKNOWN_OPTION (lists the valid names), BAD_OPTION_VALUE (says what is
  * valid), DUPLICATE_OPTION.
  */
-import { problem } from "../engine/messages";
-import { parseNumericText } from "../engine/table";
+import { problem, parseNumericText } from "../engine";
 
 interface SpecBase {
   /** Lower-case name the user writes. */

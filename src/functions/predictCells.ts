@@ -14,8 +14,7 @@
  *   |p - threshold|; several -> the gap between the two largest class probabilities.
  * - threshold (option) sets the two-class decision for CLASS and MARGIN; it never refits.
  */
-import { scoreRows, type RowScores } from "../engine/model";
-import type { CellValue } from "../engine/types";
+import { scoreRows, type RowScores, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 import { fittedModel, readModelOptions, refuseThresholdForSeveralClasses, requireUsableFit } from "./modelCell";
 import { checkPayload } from "./payload";

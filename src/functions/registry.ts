@@ -9,7 +9,7 @@
  *
  * Nothing here touches Office: importable in Node, tests and any page.
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import { runCell } from "./cellError";
 import { NAMESPACE } from "./namespace";
 import { fitCell } from "./fitCell";

@@ -13,17 +13,7 @@
  *   why. (FIT, PROB, CLASS and MARGIN show #N/A with the reason instead.)
  * - Diagnostics are listed last, one row each: "problem" (no estimate), "warning" or "note".
  */
-import { readLabels } from "../engine/labels";
-import { brierScore } from "../engine/metrics/brierScore";
-import { accuracy } from "../engine/metrics/accuracy";
-import { logLoss } from "../engine/metrics/logLoss";
-import { multiclassAccuracy } from "../engine/metrics/multiclassAccuracy";
-import { multiclassBrierScore } from "../engine/metrics/multiclassBrierScore";
-import { multiclassLogLoss } from "../engine/metrics/multiclassLogLoss";
-import { rocAuc } from "../engine/metrics/rocAuc";
-import { scoreRows, type TrainedModel } from "../engine/model";
-import { readTable } from "../engine/table";
-import type { CellValue } from "../engine/types";
+import { readLabels, brierScore, accuracy, logLoss, multiclassAccuracy, multiclassBrierScore, multiclassLogLoss, rocAuc, scoreRows, readTable, type TrainedModel, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 import { fitFailure, fittedModel, readModelOptions, refuseThresholdForSeveralClasses } from "./modelCell";
 

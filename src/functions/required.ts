@@ -1,6 +1,5 @@
 /** Required range arguments: Excel never omits them, but the workbench and tests can. */
-import { problem } from "../engine/messages";
-import type { CellValue } from "../engine/types";
+import { problem, type CellValue } from "../engine";
 
 /**
  * The range, or EMPTY_RANGE naming the argument when it is missing.

@@ -18,11 +18,7 @@
  *   scored). A category that matches no term counts as the reference level (the table cannot tell
  *   the reference level from an unseen one: say so in the help).
  */
-import { INTERCEPT_TERM } from "../engine/inference";
-import { listNames, problem } from "../engine/messages";
-import { logSumExp, sigmoid } from "../engine/numerics";
-import { isBlankCell, parseNumericText, readTable, type TableColumn } from "../engine/table";
-import type { CellValue } from "../engine/types";
+import { INTERCEPT_TERM, listNames, problem, logSumExp, sigmoid, isBlankCell, parseNumericText, readTable, type TableColumn, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 import { checkPayload } from "./payload";
 

@@ -2,7 +2,7 @@
  * The workbench's demo workbook: invented orchard data written by scripts/make-demo-workbook.mjs
  * (seeded), loaded into an in-memory workbook. No side effects on import, so tests can use it.
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import type { MemoryWorkbook } from "../taskpane/memoryPort";
 import demo from "./demoWorkbook.json";
 

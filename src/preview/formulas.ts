@@ -18,7 +18,7 @@
  */
 import { CellFunctionFailure } from "../functions/cellError";
 import { evaluateCellFunction } from "../functions/registry";
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import type { EvaluationContext, FormulaOutcome } from "../taskpane/memoryPort";
 
 /** Error values a cell can show. */

@@ -5,7 +5,7 @@
  *
  * URL options: ?runner=worker|inline (force where the pane fits; default picks by size).
  */
-import { wasmKernels } from "../engine/kernels/wasmKernels";
+import { wasmKernels } from "../engine";
 import { mountPane } from "../taskpane/pane";
 import { MemoryPort, MemoryWorkbook } from "../taskpane/memoryPort";
 import { loadDemo } from "./demo";

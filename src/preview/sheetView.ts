@@ -7,7 +7,7 @@
  * Safety: every cell's content is put in with textContent, never as markup, so text typed into a
  * cell (or produced by a formula) can never create elements or run scripts.
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import { cellAddress, columnLetters, type CellRect } from "../taskpane/a1";
 import { type MemoryWorkbook, parseTypedInput } from "../taskpane/memoryPort";
 import { isErrorValue } from "./formulas";

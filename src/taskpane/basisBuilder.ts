@@ -20,13 +20,8 @@
  *   result would newly cover must be empty, else nothing is written and a note says which cells.
  *   Values are never rewritten: a note says they were not refreshed.
  */
-import { applyRecipe, fitRecipe, parseRecipe, TRANSFORM_NAMES, type RecipeState } from "../engine/basis/recipe";
-import type { BasisColumn } from "../engine/basis/common";
-import { formatMessage, listNames, OddsmithError, problem, type MessageCode } from "../engine/messages";
-import { readTable, type Table } from "../engine/table";
-import type { CellValue } from "../engine/types";
+import { applyRecipe, fitRecipe, parseRecipe, TRANSFORM_NAMES, formatMessage, listNames, OddsmithError, problem, readTable, sourcesOf, type RecipeState, type BasisColumn, type MessageCode, type Table, type CellValue } from "../engine";
 import { basisCell, tableToBasisColumns } from "../functions/basisCell";
-import { sourcesOf } from "../engine/basis";
 import { absoluteReference, cellAddress, parseAddress, rectAddress, type CellRect } from "./a1";
 import type { DerivedColumns } from "./plotGeometry";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "./port";

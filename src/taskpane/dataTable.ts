@@ -4,9 +4,7 @@
  * kind, distinct levels of text columns, and a typical value (mean of a number column, most frequent
  * category of a text column) used to hold the other columns fixed in the boundary plot.
  */
-import { compareText } from "../engine/labels";
-import { readTable, type Table, type TableColumn } from "../engine/table";
-import type { CellValue } from "../engine/types";
+import { compareText, readTable, type Table, type TableColumn, type CellValue } from "../engine";
 import { type CellRect, absoluteReference, parseAddress } from "./a1";
 import type { SheetBlock } from "./port";
 

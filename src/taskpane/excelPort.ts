@@ -12,7 +12,7 @@
  * Reference: Excel JavaScript API, Range.values / Range.formulas / Range.format.fill,
  * Worksheet.getUsedRange, Range.getSurroundingRegion, Worksheet.onChanged (Office Add-ins docs).
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import { type CellRect, MAX_COLUMNS, MAX_ROWS, parseAddress, rectAddress, splitSheet } from "./a1";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "./port";
 import { grownRowCount, isBlankRow } from "./tableExtent";

@@ -21,9 +21,7 @@
  * Both report progress in phases and honour an AbortSignal: a cancelled run rejects with FitCancelled
  * and its result is never used.
  */
-import { OddsmithError } from "../engine/messages";
-import { scoreRows, trainModel, type RowScores, type TrainedModel } from "../engine/model";
-import type { CellValue } from "../engine/types";
+import { OddsmithError, scoreRows, trainModel, type RowScores, type TrainedModel, type CellValue } from "../engine";
 import { modelCache, modelCacheKey, type ModelCallOptions } from "../functions/modelCell";
 import { cellCount } from "../shared/fitCache";
 

@@ -12,7 +12,7 @@
  * first (only such formulas can spill into the range). A formula that is reached again while being
  * computed is a cycle and shows "#CYCLE!".
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import { type CellRect, MAX_COLUMNS, MAX_ROWS, parseAddress, rectAddress } from "./a1";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "./port";
 import { grownRowCount } from "./tableExtent";

@@ -7,10 +7,7 @@
  * Every workbook access goes through the WorkbookPort. Every failure becomes a status with a
  * catalogue message (what is wrong, where, what to do); nothing is only logged.
  */
-import { OddsmithError, problem } from "../engine/messages";
-import { readLabels } from "../engine/labels";
-import { scoreRows, type RowScores } from "../engine/model";
-import type { CellValue, Diagnostic } from "../engine/types";
+import { OddsmithError, problem, readLabels, scoreRows, type RowScores, type CellValue, type Diagnostic } from "../engine";
 import { fitFailure } from "../functions/modelCell";
 import { rectAddress } from "./a1";
 import { basisDerived, followTableRows, type GeneratedBasis, sourceCellsChanged, staleValuesNote, type BuilderMessage } from "./basisBuilder";

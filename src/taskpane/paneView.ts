@@ -6,7 +6,7 @@
  * Sections (top to bottom): cautions; 1 Data and model; 2 Basis columns; 3 Borderline rows;
  * 4 Boundary plot.
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 import { parseAddress, rectAddress } from "./a1";
 import {
   basisDerived,

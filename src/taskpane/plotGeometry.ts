@@ -18,9 +18,7 @@
  * a contour coordinate g maps to the data value lo + (g - 0.5) * step (each value sits at the
  * centre of its grid cell).
  */
-import { nearBoundaryRows } from "../engine/boundary";
-import type { RowScores } from "../engine/model";
-import type { CellValue } from "../engine/types";
+import { nearBoundaryRows, type RowScores, type CellValue } from "../engine";
 import type { DataTable } from "./dataTable";
 import type { SetupChoice } from "./modelSetup";
 

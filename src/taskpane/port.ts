@@ -7,7 +7,7 @@
  * Addresses are A1-style without the sheet ("B2:D40"); sheet names are passed separately.
  * Row and column numbers are 1-based sheet coordinates.
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 
 /** A rectangular block read from a sheet, with its position. */
 export interface SheetBlock {

@@ -3,9 +3,7 @@
  * (sheet row number, key values, probability, margin, flags) and a one-paragraph summary with the
  * counts. Pure: the pane renders it; tests compare it with the engine.
  */
-import { nearBoundaryRows, type BoundaryReview } from "../engine/boundary";
-import type { RowScores } from "../engine/model";
-import type { CellValue } from "../engine/types";
+import { nearBoundaryRows, type BoundaryReview, type RowScores, type CellValue } from "../engine";
 import { type DataTable, sheetRow } from "./dataTable";
 
 export interface ReviewSettings {

@@ -9,7 +9,7 @@
  * the non-blank rows directly below it and ends before the first blank row. The header row is always
  * kept, so an emptied table still reads as one row (and the parser then says it is empty).
  */
-import type { CellValue } from "../engine/types";
+import type { CellValue } from "../engine";
 
 /** True when every cell of the row is blank (null, undefined or ""). */
 export function isBlankRow(row: readonly CellValue[]): boolean {

@@ -1,6 +1,6 @@
-import { buildDesign, encodeRows, OTHER_LEVEL, skippedDetail } from "../../../src/engine/design";
+import { buildDesign, encodeRows, OTHER_LEVEL, skippedDetail } from "../../../src/engine/data/design";
 import { OddsmithError } from "../../../src/engine/messages";
-import { readTable } from "../../../src/engine/table";
+import { readTable } from "../../../src/engine/data/table";
 import type { CellValue } from "../../../src/engine/types";
 import { caught } from "../../support/caught";
 

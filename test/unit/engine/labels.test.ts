@@ -1,6 +1,6 @@
-import { compareText, readLabels, matchClass } from "../../../src/engine/labels";
+import { compareText, readLabels, matchClass } from "../../../src/engine/data/labels";
 import { OddsmithError } from "../../../src/engine/messages";
-import { readTable } from "../../../src/engine/table";
+import { readTable } from "../../../src/engine/data/table";
 import type { CellValue } from "../../../src/engine/types";
 import { caught } from "../../support/caught";
 

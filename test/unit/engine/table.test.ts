@@ -1,4 +1,4 @@
-import { detectHeader, parseNumericText, readTable, type NumericColumn, type TextColumn } from "../../../src/engine/table";
+import { detectHeader, parseNumericText, readTable, type NumericColumn, type TextColumn } from "../../../src/engine/data/table";
 import type { CellValue } from "../../../src/engine/types";
 import { caught } from "../../support/caught";
 

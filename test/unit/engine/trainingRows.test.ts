@@ -5,7 +5,7 @@
  * encodeRows gives on the same cells (values, NaN rows, per-row problems, header, first row).
  */
 import fc from "fast-check";
-import { encodeRows, type EncodedRows } from "../../../src/engine/design";
+import { encodeRows, type EncodedRows } from "../../../src/engine/data/design";
 import { trainModel } from "../../../src/engine/model";
 import type { CellValue } from "../../../src/engine/types";
 

@@ -11,8 +11,8 @@ import { MAX_PARAMETERS, PROFILE_BUDGET, scoreRows, trainModel, type ModelOption
 import { brierScore, calibrationSlope, logLoss, rocAuc } from "../../../src/engine/metrics";
 import { DEFAULT_LOG_CLIP } from "../../../src/engine/numerics";
 import { ALIAS_TOLERANCE } from "../../../src/engine/binary";
-import { MAX_CLASSES } from "../../../src/engine/labels";
-import { MAX_LEVELS } from "../../../src/engine/design";
+import { MAX_CLASSES } from "../../../src/engine/data/labels";
+import { MAX_LEVELS } from "../../../src/engine/data/design";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import * as ODDS from "../../../src/functions/functions";
 import type { CellValue } from "../../../src/engine/types";

@@ -3,7 +3,7 @@
  * policy at the top of table.ts is the specification; docs/numeric-extremes.md lists the cases.
  */
 import fc from "fast-check";
-import { readTable, type Table } from "../../../src/engine/table";
+import { readTable, type Table } from "../../../src/engine/data/table";
 import type { CellValue } from "../../../src/engine/types";
 import { anyCell, expectCatalogueError, grid, hostileText, raggedGrid, RUNS, SEED, type Range } from "./support";
 

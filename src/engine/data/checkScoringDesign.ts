@@ -2,8 +2,8 @@
  * The input check shared by predictBinary and predictMulticlass: rows to score must have one column
  * per fitted predictor term (no intercept column), all of the same length.
  */
-import { problem } from "./messages";
-import type { DesignMatrix, ModelFit } from "./types";
+import { problem } from "../messages";
+import type { DesignMatrix, ModelFit } from "../types";
 
 /**
  * Check that `X` fits the model's predictor terms and return its number of rows.

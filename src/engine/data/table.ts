@@ -34,8 +34,8 @@
  * - Positions in messages are 1-based rows and columns of the range as the user selected it (the header
  *   row, when present, is row 1).
  */
-import { problem } from "./messages";
-import type { CellValue } from "./types";
+import { problem } from "../messages";
+import type { CellValue } from "../types";
 
 export type ColumnKind = "number" | "text" | "boolean" | "empty";
 

@@ -21,7 +21,7 @@
  * - Only rows marked usable (when a mask is given) define the classes; fewer than two classes among
  *   them is ONE_CLASS_ONLY.
  */
-import { listNames, problem } from "./messages";
+import { listNames, problem } from "../messages";
 import type { TableColumn } from "./table";
 
 /** Numeric label columns with more distinct values than this are taken for measurements. */

@@ -24,10 +24,10 @@
  * - Columns of new rows are matched by name when their first row repeats the training column names
  *   (any order; extra columns ignored), otherwise by position, which needs the training width.
  */
-import { formatMessage, listNames, problem, type MessageCode } from "./messages";
+import { formatMessage, listNames, problem, type MessageCode } from "../messages";
 import { compareText } from "./labels";
 import { detectHeader, isBlankCell, normalizeRange, parseNumericText, type Table, type TableColumn } from "./table";
-import type { CellValue, DesignMatrix, Diagnostic } from "./types";
+import type { CellValue, DesignMatrix, Diagnostic } from "../types";
 
 /** Name of the pooled rare-levels category. */
 export const OTHER_LEVEL = "(other)";
