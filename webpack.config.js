@@ -96,6 +96,8 @@ module.exports = (env, argv) => {
   if (exists(src("taskpane", "taskpane.ts"))) entry.taskpane = src("taskpane", "taskpane.ts");
   // The pane's background fit (a Web Worker script) and the preview workbench (src/preview/).
   if (exists(src("taskpane", "fitWorker.ts"))) entry.fitworker = src("taskpane", "fitWorker.ts");
+  // The evaluation section's background cross-validation (a Web Worker script).
+  if (exists(src("taskpane", "evaluationWorker.ts"))) entry.evalworker = src("taskpane", "evaluationWorker.ts");
   if (exists(src("preview", "preview.ts"))) entry.preview = src("preview", "preview.ts");
 
   // ---- pages --------------------------------------------------------------------------------------

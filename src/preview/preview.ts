@@ -22,14 +22,15 @@ function start(): void {
   workbook.select(first, { top: 1, left: 1, bottom: 1, right: 1 });
   new SheetView(left, workbook);
   const runner = new URLSearchParams(location.search).get("runner");
-  const { controller } = mountPane(right, new MemoryPort(workbook), {
+  const { controller, evaluation } = mountPane(right, new MemoryPort(workbook), {
     workerUrl: "fitworker.js",
+    evaluationWorkerUrl: "evalworker.js",
     runner: runner === "worker" || runner === "inline" ? runner : "auto",
   });
   // Handles for the browser tests (read-only use). `kernels` says whether the engine's WebAssembly
   // kernels loaded under this page's Content-Security-Policy (else it runs its JavaScript kernels).
   const kernels = wasmKernels() ? "webassembly" : "javascript";
-  (window as unknown as Record<string, unknown>).oddsmithWorkbench = { workbook, controller, kernels };
+  (window as unknown as Record<string, unknown>).oddsmithWorkbench = { workbook, controller, evaluation, kernels };
 }
 
 start();

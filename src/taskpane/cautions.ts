@@ -10,3 +10,10 @@ export const CAUTIONS: readonly string[] = [
   "Check for unfair effects on groups: compare errors and borderline rows across groups, and ask whether a column stands in for a protected characteristic.",
   "Decisions about people must follow local law and professional standards, with a qualified person accountable for each decision; the model is one input, never the decision.",
 ];
+
+/** Cautions the evaluation section always shows, next to its charts and threshold chooser. */
+export const EVALUATION_CAUTIONS: readonly string[] = [
+  "Checks on the rows the model was fitted on flatter it: judge it on out-of-fold or held-out rows.",
+  "A threshold trades one kind of error for another; the cost ratio is a judgement about harms that a qualified person makes and answers for.",
+  "Compare sensitivity, specificity and calibration across groups before using the threshold on people; a good overall AUC can hide a group the model serves badly.",
+];

@@ -1,7 +1,12 @@
 /**
  * Mount the task pane (controller + view) into a container, against any WorkbookPort. Used by the
  * Office page (taskpane.ts, with the Excel port) and by the preview workbench (with the in-memory port).
+ * The evaluation section (evaluationController.ts / evaluationView.ts) goes under the pane's sections.
  */
+import { EvaluationController } from "./evaluationController";
+import { pathCompute, thresholdChooser } from "./evaluationCompute";
+import { AutoEvaluationRunner } from "./evaluationRunner";
+import { EvaluationView } from "./evaluationView";
 import { PaneController, type PaneOptions } from "./paneController";
 import { PaneView } from "./paneView";
 import type { WorkbookPort } from "./port";
@@ -9,10 +14,20 @@ import type { WorkbookPort } from "./port";
 export interface MountedPane {
   controller: PaneController;
   view: PaneView;
+  evaluation: EvaluationController;
 }
 
-export function mountPane(container: HTMLElement, port: WorkbookPort, options: Omit<PaneOptions, "port"> = {}): MountedPane {
-  const controller = new PaneController({ port, ...options });
+export interface MountOptions extends Omit<PaneOptions, "port"> {
+  /** URL of the cross-validation worker script, or null where workers cannot run. */
+  evaluationWorkerUrl?: string | null;
+}
+
+export function mountPane(container: HTMLElement, port: WorkbookPort, options: MountOptions = {}): MountedPane {
+  const { evaluationWorkerUrl = null, ...paneOptions } = options;
+  const controller = new PaneController({ port, ...paneOptions });
   const view = new PaneView(container, controller, port);
-  return { controller, view };
+  const runner = new AutoEvaluationRunner(pathCompute, evaluationWorkerUrl, paneOptions.runner ?? "auto");
+  const evaluation = new EvaluationController(controller, runner, thresholdChooser);
+  new EvaluationView(view.root, evaluation);
+  return { controller, view, evaluation };
 }

@@ -385,6 +385,8 @@ export class PaneView {
       return;
     }
     const highlighted = new Set(this.controller.highlighted);
+    // The threshold may have been moved from elsewhere (the evaluation section's chooser).
+    (this.byId("reviewThreshold") as HTMLInputElement).value = String(this.controller.reviewSettings.threshold);
     const multi = r.review.kind === "multiclass";
     // The threshold and the interval test apply to two classes only.
     (this.byId("reviewThreshold") as HTMLInputElement).disabled = multi;

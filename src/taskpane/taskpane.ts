@@ -8,6 +8,8 @@ import { mountPane } from "./pane";
 
 /** Worker script of the background fit, beside this page. */
 const WORKER_URL = "fitworker.js";
+/** Worker script of the background cross-validation, beside this page. */
+const EVAL_WORKER_URL = "evalworker.js";
 
 function outsideOffice(root: HTMLElement): void {
   const box = document.createElement("div");
@@ -39,7 +41,7 @@ function start(): void {
       return;
     }
     const port = new ExcelPort();
-    const { controller } = mountPane(root, port, { workerUrl: WORKER_URL });
+    const { controller } = mountPane(root, port, { workerUrl: WORKER_URL, evaluationWorkerUrl: EVAL_WORKER_URL });
     port.onProgress = (p) => controller.transferProgress(p);
   });
 }
