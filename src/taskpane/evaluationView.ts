@@ -39,10 +39,10 @@ function pct(level: number): string {
 
 /** The threshold chooser's ways of choosing, with the setting each one asks for. */
 const GOALS: { value: ThresholdGoal["kind"]; label: string; setting: string; initial: number; attrs: Attrs }[] = [
-  { value: "cost", label: "Cost of a false positive vs a false negative", setting: "Cost ratio (FP : FN)", initial: 1, attrs: { min: "0.001" } },
-  { value: "sensitivity", label: "Reach a sensitivity", setting: "Target sensitivity", initial: 0.9, attrs: { min: "0.01", max: "1", step: "0.01" } },
+  { value: "cost", label: "Cost ratio of errors", setting: "Cost of a false positive ÷ cost of a false negative", initial: 1, attrs: { min: "0.001" } },
+  { value: "sensitivity", label: "Target sensitivity", setting: "Target sensitivity", initial: 0.9, attrs: { min: "0.01", max: "1", step: "0.01" } },
   { value: "budget", label: "Review budget (top rows)", setting: "Rows to review", initial: 20, attrs: { min: "1", step: "1" } },
-  { value: "direct", label: "Type a threshold", setting: "Threshold", initial: 0.5, attrs: { min: "0.01", max: "0.99", step: "0.01" } },
+  { value: "direct", label: "Typed threshold", setting: "Threshold", initial: 0.5, attrs: { min: "0.01", max: "0.99", step: "0.01" } },
 ];
 
 export class EvaluationView {
@@ -86,6 +86,7 @@ export class EvaluationView {
       h("h3", {}, "Calibration by groups"),
       this.keep("calibration", h("div", { id: "osm-calibration", class: "osm-eval-chart" })),
       this.keep("calibrationCaption", h("p", { id: "osm-calibration-caption", class: "osm-note" })),
+      h("details", { class: "osm-note" }, h("summary", {}, "How the groups are cut"), CALIBRATION_GROUPING_RULE),
       this.thresholdChooser(),
       this.pathPanel(),
     );
@@ -209,7 +210,8 @@ export class EvaluationView {
     this.byId("calibrationCaption").textContent =
       `Calibration slope ${f3(s.slope.estimate)} (${pct(s.level)} interval ${f3(s.slope.lower)} to ${f3(s.slope.upper)}; 1 is ideal, below 1 means too extreme), ` +
       `intercept with slope ${f3(s.interceptWithSlope.estimate)}, calibration-in-the-large ${f3(s.intercept.estimate)} (${f3(s.intercept.lower)} to ${f3(s.intercept.upper)}; 0 is ideal). ` +
-      `${ev.calibration.groups.length} groups of ${where}; dot size shows the group's rows; the dashed line is observed = predicted. ${CALIBRATION_GROUPING_RULE}`;
+      `${ev.calibration.groups.length} groups of ${where} by predicted probability; dot size shows the group's rows; the dashed line is observed = predicted.` +
+      (ev.source === "fitted rows" ? " On its own fitted rows an unpenalized fit has slope 1 and calibration-in-the-large 0 by construction: look at out-of-fold probabilities." : "");
     const c = ev.counts;
     this.byId("thresholdNow").textContent =
       `Review threshold ${ev.threshold}: ${c.truePositives} true positives, ${c.falsePositives} false positives, ${c.trueNegatives} true negatives, ` +

@@ -1,0 +1,166 @@
+/**
+ * The evaluation section ("5 Check and decide") in the preview workbench, in headless Chromium:
+ * after a fit on the demo data the ROC curve, the calibration plot and the counts at the review's
+ * threshold match the engine's own computation in this (Node) process; moving the threshold from
+ * the chooser moves the borderline list; the charts are drawn at the pane's narrow and wide widths
+ * with no overlapping labels. Screenshots go to test-artifacts/ (look at them).
+ */
+import type { Server } from "http";
+import type { BrowserContext, Page } from "playwright-core";
+import fs from "fs";
+import { nearBoundaryRows } from "../../src/engine/boundary";
+import { rocAuc } from "../../src/engine/metrics/rocAuc";
+import { confusionCounts } from "../../src/engine/metrics/confusionCounts";
+import { scoreRows, trainModel } from "../../src/engine/model";
+import { readModelOptions } from "../../src/functions/modelCell";
+import { DEMO_SHEETS } from "../../src/preview/demo";
+import { EVALUATION_CAUTIONS } from "../../src/taskpane/cautions";
+import { BUILD_TIMEOUT_MS, ensureBuild, launch, saveArtifact, startServer } from "./harness";
+
+jest.setTimeout(120_000);
+
+/** Time the pane may take to fit, write and recalculate on the demo data (~0.5 s measured). */
+const FIT_WAIT_MS = 30_000;
+
+let server: Server;
+let base: string;
+let context: BrowserContext;
+let profile: string;
+const pageErrors: string[] = [];
+
+beforeAll(async () => {
+  ensureBuild();
+  ({ server, base } = await startServer());
+  ({ context, profile } = await launch());
+}, BUILD_TIMEOUT_MS);
+
+afterAll(async () => {
+  await context?.close();
+  server?.closeAllConnections();
+  server?.close();
+  if (profile) fs.rmSync(profile, { recursive: true, force: true });
+});
+
+async function openFitted(width: number): Promise<Page> {
+  const page = await context.newPage();
+  page.on("console", (m) => {
+    if (m.type() === "error") pageErrors.push(m.text());
+  });
+  page.on("pageerror", (e) => pageErrors.push(e.message));
+  await page.setViewportSize({ width: 1360, height: 900 });
+  await page.goto(`${base}/preview.html`);
+  await page.waitForSelector("#osm-use");
+  // Narrow the pane column to the width under test (the pane is the right-hand column).
+  // (Through the CSSOM: the page's policy refuses style elements and attributes.)
+  await page.evaluate((w) => {
+    (document.querySelector(".wb-split") as HTMLElement).style.gridTemplateColumns = `minmax(0, 1fr) ${w}px`;
+  }, width);
+  await page.click("#osm-use");
+  await page.waitForFunction(() => (document.querySelector("#osm-label") as HTMLSelectElement).options.length > 0);
+  await page.click("#osm-fit");
+  await page.waitForFunction(() => /^Fitted on/.test(document.querySelector("#osm-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+  await page.waitForSelector("#osm-roc svg");
+  return page;
+}
+
+/** The engine's probabilities for the demo data with the pane's default set-up. */
+function engineFit() {
+  const values = DEMO_SHEETS[0].values.slice(1);
+  const options = readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]);
+  const model = trainModel(values.map((r) => [r[6]]), values.map((r) => r.slice(2, 6)), options.model);
+  const scores = scoreRows(model, null, { threshold: 0.5 });
+  const labels = Float64Array.from(values, (r) => (r[6] === "yes" ? 1 : 0));
+  return { labels, p: scores.prediction.probabilities[1], model };
+}
+
+/** Bounding boxes of every text element of an SVG, in page pixels. */
+async function textBoxes(page: Page, selector: string) {
+  return page.$$eval(`${selector} svg text`, (ts) =>
+    ts.map((t) => {
+      const r = (t as SVGGraphicsElement).getBoundingClientRect();
+      return { text: t.textContent ?? "", left: r.left, right: r.right, top: r.top, bottom: r.bottom };
+    }),
+  );
+}
+
+type Box = { text: string; left: number; right: number; top: number; bottom: number };
+function overlaps(boxes: Box[]): string[] {
+  const out: string[] = [];
+  for (let i = 0; i < boxes.length; i++)
+    for (let j = i + 1; j < boxes.length; j++) {
+      const a = boxes[i];
+      const b = boxes[j];
+      if (a.left < b.right - 0.5 && b.left < a.right - 0.5 && a.top < b.bottom - 0.5 && b.top < a.bottom - 0.5) out.push(`${a.text} / ${b.text}`);
+    }
+  return out;
+}
+
+describe("evaluation section", () => {
+  test("ROC, AUC with DeLong interval and the counts at the threshold match the engine; cautions are shown", async () => {
+    const page = await openFitted(420);
+    const { labels, p } = engineFit();
+    const auc = rocAuc(labels, p, { level: 0.95 });
+    const caption = await page.textContent("#osm-roc-caption");
+    expect(caption).toContain(`AUC ${auc.auc.toFixed(3)} (95% DeLong interval ${auc.lower.toFixed(3)} to ${auc.upper.toFixed(3)}), 240 rows`);
+    const counts = confusionCounts(labels, p, { threshold: 0.5 });
+    expect(await page.textContent("#osm-threshold-now")).toContain(
+      `Review threshold 0.5: ${counts.truePositives} true positives, ${counts.falsePositives} false positives, ${counts.trueNegatives} true negatives, ${counts.falseNegatives} false negatives`,
+    );
+    const cautions = await page.textContent("#osm-eval-cautions");
+    for (const c of EVALUATION_CAUTIONS) expect(cautions).toContain(c);
+    expect(await page.$$eval("#osm-calibration .osm-cal-point", (ps) => ps.length)).toBe(10);
+    expect(await page.textContent("#osm-calibration-caption")).toMatch(/^Calibration slope \d\.\d{3} \(95% interval/);
+    await page.close();
+  });
+
+  test("typing a threshold in the chooser moves the boundary review's threshold and list", async () => {
+    const page = await openFitted(420);
+    await page.selectOption("#osm-goal", "direct");
+    await page.fill("#osm-goal-value", "0.3");
+    await page.click("#osm-goal-apply");
+    await page.waitForFunction(() => (document.querySelector("#osm-review-threshold") as HTMLInputElement).value === "0.3");
+    const { labels, p, model } = engineFit();
+    const expected = nearBoundaryRows(scoreRows(model, null, { threshold: 0.3 }).prediction, { threshold: 0.3, band: 0.1, undecided: true, limit: 200 });
+    const listed = await page.$$eval("#osm-review-table tbody tr", (trs) => trs.map((tr) => Number((tr as HTMLElement).dataset.sheetRow)));
+    expect(listed).toEqual(expected.rows.map((r) => r.row + 2));
+    expect(await page.textContent("#osm-review-summary")).toContain(`${expected.withinBand} rows lie within 0.10 of the threshold 0.30.`);
+    // The counts and the ROC marker moved with it.
+    const counts = confusionCounts(labels, p, { threshold: 0.3 });
+    expect(await page.textContent("#osm-threshold-now")).toContain(`Review threshold 0.3: ${counts.truePositives} true positives, ${counts.falsePositives} false positives`);
+    const title = await page.$eval("#osm-roc .osm-roc-marker title", (t) => t.textContent);
+    expect(title).toBe(`Threshold 0.3: sensitivity ${counts.sensitivity.toFixed(3)}, false positive rate ${(1 - counts.specificity).toFixed(3)}`);
+    // The boundary plot's legend follows the new threshold too.
+    expect(await page.textContent("#osm-plot-legend")).toContain("boundary where p = 0.3");
+    await page.close();
+  });
+
+  for (const width of [330, 450]) {
+    test(`at a pane width of ${width} px the charts fit, their labels do not overlap and stay readable`, async () => {
+      const page = await openFitted(width);
+      for (const sel of ["#osm-roc", "#osm-calibration"]) {
+        const boxes = await textBoxes(page, sel);
+        expect(overlaps(boxes)).toEqual([]);
+        const svgBox = await page.$eval(`${sel} svg`, (s) => s.getBoundingClientRect().toJSON());
+        // Inside the section (no horizontal clipping) and every label inside the drawing.
+        const section = await page.$eval("#osm-eval", (s) => s.getBoundingClientRect().toJSON());
+        expect(svgBox.right).toBeLessThanOrEqual(section.right);
+        for (const b of boxes) {
+          expect(b.left).toBeGreaterThanOrEqual(svgBox.left - 0.5);
+          expect(b.right).toBeLessThanOrEqual(svgBox.right + 0.5);
+          expect(b.bottom).toBeLessThanOrEqual(svgBox.bottom + 0.5);
+        }
+        // Tick labels at least 9 px tall on screen.
+        const heights = boxes.map((b) => b.bottom - b.top);
+        expect(Math.min(...heights)).toBeGreaterThanOrEqual(9);
+      }
+      // A tall window, so the whole pane is laid out without its own scrolling for the screenshot.
+      await page.setViewportSize({ width: 1360, height: 4200 });
+      saveArtifact(`evaluation-${width}.png`, await page.locator("#osm-eval").screenshot());
+      await page.close();
+    });
+  }
+
+  test("no page error occurred", () => {
+    expect(pageErrors).toEqual([]);
+  });
+});
