@@ -1,0 +1,196 @@
+/**
+ * The evaluation section's logic against the in-memory workbook: the ROC, AUC and counts of the
+ * pane's fit equal the engine's on the same rows; moving the threshold moves the boundary review
+ * (its list equals the engine's borderline rows at the new threshold); the cross-validation runners
+ * report progress, can be cancelled between steps, and carry failures as catalogue messages.
+ */
+import { MemoryPort, MemoryWorkbook } from "../../../src/taskpane/memoryPort";
+import { evaluateFormula } from "../../../src/preview/formulas";
+import { DEMO_SHEETS, loadDemo } from "../../../src/preview/demo";
+import { PaneController } from "../../../src/taskpane/paneController";
+import { EvaluationController, logSpacedPenalties } from "../../../src/taskpane/evaluationController";
+import {
+  answerCvRequest,
+  InlineEvaluationRunner,
+  type CvCompute,
+  type CvReply,
+  type CvResult,
+} from "../../../src/taskpane/evaluationRunner";
+import { nearBoundaryRows } from "../../../src/engine/boundary";
+import { scoreRows, trainModel } from "../../../src/engine/model";
+import { rocAuc } from "../../../src/engine/metrics/rocAuc";
+import { confusionCounts } from "../../../src/engine/metrics/confusionCounts";
+import { problem } from "../../../src/engine/messages";
+import { readModelOptions } from "../../../src/functions/modelCell";
+
+/** A stepped computation for the runner tests: `steps` progress reports, then a fixed path. */
+function countingCompute(steps: number, seen: number[] = []): CvCompute {
+  return function* (job) {
+    for (let i = 1; i <= steps; i++) {
+      seen.push(i);
+      yield { done: i, total: steps };
+    }
+    const result: CvResult = {
+      entries: job.penalties.map((penalty, i) => ({ penalty, mean: 0.6 - 0.01 * i, standardError: 0.01 })),
+      best: job.penalties.length - 1,
+      oneSe: job.penalties.length - 2,
+      folds: job.folds,
+      rows: 240,
+      outOfFold: null,
+    };
+    return result;
+  };
+}
+
+async function setUp(compute: CvCompute = countingCompute(3)) {
+  const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
+  const sheet = loadDemo(workbook);
+  workbook.select(sheet, { top: 3, left: 2, bottom: 3, right: 2 });
+  const pane = new PaneController({ port: new MemoryPort(workbook), runner: "inline", refreshDelayMs: 0 });
+  await pane.useSelection();
+  const evaluation = new EvaluationController(pane, new InlineEvaluationRunner(compute));
+  return { pane, evaluation };
+}
+
+function engine(threshold = 0.5) {
+  const values = DEMO_SHEETS[0].values.slice(1);
+  const options = readModelOptions("test", [[`penalty=0; level=0.95; threshold=${threshold}`]]);
+  const model = trainModel(values.map((r) => [r[6]]), values.map((r) => r.slice(2, 6)), options.model);
+  const p = scoreRows(model, null, { threshold }).prediction.probabilities[1];
+  const labels = Float64Array.from(values, (r) => (r[6] === "yes" ? 1 : 0));
+  return { model, p, labels };
+}
+
+describe("evaluation of the pane's fit", () => {
+  test("before a fit there is nothing to evaluate, and the view is told why", async () => {
+    const { evaluation } = await setUp();
+    expect(evaluation.evaluation.kind).toBe("unavailable");
+    expect((evaluation.evaluation as { message: string }).message).toMatch(/^Fit a model/);
+  });
+
+  test("ROC, AUC with DeLong interval and counts equal the engine's on the 240 fitted rows", async () => {
+    const { pane, evaluation } = await setUp();
+    await pane.fit(false);
+    const ev = evaluation.evaluation;
+    if (ev.kind !== "binary") throw new Error(ev.message);
+    const { p, labels } = engine();
+    expect(ev.rows).toBe(240);
+    expect(ev.positiveClass).toBe("yes");
+    expect(Array.from(ev.labels)).toEqual(Array.from(labels));
+    expect(Array.from(ev.probabilities)).toEqual(Array.from(p));
+    const auc = rocAuc(labels, p, { level: 0.95 });
+    expect(ev.auc.auc).toBe(auc.auc);
+    expect([ev.auc.lower, ev.auc.upper]).toEqual([auc.lower, auc.upper]);
+    expect(ev.counts).toEqual(confusionCounts(labels, p, { threshold: 0.5 }));
+    expect(ev.calibration.groups).toHaveLength(10);
+    // Unpenalized maximum likelihood on its own rows: slope 1 and intercept 0 (score equations).
+    expect(ev.slope.slope.estimate).toBeCloseTo(1, 6);
+    expect(ev.slope.intercept.estimate).toBeCloseTo(0, 6);
+  });
+
+  test("moving the threshold moves the boundary review: its list is the engine's at the new threshold", async () => {
+    const { pane, evaluation } = await setUp();
+    await pane.fit(false);
+    await evaluation.chooseThreshold({ kind: "direct", value: 0.3 });
+    expect(pane.reviewSettings.threshold).toBe(0.3);
+    expect(pane.choice!.threshold).toBe(0.3);
+    const { model, p, labels } = engine(0.3);
+    const expected = nearBoundaryRows(scoreRows(model, null, { threshold: 0.3 }).prediction, { threshold: 0.3, band: 0.1, undecided: true, limit: 200 });
+    expect(pane.review!.lines.map((l) => l.dataRow)).toEqual(expected.rows.map((r) => r.row));
+    expect(pane.review!.summary).toContain("of the threshold 0.30.");
+    const ev = evaluation.evaluation;
+    if (ev.kind !== "binary") throw new Error(ev.message);
+    expect(ev.threshold).toBe(0.3);
+    expect(ev.counts).toEqual(confusionCounts(labels, p, { threshold: 0.3 }));
+  });
+
+  test("a threshold outside (0, 1) is refused with a catalogue message and changes nothing", async () => {
+    const { pane, evaluation } = await setUp();
+    await pane.fit(false);
+    await evaluation.moveThreshold(1.2);
+    expect(pane.reviewSettings.threshold).toBe(0.5);
+    expect(evaluation.status.phase).toBe("failed");
+    expect(evaluation.status.message).toContain("threshold");
+  });
+
+  test("a threshold chooser's answer becomes the review's threshold, with its note", async () => {
+    const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
+    const sheet = loadDemo(workbook);
+    workbook.select(sheet, { top: 3, left: 2, bottom: 3, right: 2 });
+    const pane = new PaneController({ port: new MemoryPort(workbook), runner: "inline", refreshDelayMs: 0 });
+    await pane.useSelection();
+    const asked: unknown[] = [];
+    const evaluation = new EvaluationController(pane, new InlineEvaluationRunner(countingCompute(1)), (labels, probabilities, kind, value) => {
+      asked.push([labels.length, probabilities.length, kind, value]);
+      return { threshold: 0.42, note: "note from the chooser" };
+    });
+    await pane.fit(false);
+    await evaluation.chooseThreshold({ kind: "cost", value: 2 });
+    expect(asked).toEqual([[240, 240, "cost", 2]]);
+    expect(pane.reviewSettings.threshold).toBe(0.42);
+    expect(evaluation.chooserNote).toBe("note from the chooser");
+  });
+
+  test("a multi-class label gets a plain message instead of ROC and calibration", async () => {
+    const { pane, evaluation } = await setUp();
+    const grade = pane.data!.columns.findIndex((c) => c.name === "grade");
+    pane.setChoice({ label: grade });
+    await pane.fit(false);
+    expect(evaluation.evaluation.kind).toBe("unavailable");
+    expect((evaluation.evaluation as { message: string }).message).toMatch(/for two classes/);
+  });
+});
+
+describe("cross-validation runs", () => {
+  test("log-spaced penalties: ends included, evenly spaced in log10, 4 significant digits", () => {
+    expect(logSpacedPenalties(0.001, 100, 6)).toEqual([0.001, 0.01, 0.1, 1, 10, 100]);
+    expect(logSpacedPenalties(1, 100, 3)).toEqual([1, 10, 100]);
+    expect(logSpacedPenalties(0.01, 1, 4)).toEqual([0.01, 0.04642, 0.2154, 1]);
+    expect(() => logSpacedPenalties(0, 1, 3)).toThrow(/penalty range/);
+  });
+
+  test("progress is reported step by step and the path lands with its marks", async () => {
+    const { pane, evaluation } = await setUp(countingCompute(4));
+    const progress: (number | null)[] = [];
+    evaluation.subscribe((c) => {
+      if (c === "status" && evaluation.status.busy) progress.push(evaluation.status.progress);
+    });
+    await evaluation.runPath({ folds: 5, seed: 1, penalties: [0.01, 0.1, 1] });
+    expect(progress).toEqual([0, 0.25, 0.5, 0.75, 1]);
+    expect(evaluation.status.phase).toBe("done");
+    expect(evaluation.path!.entries.map((e) => e.penalty)).toEqual([0.01, 0.1, 1]);
+    expect(evaluation.status.message).toContain("lowest out-of-fold log-loss at penalty 1; the one-standard-error choice is 0.1");
+    evaluation.adoptPathPenalty();
+    expect(pane.choice!.penalty).toBe(0.1);
+  });
+
+  test("cancel stops between steps: no further step runs and the previous path is kept", async () => {
+    const seen: number[] = [];
+    const { evaluation } = await setUp(countingCompute(50, seen));
+    const run = evaluation.runPath({ folds: 5, seed: 1, penalties: [0.1, 1] });
+    await new Promise((r) => setTimeout(r, 15));
+    evaluation.cancelPath();
+    await run;
+    expect(evaluation.status.phase).toBe("cancelled");
+    expect(evaluation.path).toBeNull();
+    const stoppedAt = seen.length;
+    expect(stoppedAt).toBeLessThan(50);
+    await new Promise((r) => setTimeout(r, 20));
+    expect(seen.length).toBe(stoppedAt);
+  });
+
+  test("the worker's protocol posts each step, then the result; a catalogue failure keeps its message", () => {
+    const replies: CvReply[] = [];
+    const job = { labels: [], predictors: [], options: {}, folds: 3, seed: 1, penalties: [1, 2] };
+    answerCvRequest({ id: 7, job }, countingCompute(2), (r) => replies.push(r));
+    expect(replies.map((r) => Object.keys(r).filter((k) => k !== "id")[0])).toEqual(["progress", "progress", "result"]);
+    expect(replies.every((r) => r.id === 7)).toBe(true);
+    const failing: CvCompute = function* () {
+      throw problem("BAD_OPTION_VALUE", { name: "folds", value: 1, expected: "Use 2 or more folds." });
+    };
+    const out: CvReply[] = [];
+    answerCvRequest({ id: 8, job }, failing, (r) => out.push(r));
+    expect(out).toHaveLength(1);
+    expect("failure" in out[0] && out[0].failure.message).toContain("Use 2 or more folds.");
+  });
+});
