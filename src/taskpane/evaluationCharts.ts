@@ -5,6 +5,7 @@
  * marked choices differ by shape as well as colour. All text goes in with textContent.
  */
 import type { CalibrationChart, ChartAxes, PathChart, RocChart } from "./evaluationGeometry";
+import { CLASS_COLOURS, CLASS_SHAPES, markerPath } from "./plot";
 
 const SVG = "http://www.w3.org/2000/svg";
 /** Curve colour (the pane's accent), reference-line grey, and the marker colours (blue / orange). */
@@ -70,6 +71,21 @@ export function renderRocChart(container: HTMLElement, chart: RocChart): SVGSVGE
 export function renderCalibrationChart(container: HTMLElement, chart: CalibrationChart): SVGSVGElement {
   const root = chartRoot(chart.axes, "Calibration by groups of predicted probability", "is-calibration");
   root.append(svg("path", { d: chart.ideal, class: "osm-eval-reference", fill: "none", stroke: REFERENCE, "stroke-dasharray": "4 3" }));
+  if (chart.series.length) {
+    // Split by a column: one line per value, colour AND shape per value (the overall points are left out).
+    chart.series.forEach((s, k) => {
+      const colour = CLASS_COLOURS[k % CLASS_COLOURS.length];
+      const shape = CLASS_SHAPES[k % CLASS_SHAPES.length];
+      root.append(svg("path", { d: s.line, class: "osm-cal-series-line", fill: "none", stroke: colour, "stroke-width": 1.3, "data-series": k }));
+      for (const p of s.points) {
+        const mark = svg("path", { d: markerPath(shape, p.x, p.y, p.r * 0.8), class: "osm-cal-series-point", fill: colour, "fill-opacity": 0.85, stroke: "#fff", "stroke-width": 0.8, "data-series": k });
+        titled(mark, `${s.name}, ${p.rows} rows: mean predicted ${p.meanPredicted.toFixed(3)}, observed ${p.observedRate.toFixed(3)}`);
+        root.append(mark);
+      }
+    });
+    container.replaceChildren(root);
+    return root;
+  }
   root.append(svg("path", { d: chart.line, class: "osm-cal-line", fill: "none", stroke: CURVE, "stroke-width": 1.4 }));
   for (const p of chart.points) {
     const dot = svg("circle", { cx: p.x, cy: p.y, r: p.r, class: "osm-cal-point", fill: CURVE, "fill-opacity": 0.8, stroke: "#fff", "stroke-width": 1 });

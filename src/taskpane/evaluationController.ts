@@ -32,6 +32,21 @@ import { CvCancelled, type CvJob, type CvOutcome, type CvProgress, type Evaluati
 /** Groups of the calibration chart (deciles of predicted probability, the common practice). */
 export const CALIBRATION_GROUPS = 10;
 
+/** Groups of each split value's calibration line (fewer rows per value: quintiles). */
+export const SPLIT_CALIBRATION_GROUPS = 5;
+/** Most values a split column may have (one line each; more would not be readable). */
+export const MAX_SPLIT_VALUES = 6;
+/** Values with fewer evaluated rows than this get no line (too few for five groups); the caption says so. */
+export const MIN_SPLIT_ROWS = 10;
+
+/** Calibration per value of a split column. */
+export interface CalibrationSplit {
+  column: string;
+  series: { name: string; rows: number; table: CalibrationTable }[];
+  /** Values left out for having fewer than MIN_SPLIT_ROWS rows. */
+  tooSmall: string[];
+}
+
 /** The evaluation of a two-class fit on the rows it was fitted on. */
 export interface BinaryEvaluation {
   kind: "binary";
@@ -49,6 +64,8 @@ export interface BinaryEvaluation {
   slope: CalibrationSlopeResult;
   threshold: number;
   counts: ConfusionCounts;
+  /** Calibration per value of the chosen split column, or null. */
+  split: CalibrationSplit | null;
 }
 
 export type Evaluation = BinaryEvaluation | { kind: "unavailable"; message: string };
@@ -138,7 +155,38 @@ export function evaluateBinary(
     slope: calibrationSlope(labels, probabilities, { level }),
     threshold,
     counts: confusionCounts(labels, probabilities, { threshold }),
+    split: null,
   };
+}
+
+/**
+ * Calibration tables per value of a column over the evaluated rows (a blank is its own value,
+ * "(blank)"). Values with fewer than MIN_SPLIT_ROWS rows are listed in `tooSmall`.
+ */
+export function calibrationSplit(
+  ev: Pick<BinaryEvaluation, "labels" | "probabilities" | "dataRows">,
+  name: string,
+  valueOf: (dataRow: number) => string,
+): CalibrationSplit {
+  const byValue = new Map<string, number[]>();
+  ev.dataRows.forEach((row, k) => {
+    const v = valueOf(row);
+    const list = byValue.get(v);
+    if (list) list.push(k);
+    else byValue.set(v, [k]);
+  });
+  const series: CalibrationSplit["series"] = [];
+  const tooSmall: string[] = [];
+  for (const [value, ks] of [...byValue].sort((a, b) => (a[0] < b[0] ? -1 : a[0] > b[0] ? 1 : 0))) {
+    if (ks.length < MIN_SPLIT_ROWS) {
+      tooSmall.push(value);
+      continue;
+    }
+    const labels = Float64Array.from(ks, (k) => ev.labels[k]);
+    const probabilities = Float64Array.from(ks, (k) => ev.probabilities[k]);
+    series.push({ name: value, rows: ks.length, table: calibrationTable(labels, probabilities, { groups: SPLIT_CALIBRATION_GROUPS }) });
+  }
+  return { column: name, series, tooSmall };
 }
 
 export class EvaluationController {
@@ -149,6 +197,8 @@ export class EvaluationController {
   /** Use the out-of-fold probabilities of the last path (at its one-SE penalty) instead of the fitted rows'. */
   useOutOfFold = false;
 
+  /** Column (0-based table index) whose values split the calibration plot, or null. */
+  splitColumn: number | null = null;
   /** What the last threshold choice found (how, and what it means), for the view. */
   chooserNote = "";
 
@@ -198,6 +248,11 @@ export class EvaluationController {
       const oof = this.useOutOfFold ? this.outOfFoldInput() : null;
       const input = oof ?? fittedRowsEvaluation(this.pane);
       this.evaluation = typeof input === "string" ? { kind: "unavailable", message: input } : evaluateBinary(input, this.threshold, level, oof ? "out-of-fold" : "fitted rows");
+      const data = this.pane.data;
+      if (this.evaluation.kind === "binary" && data && this.splitColumn !== null && this.splitCandidates().includes(this.splitColumn)) {
+        const col = data.table.columns[this.splitColumn];
+        this.evaluation.split = calibrationSplit(this.evaluation, data.columns[this.splitColumn].name, (row) => (col.missing[row] ? "(blank)" : String(col.values[row])));
+      }
     } catch (e) {
       const message = e instanceof OddsmithError ? e.message : problem("INTERNAL", { doing: "evaluating the model" }).message;
       this.evaluation = { kind: "unavailable", message };
@@ -220,6 +275,24 @@ export class EvaluationController {
       labels: Float64Array.from(keep, (k) => fitted.labels[k]),
       probabilities: Float64Array.from(keep, (k) => oof[fitted.dataRows[k]]),
     };
+  }
+
+  /** The pane's table (for column names), or null. */
+  paneData(): PaneController["data"] {
+    return this.pane.data;
+  }
+
+  /** Columns that can split the calibration plot: 2 to MAX_SPLIT_VALUES distinct values, not the label. */
+  splitCandidates(): number[] {
+    const { data, choice } = this.pane;
+    if (!data || !choice) return [];
+    return data.columns.filter((c) => c.index !== choice.label && !c.allDistinct && c.levels.length >= 2 && c.levels.length <= MAX_SPLIT_VALUES).map((c) => c.index);
+  }
+
+  /** Split the calibration plot by a column's values (null: one line over all rows). */
+  setSplit(column: number | null): void {
+    this.splitColumn = column;
+    this.recompute();
   }
 
   /** Switch the charts between the fitted rows and the last path's out-of-fold probabilities. */

@@ -189,6 +189,14 @@ export interface CalibrationPoint {
   r: number;
 }
 
+/** The calibration points of one group of rows (a value of the split column). */
+export interface CalibrationSeries {
+  name: string;
+  rows: number;
+  points: CalibrationPoint[];
+  line: string;
+}
+
 export interface CalibrationChart {
   axes: ChartAxes;
   points: CalibrationPoint[];
@@ -196,16 +204,14 @@ export interface CalibrationChart {
   line: string;
   /** The line of perfect calibration, observed = predicted. */
   ideal: string;
+  /** One series per value of a split column (empty without a split). */
+  series: CalibrationSeries[];
 }
 
-/** Everything the calibration chart draws, from the groups of a calibration table. */
-export function buildCalibrationChart(
-  groups: readonly { meanPredicted: number; observedRate: number; rows: number }[],
-  frame: Frame = EVAL_FRAME,
-): CalibrationChart {
-  const { axes, sx, sy } = unitAxes(frame, "Mean predicted probability (group)", "Observed share positive (group)");
-  const most = Math.max(1, ...groups.map((g) => g.rows));
-  const points = groups.map((g) => ({
+type GroupRow = { meanPredicted: number; observedRate: number; rows: number };
+
+function placeGroups(groups: readonly GroupRow[], sx: (v: number) => number, sy: (v: number) => number, most: number): CalibrationPoint[] {
+  return groups.map((g) => ({
     meanPredicted: g.meanPredicted,
     observedRate: g.observedRate,
     rows: g.rows,
@@ -213,14 +219,34 @@ export function buildCalibrationChart(
     y: sy(g.observedRate),
     r: 2.5 + 3.5 * Math.sqrt(g.rows / most),
   }));
+}
+
+/**
+ * Everything the calibration chart draws, from the groups of a calibration table, and optionally
+ * one series per value of a split column (each from its own calibration table). Marker sizes share
+ * one scale across all of them.
+ */
+export function buildCalibrationChart(
+  groups: readonly GroupRow[],
+  frame: Frame = EVAL_FRAME,
+  split: readonly { name: string; rows: number; groups: readonly GroupRow[] }[] = [],
+): CalibrationChart {
+  const { axes, sx, sy } = unitAxes(frame, "Mean predicted probability (group)", "Observed share positive (group)");
+  const most = Math.max(1, ...groups.map((g) => g.rows), ...split.flatMap((s) => s.groups.map((g) => g.rows)));
+  const points = placeGroups(groups, sx, sy, most);
+  const lineOf = (ps: CalibrationPoint[]) => pathOf(ps.map((p) => [p.x, p.y] as [number, number]));
   return {
     axes,
     points,
-    line: pathOf(points.map((p) => [p.x, p.y] as [number, number])),
+    line: lineOf(points),
     ideal: pathOf([
       [sx(0), sy(0)],
       [sx(1), sy(1)],
     ]),
+    series: split.map((s) => {
+      const ps = placeGroups(s.groups, sx, sy, most);
+      return { name: s.name, rows: s.rows, points: ps, line: lineOf(ps) };
+    }),
   };
 }
 

@@ -6,7 +6,14 @@
  */
 import { CALIBRATION_GROUPING_RULE } from "../engine/metrics/calibrationTable";
 import { renderCalibrationChart, renderPathChart, renderRocChart } from "./evaluationCharts";
-import { type EvaluationChange, type EvaluationController, logSpacedPenalties, type ThresholdGoal } from "./evaluationController";
+import {
+  type EvaluationChange,
+  type EvaluationController,
+  logSpacedPenalties,
+  MIN_SPLIT_ROWS,
+  SPLIT_CALIBRATION_GROUPS,
+  type ThresholdGoal,
+} from "./evaluationController";
 import { buildCalibrationChart, buildPathChart, buildRocChart } from "./evaluationGeometry";
 import { EVALUATION_CAUTIONS } from "./cautions";
 
@@ -84,7 +91,9 @@ export class EvaluationView {
       this.keep("roc", h("div", { id: "osm-roc", class: "osm-eval-chart" })),
       this.keep("rocCaption", h("p", { id: "osm-roc-caption", class: "osm-note" })),
       h("h3", {}, "Calibration by groups"),
+      this.splitPicker(),
       this.keep("calibration", h("div", { id: "osm-calibration", class: "osm-eval-chart" })),
+      this.keep("calibrationLegend", h("ul", { id: "osm-calibration-legend", class: "osm-legend" })),
       this.keep("calibrationCaption", h("p", { id: "osm-calibration-caption", class: "osm-note" })),
       h("details", { class: "osm-note" }, h("summary", {}, "How the groups are cut"), CALIBRATION_GROUPING_RULE),
       this.thresholdChooser(),
@@ -106,6 +115,28 @@ export class EvaluationView {
       h("label", { class: "osm-inline" }, fitted, " Fitted rows (in-sample: flatters the model)"),
       h("label", { class: "osm-inline" }, oof, " Out-of-fold (after cross-validation, below)"),
     );
+  }
+
+  private splitPicker(): HTMLElement {
+    const select = this.keep("split", h("select", { id: "osm-cal-split" }));
+    select.addEventListener("change", () => {
+      const v = (select as HTMLSelectElement).value;
+      this.controller.setSplit(v === "" ? null : Number(v));
+    });
+    return h("label", { class: "osm-field" }, h("span", {}, "One line per value of"), select);
+  }
+
+  private renderSplitPicker(): void {
+    const select = this.byId<HTMLSelectElement>("split");
+    const data = this.controller.paneData();
+    const none = h("option", { value: "" }, "(all rows together)");
+    const options = this.controller.splitCandidates().map((i) => {
+      const o = h("option", { value: String(i) }, data?.columns[i].name ?? "");
+      o.selected = i === this.controller.splitColumn;
+      return o;
+    });
+    none.selected = this.controller.splitColumn === null;
+    select.replaceChildren(none, ...options);
   }
 
   private thresholdChooser(): HTMLElement {
@@ -194,6 +225,7 @@ export class EvaluationView {
       unavailable.hidden = false;
       for (const c of charts) c.replaceChildren();
       for (const k of ["rocCaption", "calibrationCaption", "thresholdNow"]) this.byId(k).textContent = "";
+      this.byId("calibrationLegend").replaceChildren();
       (this.byId("goalApply") as HTMLButtonElement).disabled = true;
       return;
     }
@@ -205,12 +237,21 @@ export class EvaluationView {
     this.byId("rocCaption").textContent =
       `AUC ${f3(a.auc)} (${pct(a.level)} DeLong interval ${f3(a.lower)} to ${f3(a.upper)}), ${ev.rows.toLocaleString("en-US")} rows of ${where}, ` +
       `positive class "${ev.positiveClass}". The orange dot is the review threshold ${ev.threshold}; the dashed line is a model that ranks at random.`;
-    renderCalibrationChart(this.byId("calibration"), buildCalibrationChart(ev.calibration.groups));
+    this.renderSplitPicker();
+    const split = ev.split;
+    const series = split ? split.series.map((x) => ({ name: x.name, rows: x.rows, groups: x.table.groups })) : [];
+    renderCalibrationChart(this.byId("calibration"), buildCalibrationChart(ev.calibration.groups, undefined, series));
+    this.byId("calibrationLegend").replaceChildren(
+      ...series.map((x, k) => h("li", { class: `osm-legend-item is-class-${k % 6}` }, h("span", { class: "osm-swatch", "aria-hidden": "true" }), `${x.name} (${x.rows} rows)`)),
+    );
     const s = ev.slope;
     this.byId("calibrationCaption").textContent =
       `Calibration slope ${f3(s.slope.estimate)} (${pct(s.level)} interval ${f3(s.slope.lower)} to ${f3(s.slope.upper)}; 1 is ideal, below 1 means too extreme), ` +
       `intercept with slope ${f3(s.interceptWithSlope.estimate)}, calibration-in-the-large ${f3(s.intercept.estimate)} (${f3(s.intercept.lower)} to ${f3(s.intercept.upper)}; 0 is ideal). ` +
       `${ev.calibration.groups.length} groups of ${where} by predicted probability; dot size shows the group's rows; the dashed line is observed = predicted.` +
+      (split
+        ? ` Lines per value of ${split.column}, ${SPLIT_CALIBRATION_GROUPS} groups each${split.tooSmall.length ? `; not drawn (under ${MIN_SPLIT_ROWS} rows): ${split.tooSmall.join(", ")}` : ""}. A gap between lines is a statistical association in this data, not a cause.`
+        : "") +
       (ev.source === "fitted rows" ? " On its own fitted rows an unpenalized fit has slope 1 and calibration-in-the-large 0 by construction: look at out-of-fold probabilities." : "");
     const c = ev.counts;
     this.byId("thresholdNow").textContent =

@@ -134,6 +134,20 @@ describe("evaluation section", () => {
     await page.close();
   });
 
+  test("the calibration plot split by block draws one line per block with a legend", async () => {
+    const page = await openFitted(420);
+    await page.selectOption("#osm-cal-split", { label: "block" });
+    await page.waitForSelector("#osm-calibration .osm-cal-series-line");
+    const blocks = [...new Set(DEMO_SHEETS[0].values.slice(1).map((r) => String(r[1])))].sort();
+    expect(await page.$$eval("#osm-calibration .osm-cal-series-line", (ls) => ls.length)).toBe(blocks.length);
+    const legend = await page.$$eval("#osm-calibration-legend li", (ls) => ls.map((l) => l.textContent));
+    expect(legend.map((t) => t!.replace(/ \(\d+ rows\)$/, ""))).toEqual(blocks);
+    expect(await page.textContent("#osm-calibration-caption")).toContain("a statistical association in this data, not a cause");
+    expect(overlaps(await textBoxes(page, "#osm-calibration"))).toEqual([]);
+    saveArtifact("evaluation-calibration-split.png", await page.locator("#osm-calibration").screenshot());
+    await page.close();
+  });
+
   for (const width of [330, 450]) {
     test(`at a pane width of ${width} px the charts fit, their labels do not overlap and stay readable`, async () => {
       const page = await openFitted(width);

@@ -20,6 +20,7 @@ import { nearBoundaryRows } from "../../../src/engine/boundary";
 import { scoreRows, trainModel } from "../../../src/engine/model";
 import { rocAuc } from "../../../src/engine/metrics/rocAuc";
 import { confusionCounts } from "../../../src/engine/metrics/confusionCounts";
+import { calibrationTable } from "../../../src/engine/metrics/calibrationTable";
 import { problem } from "../../../src/engine/messages";
 import { readModelOptions } from "../../../src/functions/modelCell";
 
@@ -129,6 +130,30 @@ describe("evaluation of the pane's fit", () => {
     expect(asked).toEqual([[240, 240, "cost", 2]]);
     expect(pane.reviewSettings.threshold).toBe(0.42);
     expect(evaluation.chooserNote).toBe("note from the chooser");
+  });
+
+  test("split by a column: one calibration table per value, each the engine's table on that value's rows", async () => {
+    const { pane, evaluation } = await setUp();
+    await pane.fit(false);
+    const block = pane.data!.columns.findIndex((c) => c.name === "block");
+    expect(evaluation.splitCandidates()).toContain(block);
+    expect(evaluation.splitCandidates()).not.toContain(pane.choice!.label);
+    evaluation.setSplit(block);
+    const ev = evaluation.evaluation;
+    if (ev.kind !== "binary") throw new Error(ev.message);
+    const values = DEMO_SHEETS[0].values.slice(1);
+    const names = [...new Set(values.map((r) => String(r[1])))].sort();
+    expect(ev.split!.series.map((x) => x.name)).toEqual(names);
+    const { p, labels } = engine();
+    for (const x of ev.split!.series) {
+      const rows = values.map((r, i) => (r[1] === x.name ? i : -1)).filter((i) => i >= 0);
+      expect(x.rows).toBe(rows.length);
+      const expected = calibrationTable(Float64Array.from(rows, (i) => labels[i]), Float64Array.from(rows, (i) => p[i]), { groups: 5 });
+      expect(x.table.groups).toEqual(expected.groups);
+    }
+    expect(ev.split!.tooSmall).toEqual([]);
+    evaluation.setSplit(null);
+    expect((evaluation.evaluation as { split: unknown }).split).toBeNull();
   });
 
   test("a multi-class label gets a plain message instead of ROC and calibration", async () => {
