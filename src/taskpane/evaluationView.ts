@@ -16,24 +16,7 @@ import {
 } from "./evaluationController";
 import { buildCalibrationChart, buildPathChart, buildRocChart } from "./evaluationGeometry";
 import { EVALUATION_CAUTIONS } from "./cautions";
-
-type Attrs = Record<string, string>;
-
-function h<K extends keyof HTMLElementTagNameMap>(tag: K, attrs: Attrs = {}, ...children: (Node | string)[]): HTMLElementTagNameMap[K] {
-  const e = document.createElement(tag);
-  for (const [k, v] of Object.entries(attrs)) {
-    if (k === "class") e.className = v;
-    else e.setAttribute(k, v);
-  }
-  for (const c of children) e.append(typeof c === "string" ? document.createTextNode(c) : c);
-  return e;
-}
-
-function numberInput(id: string, value: number, attrs: Attrs = {}): HTMLInputElement {
-  const input = h("input", { id, type: "number", step: "any", ...attrs });
-  input.value = String(value);
-  return input;
-}
+import { type Attrs, h, numberInput } from "./dom";
 
 /** A number for a caption: 3 decimals, or "n/a" when undefined. */
 function f3(v: number): string {

@@ -23,18 +23,7 @@ import { CAUTIONS, CAUTIONS_TITLE } from "./cautions";
 import type { PaneController, PaneChange } from "./paneController";
 import { renderPlot } from "./plot";
 import type { WorkbookPort } from "./port";
-
-type Attrs = Record<string, string>;
-
-function h<K extends keyof HTMLElementTagNameMap>(tag: K, attrs: Attrs = {}, ...children: (Node | string)[]): HTMLElementTagNameMap[K] {
-  const e = document.createElement(tag);
-  for (const [k, v] of Object.entries(attrs)) {
-    if (k === "class") e.className = v;
-    else e.setAttribute(k, v);
-  }
-  for (const c of children) e.append(typeof c === "string" ? document.createTextNode(c) : c);
-  return e;
-}
+import { h, numberInput } from "./dom";
 
 function fmtNumber(v: number, digits = 3): string {
   if (!Number.isFinite(v)) return "";
@@ -46,12 +35,6 @@ function cellText(v: CellValue): string {
   if (typeof v === "number") return Number.isInteger(v) ? String(v) : String(Number(v.toPrecision(5)));
   if (typeof v === "boolean") return v ? "TRUE" : "FALSE";
   return String(v);
-}
-
-function numberInput(id: string, value: number, attrs: Attrs = {}): HTMLInputElement {
-  const input = h("input", { id, type: "number", step: "any", ...attrs });
-  input.value = String(value);
-  return input;
 }
 
 /** Per-column transforms offered by the basis section, with their main setting. */
