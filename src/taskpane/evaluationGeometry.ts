@@ -327,3 +327,35 @@ export function buildPathChart(entries: readonly PathEntry[], best: number, oneS
     leftOut: entries.length - keep.length,
   };
 }
+
+/**
+ * The threshold of the ROC point nearest a pixel position (a click on the chart), as the shortest
+ * decimal that gives the same operating point: a number in (next lower score, point's score], so
+ * "positive when p >= threshold" flags exactly the rows of that point. Points whose threshold is not
+ * strictly between 0 and 1 (the start at +Infinity) are never chosen.
+ */
+export function thresholdNearPixel(curve: RocCurve, x: number, y: number, frame: Frame = EVAL_FRAME): number | null {
+  const inner = innerBox(frame);
+  const sx = linearScale([0, 1], [inner.left, inner.right]);
+  const sy = linearScale([0, 1], [inner.bottom, inner.top]);
+  let best = -1;
+  let bestDistance = Infinity;
+  const n = curve.thresholds.length;
+  for (let i = 0; i < n; i++) {
+    const t = curve.thresholds[i];
+    if (!(t > 0 && t < 1)) continue;
+    const d = (sx(curve.falsePositiveRate[i]) - x) ** 2 + (sy(curve.truePositiveRate[i]) - y) ** 2;
+    if (d < bestDistance) {
+      bestDistance = d;
+      best = i;
+    }
+  }
+  if (best < 0) return null;
+  const t = curve.thresholds[best];
+  const lower = best + 1 < n ? curve.thresholds[best + 1] : 0;
+  for (let digits = 1; digits <= 12; digits++) {
+    const c = Math.floor(t * 10 ** digits) / 10 ** digits;
+    if (c > lower && c <= t && c > 0) return Number(c.toFixed(digits));
+  }
+  return t;
+}

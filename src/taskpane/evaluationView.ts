@@ -14,7 +14,7 @@ import {
   SPLIT_CALIBRATION_GROUPS,
   type ThresholdGoal,
 } from "./evaluationController";
-import { buildCalibrationChart, buildPathChart, buildRocChart } from "./evaluationGeometry";
+import { buildCalibrationChart, buildPathChart, buildRocChart, thresholdNearPixel } from "./evaluationGeometry";
 import { EVALUATION_CAUTIONS } from "./cautions";
 import { type Attrs, h, numberInput } from "./dom";
 
@@ -71,7 +71,7 @@ export class EvaluationView {
       this.sourcePicker(),
       this.keep("unavailable", h("p", { id: "osm-eval-unavailable", class: "osm-note" })),
       h("h3", {}, "ROC curve"),
-      this.keep("roc", h("div", { id: "osm-roc", class: "osm-eval-chart" })),
+      this.rocArea(),
       this.keep("rocCaption", h("p", { id: "osm-roc-caption", class: "osm-note" })),
       h("h3", {}, "Calibration by groups"),
       this.splitPicker(),
@@ -98,6 +98,21 @@ export class EvaluationView {
       h("label", { class: "osm-inline" }, fitted, " Fitted rows (in-sample: flatters the model)"),
       h("label", { class: "osm-inline" }, oof, " Out-of-fold (after cross-validation, below)"),
     );
+  }
+
+  /** The ROC chart's area: a click on the curve moves the review's threshold to that point. */
+  private rocArea(): HTMLElement {
+    const area = this.keep("roc", h("div", { id: "osm-roc", class: "osm-eval-chart is-clickable", title: "Click a point of the curve to move the review threshold there" }));
+    area.addEventListener("click", (event) => {
+      const ev = this.controller.evaluation;
+      const svgEl = area.querySelector("svg");
+      const ctm = svgEl?.getScreenCTM();
+      if (ev.kind !== "binary" || !svgEl || !ctm) return;
+      const at = new DOMPoint(event.clientX, event.clientY).matrixTransform(ctm.inverse());
+      const t = thresholdNearPixel(ev.curve, at.x, at.y);
+      if (t !== null) void this.controller.chooseThreshold({ kind: "direct", value: t });
+    });
+    return area;
   }
 
   private splitPicker(): HTMLElement {
@@ -219,7 +234,7 @@ export class EvaluationView {
     renderRocChart(this.byId("roc"), buildRocChart(ev.curve, a, ev.threshold));
     this.byId("rocCaption").textContent =
       `AUC ${f3(a.auc)} (${pct(a.level)} DeLong interval ${f3(a.lower)} to ${f3(a.upper)}), ${ev.rows.toLocaleString("en-US")} rows of ${where}, ` +
-      `positive class "${ev.positiveClass}". The orange dot is the review threshold ${ev.threshold}; the dashed line is a model that ranks at random.`;
+      `positive class "${ev.positiveClass}". The orange dot is the review threshold ${ev.threshold} (click the curve to move it); the dashed line is a model that ranks at random.`;
     this.renderSplitPicker();
     const split = ev.split;
     const series = split ? split.series.map((x) => ({ name: x.name, rows: x.rows, groups: x.table.groups })) : [];

@@ -134,6 +134,30 @@ describe("evaluation section", () => {
     await page.close();
   });
 
+  test("clicking the ROC curve moves the review threshold to that point", async () => {
+    const page = await openFitted(420);
+    await page.$eval("#osm-roc", (e) => e.scrollIntoView({ block: "center" }));
+    // A point about a third of the way along the drawn curve, in page coordinates.
+    const target = await page.$eval("#osm-roc .osm-roc-curve", (path) => {
+      const p = path as SVGPathElement;
+      const pt = p.getPointAtLength(p.getTotalLength() / 3);
+      const m = p.getScreenCTM()!;
+      return { x: pt.x * m.a + pt.y * m.c + m.e, y: pt.x * m.b + pt.y * m.d + m.f };
+    });
+    await page.mouse.click(target.x, target.y);
+    await page.waitForFunction(() => (document.querySelector("#osm-review-threshold") as HTMLInputElement).value !== "0.5");
+    const t = Number(await page.inputValue("#osm-review-threshold"));
+    expect(t).toBeGreaterThan(0);
+    expect(t).toBeLessThan(1);
+    const { labels, p } = engineFit();
+    const counts = confusionCounts(labels, p, { threshold: t });
+    expect(await page.textContent("#osm-threshold-now")).toContain(`Review threshold ${t}: ${counts.truePositives} true positives, ${counts.falsePositives} false positives`);
+    // The marker sits where the click was (within a few pixels of the curve point).
+    const marker = await page.$eval("#osm-roc .osm-roc-marker", (c) => c.getBoundingClientRect().toJSON());
+    expect(Math.hypot(marker.x + marker.width / 2 - target.x, marker.y + marker.height / 2 - target.y)).toBeLessThan(8);
+    await page.close();
+  });
+
   test("the calibration plot split by block draws one line per block with a legend", async () => {
     const page = await openFitted(420);
     await page.selectOption("#osm-cal-split", { label: "block" });

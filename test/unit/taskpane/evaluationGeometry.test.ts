@@ -13,6 +13,7 @@ import {
   EVAL_FRAME,
   logTicks,
   operatingPointIndex,
+  thresholdNearPixel,
   thinPolyline,
   tickLabel,
 } from "../../../src/taskpane/evaluationGeometry";
@@ -61,6 +62,24 @@ describe("ROC chart", () => {
     expect(operatingPointIndex(curve, 0.4)).toBe(2);
     expect(operatingPointIndex(curve, 0.35)).toBe(3);
     expect(operatingPointIndex(curve, 0.95)).toBe(0);
+  });
+});
+
+describe("clicking the ROC curve", () => {
+  const curve = rocCurve(LABELS, SCORES);
+  test("a click picks the nearest point's threshold as the shortest decimal with the same operating point", () => {
+    // Near (0.5, 1) = after 0.35: any t in (0.1, 0.35] flags the same rows; 0.3 is the shortest such decimal.
+    expect(thresholdNearPixel(curve, X0 + 0.5 * XW + 3, Y0 - YH + 2)).toBe(0.3);
+    // Near (0, 0.5) = after 0.8: (0.4, 0.8] -> 0.8; near (0.5, 0.5) = after 0.4: (0.35, 0.4] -> 0.4.
+    expect(thresholdNearPixel(curve, X0 + 1, Y0 - 0.5 * YH)).toBe(0.8);
+    expect(thresholdNearPixel(curve, X0 + 0.5 * XW, Y0 - 0.5 * YH - 1)).toBe(0.4);
+    // The start (threshold +Infinity) is never chosen: a click at (0, 0) takes the nearest real point.
+    expect(thresholdNearPixel(curve, X0, Y0)).toBe(0.8);
+    for (const [x, y] of [[X0 + 0.5 * XW + 3, Y0 - YH + 2], [X0 + 0.5 * XW, Y0 - 0.5 * YH - 1]]) {
+      const t = thresholdNearPixel(curve, x, y)!;
+      const k = operatingPointIndex(curve, t);
+      expect(Math.hypot(X0 + curve.falsePositiveRate[k] * XW - x, Y0 - curve.truePositiveRate[k] * YH - y)).toBeLessThan(4);
+    }
   });
 });
 
