@@ -73,6 +73,23 @@ for (let i = 1; i <= ROWS; i++) {
   rows.push([`C-${String(i).padStart(3, "0")}`, block, days, firmness, brix, bruises, held, grade]);
 }
 
+// The validate-and-decide sheet: formulas over the crates (no data of its own). Fitted-row checks
+// first, labelled as in-sample; the out-of-fold and threshold steps follow as the functions exist.
+const LABELS = "Crates!$G$1:$G$241";
+const PREDICTORS = "Crates!$C$1:$F$241";
+const check = [
+  ["Check and decide: is the held-back model good enough, and where to put its threshold?", null, null, null],
+  ["Fitted probability", null, "Step", "Result"],
+  [`=ODDS.PROB(${LABELS}, ${PREDICTORS})`, null, "1. Ranking on the fitted rows (in-sample: flatters the model)", `=ODDS.AUC(${LABELS}, A3:A243, "positive=yes")`],
+];
+const checkRows = Array.from({ length: 46 }, (_, i) => check[i] ?? [null, null, null, null]);
+const put = (row, step, formula) => {
+  checkRows[row - 1] = [checkRows[row - 1][0], null, step, formula];
+};
+put(6, "2. Counts at the threshold 0.5 on the fitted rows", `=ODDS.CONFUSION(${LABELS}, A3:A243, "positive=yes; threshold=0.5")`);
+put(21, "3. Calibration by deciles on the fitted rows", `=ODDS.CALIBRATION(${LABELS}, A3:A243, "positive=yes")`);
+put(46, "A model finds associations in this data, not causes. Judge it on rows it was not fitted on, compare groups, and let a qualified person decide about people.", null);
+
 const out = {
   provenance: {
     tool: "scripts/make-demo-workbook.mjs (Node.js, mulberry32 generator)",
@@ -87,12 +104,19 @@ const out = {
       left: 1,
       values: rows,
     },
+    {
+      name: "Check",
+      top: 1,
+      left: 1,
+      values: checkRows,
+    },
   ],
 };
 const here = path.dirname(fileURLToPath(import.meta.url));
 const file = path.resolve(here, "../src/preview/demoWorkbook.json");
 // One crate per line keeps the file readable and its diffs small.
-const text = JSON.stringify(out, null, 2).replace(/\[\n\s+("C-\d+"|"crate")[\s\S]*?\n\s+\]/g, (m) => JSON.stringify(JSON.parse(m)));
+// Every innermost array (a row of cells) on one line.
+const text = JSON.stringify(out, null, 2).replace(/\[\n\s+(?:null|-?[\d.]+|"(?:[^"\\]|\\.)*")(?:,\n\s+(?:null|-?[\d.]+|"(?:[^"\\]|\\.)*"))*\n\s+\]/g, (m) => JSON.stringify(JSON.parse(m)));
 fs.writeFileSync(file, text + "\n");
 const heldCount = rows.slice(1).filter((r) => r[6] === "yes").length;
 process.stdout.write(`Wrote ${file}: ${ROWS} crates, ${heldCount} held back.\n`);

@@ -198,6 +198,20 @@ describe("evaluation section", () => {
     });
   }
 
+  test("the demo workbook's Check sheet shows the validate-and-decide steps, computed", async () => {
+    const page = await context.newPage();
+    page.on("pageerror", (e) => pageErrors.push(e.message));
+    await page.goto(`${base}/preview.html`);
+    await page.click('.ledger-tab[data-sheet="Check"]');
+    await page.waitForSelector('.ledger-table td[data-row="4"][data-col="4"]');
+    const { labels, p } = engineFit();
+    const shown = Number(await page.textContent('.ledger-table td[data-row="4"][data-col="4"]'));
+    expect(shown).toBeCloseTo(rocAuc(labels, p).auc, 3);
+    expect(await page.$$eval(".ledger-table td.is-error", (tds) => tds.length)).toBe(0);
+    saveArtifact("workbench-check-sheet.png", await page.screenshot({ fullPage: false }));
+    await page.close();
+  });
+
   test("no page error occurred", () => {
     expect(pageErrors).toEqual([]);
   });
