@@ -245,7 +245,8 @@ describe("pane fit and borderline review", () => {
     controller.cancel();
     await run;
     expect(controller.status.phase).toBe("cancelled");
-    expect(workbook.sheetNames()).toEqual(["Crates"]);
+    // No results sheet: only the demo workbook's own sheets.
+    expect(workbook.sheetNames()).toEqual(DEMO_SHEETS.map((s) => s.name));
     expect(controller.outcome).toBeNull();
   });
 
