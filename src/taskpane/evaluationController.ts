@@ -208,7 +208,7 @@ export class EvaluationController {
 
   constructor(
     private readonly pane: PaneController,
-    private readonly runner: EvaluationRunner,
+    private readonly runner: EvaluationRunner | null,
     private readonly chooser: ThresholdChooser | null = null,
   ) {
     this.unsubscribe = pane.subscribe((change) => {
@@ -234,6 +234,16 @@ export class EvaluationController {
   private setStatus(status: Partial<EvaluationStatus> & { phase: EvaluationStatus["phase"]; message: string }): void {
     this.status = { progress: null, busy: false, ...status };
     this.emit("status");
+  }
+
+  /** True when this build can run a cross-validation path (the engine's computation is present). */
+  get canRunPath(): boolean {
+    return this.runner !== null;
+  }
+
+  /** True when the threshold can be chosen by cost, sensitivity or budget (else typed or clicked only). */
+  get canChooseByGoal(): boolean {
+    return this.chooser !== null;
   }
 
   /** The threshold the boundary review uses now. */
@@ -326,11 +336,7 @@ export class EvaluationController {
       return;
     }
     if (ev.kind !== "binary") return;
-    if (!this.chooser) {
-      this.chooserNote = "Choosing by cost, sensitivity or budget needs the threshold choice of the engine, which this build lacks; type a threshold instead.";
-      this.emit("evaluation");
-      return;
-    }
+    if (!this.chooser) return;
     try {
       const found = this.chooser(ev.labels, ev.probabilities, goal.kind, goal.value);
       this.chooserNote = found.note;
@@ -377,10 +383,10 @@ export class EvaluationController {
           busy: true,
         });
       };
+      if (!this.runner) throw problem("INTERNAL", { doing: "cross-validating" });
       const outcome = await this.runner.run(job, onProgress, abort.signal);
       if (abort.signal.aborted) throw new CvCancelled();
-      this.path = outcome;
-      this.emit("path");
+      this.setPath(outcome);
       const best = outcome.entries[outcome.best];
       const oneSe = outcome.entries[outcome.oneSe];
       this.setStatus({
@@ -398,6 +404,16 @@ export class EvaluationController {
     } finally {
       if (this.abort === abort) this.abort = null;
     }
+  }
+
+  /** Show a path (the outcome of a run); null clears it and leaves the out-of-fold view. */
+  setPath(path: CvOutcome | null): void {
+    this.path = path;
+    if (!path?.outOfFold && this.useOutOfFold) {
+      this.useOutOfFold = false;
+      this.recompute();
+    }
+    this.emit("path");
   }
 
   /** Stop a running path. */

@@ -315,7 +315,7 @@ export function buildPathChart(entries: readonly PathEntry[], best: number, oneS
       frame,
       inner,
       xTicks: logTicks(10 ** (lx - padX), 10 ** (hx + padX), sx),
-      yTicks: linearTicks(yDomain, sy, 4),
+      yTicks: linearTicks(yDomain, sy, 6),
       xTitle: "Penalty (log scale)",
       yTitle: "Out-of-fold log-loss",
     },

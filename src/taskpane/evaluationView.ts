@@ -93,7 +93,7 @@ export class EvaluationView {
     oof.addEventListener("change", change);
     return h(
       "div",
-      { class: "osm-field", role: "radiogroup", "aria-label": "Probabilities checked" },
+      { class: "osm-field", role: "radiogroup", "aria-label": "Probabilities checked", ...(this.controller.canRunPath ? {} : { hidden: "" }) },
       h("span", {}, "Probabilities checked"),
       h("label", { class: "osm-inline" }, fitted, " Fitted rows (in-sample: flatters the model)"),
       h("label", { class: "osm-inline" }, oof, " Out-of-fold (after cross-validation, below)"),
@@ -138,9 +138,11 @@ export class EvaluationView {
   }
 
   private thresholdChooser(): HTMLElement {
-    const goal = this.keep("goal", h("select", { id: "osm-goal" }, ...GOALS.map((g) => h("option", { value: g.value }, g.label))));
-    const caption = this.keep("goalCaption", h("span", { id: "osm-goal-caption" }, GOALS[0].setting));
-    const value = this.keep("goalValue", numberInput("osm-goal-value", GOALS[0].initial, GOALS[0].attrs));
+    // Without the engine's threshold choice the threshold is typed (or clicked on the ROC curve).
+    const goals = this.controller.canChooseByGoal ? GOALS : GOALS.filter((g) => g.value === "direct");
+    const goal = this.keep("goal", h("select", { id: "osm-goal" }, ...goals.map((g) => h("option", { value: g.value }, g.label))));
+    const caption = this.keep("goalCaption", h("span", { id: "osm-goal-caption" }, goals[0].setting));
+    const value = this.keep("goalValue", numberInput("osm-goal-value", goals[0].initial, goals[0].attrs));
     goal.addEventListener("change", () => {
       const g = GOALS.find((x) => x.value === (goal as HTMLSelectElement).value)!;
       caption.textContent = g.setting;
@@ -183,26 +185,31 @@ export class EvaluationView {
     cancel.addEventListener("click", () => this.controller.cancelPath());
     const adopt = this.keep("adopt", h("button", { id: "osm-cv-adopt", type: "button" }, "Use the one-SE penalty in the set-up"));
     adopt.addEventListener("click", () => this.controller.adoptPathPenalty());
-    return h(
-      "div",
-      { class: "osm-eval-block", id: "osm-cv" },
-      h("h3", {}, "Cross-validation path"),
+    const controls: Attrs = this.controller.canRunPath ? {} : { hidden: "" };
+    // Shown when this build can run a path, or when a path is at hand (renderPath).
+    return this.keep(
+      "cvBlock",
       h(
         "div",
-        { class: "osm-grid3" },
-        h("label", { class: "osm-field" }, h("span", {}, "Folds"), folds),
-        h("label", { class: "osm-field" }, h("span", {}, "Seed"), seed),
-        h("label", { class: "osm-field" }, h("span", {}, "Penalties"), count),
-        h("label", { class: "osm-field" }, h("span", {}, "From"), from),
-        h("label", { class: "osm-field" }, h("span", {}, "To"), to),
+        { class: "osm-eval-block", id: "osm-cv" },
+        h("h3", {}, "Cross-validation path"),
+        h(
+          "div",
+          { class: "osm-grid3", ...controls },
+          h("label", { class: "osm-field" }, h("span", {}, "Folds"), folds),
+          h("label", { class: "osm-field" }, h("span", {}, "Seed"), seed),
+          h("label", { class: "osm-field" }, h("span", {}, "Penalties"), count),
+          h("label", { class: "osm-field" }, h("span", {}, "From"), from),
+          h("label", { class: "osm-field" }, h("span", {}, "To"), to),
+        ),
+        h("div", { class: "osm-row", ...controls }, run, cancel),
+        this.keep("cvProgress", h("progress", { id: "osm-cv-progress", max: "1" })),
+        this.keep("cvStatus", h("p", { id: "osm-cv-status", role: "status", "aria-live": "polite", class: "osm-status" })),
+        this.keep("path", h("div", { id: "osm-cv-chart", class: "osm-eval-chart" })),
+        this.keep("pathLegend", h("ul", { id: "osm-cv-legend", class: "osm-legend" })),
+        this.keep("pathCaption", h("p", { id: "osm-cv-caption", class: "osm-note" })),
+        h("div", { class: "osm-row" }, adopt),
       ),
-      h("div", { class: "osm-row" }, run, cancel),
-      this.keep("cvProgress", h("progress", { id: "osm-cv-progress", max: "1" })),
-      this.keep("cvStatus", h("p", { id: "osm-cv-status", role: "status", "aria-live": "polite", class: "osm-status" })),
-      this.keep("path", h("div", { id: "osm-cv-chart", class: "osm-eval-chart" })),
-      this.keep("pathLegend", h("ul", { id: "osm-cv-legend", class: "osm-legend" })),
-      this.keep("pathCaption", h("p", { id: "osm-cv-caption", class: "osm-note" })),
-      h("div", { class: "osm-row" }, adopt),
     );
   }
 
@@ -250,7 +257,7 @@ export class EvaluationView {
       (split
         ? ` Lines per value of ${split.column}, ${SPLIT_CALIBRATION_GROUPS} groups each${split.tooSmall.length ? `; not drawn (under ${MIN_SPLIT_ROWS} rows): ${split.tooSmall.join(", ")}` : ""}. A gap between lines is a statistical association in this data, not a cause.`
         : "") +
-      (ev.source === "fitted rows" ? " On its own fitted rows an unpenalized fit has slope 1 and calibration-in-the-large 0 by construction: look at out-of-fold probabilities." : "");
+      (ev.source === "fitted rows" ? " On its own fitted rows an unpenalized fit has slope 1 and calibration-in-the-large 0 by construction: judge calibration on rows it was not fitted on." : "");
     const c = ev.counts;
     this.byId("thresholdNow").textContent =
       `Review threshold ${ev.threshold}: ${c.truePositives} true positives, ${c.falsePositives} false positives, ${c.trueNegatives} true negatives, ` +
@@ -265,6 +272,7 @@ export class EvaluationView {
     const legend = this.byId("pathLegend");
     (this.byId("sourceOof") as HTMLInputElement).disabled = !path?.outOfFold;
     (this.byId("adopt") as HTMLButtonElement).disabled = !path;
+    this.byId("cvBlock").hidden = !this.controller.canRunPath && !path;
     if (!path) {
       area.replaceChildren();
       legend.replaceChildren();

@@ -11,4 +11,7 @@ const scope = self as unknown as {
   postMessage(message: CvReply): void;
 };
 
-scope.onmessage = (event) => answerCvRequest(event.data, pathCompute, (reply) => scope.postMessage(reply));
+scope.onmessage = (event) => {
+  if (pathCompute) answerCvRequest(event.data, pathCompute, (reply) => scope.postMessage(reply));
+  else scope.postMessage({ id: event.data.id, failure: { message: "This build has no cross-validation." } });
+};

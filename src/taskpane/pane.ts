@@ -26,7 +26,7 @@ export function mountPane(container: HTMLElement, port: WorkbookPort, options: M
   const { evaluationWorkerUrl = null, ...paneOptions } = options;
   const controller = new PaneController({ port, ...paneOptions });
   const view = new PaneView(container, controller, port);
-  const runner = new AutoEvaluationRunner(pathCompute, evaluationWorkerUrl, paneOptions.runner ?? "auto");
+  const runner = pathCompute ? new AutoEvaluationRunner(pathCompute, evaluationWorkerUrl, paneOptions.runner ?? "auto") : null;
   const evaluation = new EvaluationController(controller, runner, thresholdChooser);
   new EvaluationView(view.root, evaluation);
   return { controller, view, evaluation };

@@ -198,6 +198,34 @@ describe("evaluation section", () => {
     });
   }
 
+  test("a cross-validation path is drawn at 330 px with SE bars, both marks and a legend, labels apart", async () => {
+    const page = await openFitted(330);
+    // A given path (the drawing is under test here, not the computation): 11 penalties, 5 folds.
+    await page.evaluate(() => {
+      const penalties = [0.001, 0.00398, 0.01585, 0.0631, 0.2512, 1, 3.981, 15.85, 63.1, 251.2, 1000];
+      const means = [0.652, 0.651, 0.649, 0.645, 0.639, 0.634, 0.636, 0.648, 0.668, 0.684, 0.69];
+      const entries = penalties.map((penalty, i) => ({ penalty, mean: means[i], standardError: 0.012 + 0.001 * i }));
+      const w = window as unknown as { oddsmithWorkbench: { evaluation: { setPath(p: unknown): void } } };
+      w.oddsmithWorkbench.evaluation.setPath({ entries, best: 5, oneSe: 6, folds: 5, rows: 240, outOfFold: null, elapsedMs: 0, runner: "inline" });
+    });
+    await page.waitForSelector("#osm-cv-chart svg");
+    // The run controls show exactly when this build can run a path.
+    const canRun = await page.evaluate(() => (window as unknown as { oddsmithWorkbench: { evaluation: { canRunPath: boolean } } }).oddsmithWorkbench.evaluation.canRunPath);
+    expect(await page.isVisible("#osm-cv-run")).toBe(canRun);
+    expect(await page.isVisible("#osm-cv-chart svg")).toBe(true);
+    expect(await page.$$eval("#osm-cv-chart .osm-path-bar", (b) => b.length)).toBe(11);
+    expect(await page.$$eval("#osm-cv-chart .osm-path-best", (b) => b.length)).toBe(1);
+    expect(await page.$$eval("#osm-cv-chart .osm-path-onese", (b) => b.length)).toBe(1);
+    expect(await page.textContent("#osm-cv-legend")).toContain("lowest log-loss (penalty 1)");
+    expect(await page.textContent("#osm-cv-legend")).toContain("one-SE choice (penalty 3.981)");
+    expect(overlaps(await textBoxes(page, "#osm-cv-chart"))).toEqual([]);
+    await page.click("#osm-cv-adopt");
+    expect(await page.inputValue("#osm-penalty")).toBe("3.981");
+    await page.setViewportSize({ width: 1360, height: 4200 });
+    saveArtifact("evaluation-path-330.png", await page.locator("#osm-cv").screenshot());
+    await page.close();
+  });
+
   test("the demo workbook's Check sheet shows the validate-and-decide steps, computed", async () => {
     const page = await context.newPage();
     page.on("pageerror", (e) => pageErrors.push(e.message));
