@@ -116,7 +116,7 @@ export function fittedRowsEvaluation(pane: PaneController): { labels: Float64Arr
   if (!data || !choice || !outcome) return "Fit a model (section 1) to see its ROC curve, calibration and threshold choice here.";
   if (fitFailure(outcome.model)) return "The last fit gave no usable model, so there is nothing to evaluate.";
   if (outcome.model.kind !== "binary") {
-    return "The ROC curve, calibration plot and threshold choice are for two classes; this label column has more. Cross-validation below works for both.";
+    return "The ROC curve, calibration plot and threshold choice are for two classes; this label column has more.";
   }
   const positiveClass = outcome.model.labels.positiveClass ?? outcome.scores.classes[1];
   const info = readLabels(data.table.columns[choice.label], { positive: positiveClass });
