@@ -197,6 +197,9 @@ export class EvaluationController {
   /** Use the out-of-fold probabilities of the last path (at its one-SE penalty) instead of the fitted rows'. */
   useOutOfFold = false;
 
+  /** The model and path the current evaluation was computed from (see recompute). */
+  private evaluatedModel: object | null = null;
+  private evaluatedPath: CvOutcome | null = null;
   /** Column (0-based table index) whose values split the calibration plot, or null. */
   splitColumn: number | null = null;
   /** What the last threshold choice found (how, and what it means), for the view. */
@@ -255,9 +258,20 @@ export class EvaluationController {
   recompute(): void {
     try {
       const level = this.pane.choice?.level ?? 0.95;
-      const oof = this.useOutOfFold ? this.outOfFoldInput() : null;
-      const input = oof ?? fittedRowsEvaluation(this.pane);
-      this.evaluation = typeof input === "string" ? { kind: "unavailable", message: input } : evaluateBinary(input, this.threshold, level, oof ? "out-of-fold" : "fitted rows");
+      const prior = this.evaluation;
+      const model = this.pane.outcome?.model ?? null;
+      const source = this.useOutOfFold && this.path?.outOfFold ? "out-of-fold" : "fitted rows";
+      if (prior.kind === "binary" && model === this.evaluatedModel && source === prior.source && level === prior.auc.level && this.evaluatedPath === this.path) {
+        // Same model and probabilities: only the threshold moved (the review re-scored the classes).
+        // The curve, AUC, calibration and slope stand; the counts are taken again.
+        this.evaluation = { ...prior, threshold: this.threshold, counts: confusionCounts(prior.labels, prior.probabilities, { threshold: this.threshold }), split: null };
+      } else {
+        const oof = this.useOutOfFold ? this.outOfFoldInput() : null;
+        const input = oof ?? fittedRowsEvaluation(this.pane);
+        this.evaluation = typeof input === "string" ? { kind: "unavailable", message: input } : evaluateBinary(input, this.threshold, level, oof ? "out-of-fold" : "fitted rows");
+        this.evaluatedModel = model;
+        this.evaluatedPath = this.path;
+      }
       const data = this.pane.data;
       if (this.evaluation.kind === "binary" && data && this.splitColumn !== null && this.splitCandidates().includes(this.splitColumn)) {
         const col = data.table.columns[this.splitColumn];

@@ -105,6 +105,26 @@ describe("evaluation of the pane's fit", () => {
     expect(ev.counts).toEqual(confusionCounts(labels, p, { threshold: 0.3 }));
   });
 
+  test("a threshold move keeps the curve, AUC and calibration (same probabilities) and retakes the counts; a refit recomputes all", async () => {
+    const { pane, evaluation } = await setUp();
+    await pane.fit(false);
+    const first = evaluation.evaluation;
+    if (first.kind !== "binary") throw new Error(first.message);
+    await evaluation.moveThreshold(0.35);
+    const moved = evaluation.evaluation;
+    if (moved.kind !== "binary") throw new Error(moved.message);
+    expect(moved.curve).toBe(first.curve);
+    expect(moved.auc).toBe(first.auc);
+    expect(moved.slope).toBe(first.slope);
+    expect(moved.counts).toEqual(confusionCounts(first.labels, first.probabilities, { threshold: 0.35 }));
+    pane.setChoice({ penalty: 1 });
+    await pane.fit(false);
+    const refit = evaluation.evaluation;
+    if (refit.kind !== "binary") throw new Error(refit.message);
+    expect(refit.curve).not.toBe(first.curve);
+    expect(refit.auc.auc).not.toBe(first.auc.auc);
+  });
+
   test("a threshold outside (0, 1) is refused with a catalogue message and changes nothing", async () => {
     const { pane, evaluation } = await setUp();
     await pane.fit(false);
