@@ -351,8 +351,25 @@ export function thresholdNearPixel(curve: RocCurve, x: number, y: number, frame:
     }
   }
   if (best < 0) return null;
-  const t = curve.thresholds[best];
-  const lower = best + 1 < n ? curve.thresholds[best + 1] : 0;
+  return shortestThreshold(curve.thresholds[best], best + 1 < n ? curve.thresholds[best + 1] : 0);
+}
+
+/**
+ * The threshold of the next operating point along the ROC curve from the one `threshold` gives:
+ * `step` +1 moves towards (1, 1) (a lower threshold, more rows flagged), -1 towards (0, 0); as the
+ * shortest decimal giving that point (see thresholdNearPixel). Null when there is no further point
+ * strictly inside (0, 1).
+ */
+export function steppedThreshold(curve: RocCurve, threshold: number, step: 1 | -1): number | null {
+  const n = curve.thresholds.length;
+  let k = operatingPointIndex(curve, threshold) + step;
+  while (k >= 0 && k < n && !(curve.thresholds[k] > 0 && curve.thresholds[k] < 1)) k += step;
+  if (k < 0 || k >= n) return null;
+  return shortestThreshold(curve.thresholds[k], k + 1 < n ? curve.thresholds[k + 1] : 0);
+}
+
+/** The shortest decimal in (lower, t]: the same rows satisfy p >= it as p >= t. */
+export function shortestThreshold(t: number, lower: number): number {
   for (let digits = 1; digits <= 12; digits++) {
     const c = Math.floor(t * 10 ** digits) / 10 ** digits;
     if (c > lower && c <= t && c > 0) return Number(c.toFixed(digits));

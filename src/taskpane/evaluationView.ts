@@ -14,7 +14,7 @@ import {
   SPLIT_CALIBRATION_GROUPS,
   type ThresholdGoal,
 } from "./evaluationController";
-import { buildCalibrationChart, buildPathChart, buildRocChart, thresholdNearPixel } from "./evaluationGeometry";
+import { buildCalibrationChart, buildPathChart, buildRocChart, steppedThreshold, thresholdNearPixel } from "./evaluationGeometry";
 import { EVALUATION_CAUTIONS } from "./cautions";
 import { type Attrs, h, numberInput } from "./dom";
 
@@ -102,7 +102,23 @@ export class EvaluationView {
 
   /** The ROC chart's area: a click on the curve moves the review's threshold to that point. */
   private rocArea(): HTMLElement {
-    const area = this.keep("roc", h("div", { id: "osm-roc", class: "osm-eval-chart is-clickable", title: "Click a point of the curve to move the review threshold there" }));
+    const area = this.keep(
+      "roc",
+      h("div", {
+        id: "osm-roc",
+        class: "osm-eval-chart is-clickable",
+        tabindex: "0",
+        title: "Click a point of the curve (or use the arrow keys) to move the review threshold there",
+      }),
+    );
+    area.addEventListener("keydown", (event) => {
+      const ev = this.controller.evaluation;
+      const step = event.key === "ArrowRight" || event.key === "ArrowUp" ? 1 : event.key === "ArrowLeft" || event.key === "ArrowDown" ? -1 : 0;
+      if (ev.kind !== "binary" || step === 0) return;
+      event.preventDefault();
+      const t = steppedThreshold(ev.curve, ev.threshold, step);
+      if (t !== null) void this.controller.chooseThreshold({ kind: "direct", value: t });
+    });
     area.addEventListener("click", (event) => {
       const ev = this.controller.evaluation;
       const svgEl = area.querySelector("svg");
@@ -241,7 +257,7 @@ export class EvaluationView {
     renderRocChart(this.byId("roc"), buildRocChart(ev.curve, a, ev.threshold));
     this.byId("rocCaption").textContent =
       `AUC ${f3(a.auc)} (${pct(a.level)} DeLong interval ${f3(a.lower)} to ${f3(a.upper)}), ${ev.rows.toLocaleString("en-US")} rows of ${where}, ` +
-      `positive class "${ev.positiveClass}". The orange dot is the review threshold ${ev.threshold} (click the curve to move it); the dashed line is a model that ranks at random.`;
+      `positive class "${ev.positiveClass}". The orange dot is the review threshold ${ev.threshold} (click the curve, or focus it and use the arrow keys, to move it); the dashed line is a model that ranks at random.`;
     this.renderSplitPicker();
     const split = ev.split;
     const series = split ? split.series.map((x) => ({ name: x.name, rows: x.rows, groups: x.table.groups })) : [];

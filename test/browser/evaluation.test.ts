@@ -158,6 +158,23 @@ describe("evaluation section", () => {
     await page.close();
   });
 
+  test("with the ROC chart focused, the arrow keys step the review threshold along the curve", async () => {
+    const page = await openFitted(420);
+    await page.focus("#osm-roc");
+    await page.keyboard.press("ArrowRight");
+    await page.waitForFunction(() => (document.querySelector("#osm-review-threshold") as HTMLInputElement).value !== "0.5");
+    const down = Number(await page.inputValue("#osm-review-threshold"));
+    expect(down).toBeLessThan(0.5);
+    const { p } = engineFit();
+    // One operating point further: exactly one more distinct probability is flagged.
+    const flagged = (t: number) => new Set(Array.from(p).filter((v) => v >= t)).size;
+    expect(flagged(down)).toBe(flagged(0.5) + 1);
+    await page.keyboard.press("ArrowLeft");
+    await page.waitForFunction((d) => (document.querySelector("#osm-review-threshold") as HTMLInputElement).value !== String(d), down);
+    expect(flagged(Number(await page.inputValue("#osm-review-threshold")))).toBe(flagged(0.5));
+    await page.close();
+  });
+
   test("the calibration plot split by block draws one line per block with a legend", async () => {
     const page = await openFitted(420);
     await page.selectOption("#osm-cal-split", { label: "block" });

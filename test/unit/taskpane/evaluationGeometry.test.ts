@@ -13,6 +13,7 @@ import {
   EVAL_FRAME,
   logTicks,
   operatingPointIndex,
+  steppedThreshold,
   thresholdNearPixel,
   thinPolyline,
   tickLabel,
@@ -80,6 +81,21 @@ describe("clicking the ROC curve", () => {
       const k = operatingPointIndex(curve, t);
       expect(Math.hypot(X0 + curve.falsePositiveRate[k] * XW - x, Y0 - curve.truePositiveRate[k] * YH - y)).toBeLessThan(4);
     }
+  });
+});
+
+describe("stepping along the ROC curve (arrow keys)", () => {
+  const curve = rocCurve(LABELS, SCORES);
+  test("each step goes to the neighbouring operating point, as its shortest threshold; the ends stop", () => {
+    // Points after 0.8, 0.4, 0.35, 0.1 (shortest thresholds 0.8, 0.4, 0.3, 0.1).
+    expect(steppedThreshold(curve, 0.8, 1)).toBe(0.4);
+    expect(steppedThreshold(curve, 0.4, 1)).toBe(0.3);
+    expect(steppedThreshold(curve, 0.3, 1)).toBe(0.1);
+    expect(steppedThreshold(curve, 0.1, 1)).toBeNull();
+    expect(steppedThreshold(curve, 0.3, -1)).toBe(0.4);
+    expect(steppedThreshold(curve, 0.8, -1)).toBeNull();
+    // From a threshold between points (0.5 gives the point after 0.8): one step down is 0.4.
+    expect(steppedThreshold(curve, 0.5, 1)).toBe(0.4);
   });
 });
 
