@@ -12,6 +12,7 @@
  */
 import { OddsmithError, type CellValue, type ModelOptions } from "../engine";
 import { yieldToPage } from "./fitRunner";
+import { callWorker } from "./workerCall";
 import type { PathEntry } from "./evaluationGeometry";
 
 /** Above this many input cells times fits the path runs in a worker (when the page can start one). */
@@ -134,41 +135,16 @@ export class WorkerEvaluationRunner implements EvaluationRunner {
   constructor(private readonly url: string) {}
 
   run(job: CvJob, onProgress: (p: CvProgress) => void, signal: AbortSignal): Promise<CvOutcome> {
-    return new Promise((resolve, reject) => {
-      if (signal.aborted) {
-        reject(new CvCancelled());
-        return;
+    const handle = (reply: CvReply) => {
+      if ("progress" in reply) {
+        onProgress(reply.progress);
+        return null;
       }
-      const id = this.nextId++;
-      const worker = new Worker(this.url);
-      const end = () => {
-        worker.terminate();
-        signal.removeEventListener("abort", onAbort);
-      };
-      const onAbort = () => {
-        end();
-        reject(new CvCancelled());
-      };
-      signal.addEventListener("abort", onAbort);
-      worker.onmessage = (event: MessageEvent<CvReply>) => {
-        const reply = event.data;
-        if (reply.id !== id) return;
-        if ("progress" in reply) onProgress(reply.progress);
-        else if ("result" in reply) {
-          end();
-          resolve({ ...reply.result, elapsedMs: reply.elapsedMs, runner: "worker" });
-        } else {
-          end();
-          reject(new CvFailed(reply.failure.message, reply.failure.code));
-        }
-      };
-      worker.onerror = (event) => {
-        event.preventDefault();
-        end();
-        reject(new CvFailed("The background cross-validation stopped unexpectedly."));
-      };
-      worker.postMessage({ id, job } satisfies CvRequest);
-    });
+      if ("result" in reply) return { done: { ...reply.result, elapsedMs: reply.elapsedMs, runner: "worker" as const } };
+      return { failed: new CvFailed(reply.failure.message, reply.failure.code) };
+    };
+    const errors = { cancelled: () => new CvCancelled(), crashed: () => new CvFailed("The background cross-validation stopped unexpectedly.") };
+    return callWorker<CvRequest, CvReply, CvOutcome>(this.url, { id: this.nextId++, job }, signal, handle, errors);
   }
 }
 

@@ -24,6 +24,7 @@
 import { OddsmithError, scoreRows, trainModel, type RowScores, type TrainedModel, type CellValue } from "../engine";
 import { modelCache, modelCacheKey, type ModelCallOptions } from "../functions/modelCell";
 import { cellCount } from "../shared/fitCache";
+import { callWorker } from "./workerCall";
 
 /** Above this many input cells the pane fits in a worker (when the page can start one). */
 export const INLINE_CELL_LIMIT = 50_000;
@@ -152,44 +153,20 @@ export class WorkerFitRunner implements FitRunner {
   constructor(private readonly url: string) {}
 
   run(job: FitJob, onPhase: (phase: FitPhase) => void, signal: AbortSignal): Promise<FitOutcome> {
-    return new Promise((resolve, reject) => {
-      if (signal.aborted) {
-        reject(new FitCancelled());
-        return;
+    const handle = (reply: WorkerReply) => {
+      if ("phase" in reply) {
+        onPhase(reply.phase);
+        return null;
       }
-      const id = this.nextId++;
-      const worker = new Worker(this.url);
-      const end = () => {
-        worker.terminate();
-        signal.removeEventListener("abort", onAbort);
-      };
-      const onAbort = () => {
-        end();
-        reject(new FitCancelled());
-      };
-      signal.addEventListener("abort", onAbort);
-      worker.onmessage = (event: MessageEvent<WorkerReply>) => {
-        const reply = event.data;
-        if (reply.id !== id) return;
-        if ("phase" in reply) onPhase(reply.phase);
-        else if ("outcome" in reply) {
-          end();
-          // The formulas the pane writes next compute this same key: they find the model, not refit.
-          shareModel(job, reply.outcome.model);
-          resolve({ ...reply.outcome, runner: "worker" });
-        } else {
-          end();
-          reject(new FitFailed(reply.failure.message, reply.failure.code));
-        }
-      };
-      worker.onerror = (event) => {
-        event.preventDefault();
-        end();
-        reject(new FitFailed("The background fit stopped unexpectedly."));
-      };
-      onPhase("fitting");
-      worker.postMessage({ id, job } satisfies WorkerRequest);
-    });
+      if ("outcome" in reply) {
+        // The formulas the pane writes next compute this same key: they find the model, not refit.
+        shareModel(job, reply.outcome.model);
+        return { done: { ...reply.outcome, runner: "worker" as const } };
+      }
+      return { failed: new FitFailed(reply.failure.message, reply.failure.code) };
+    };
+    const errors = { cancelled: () => new FitCancelled(), crashed: () => new FitFailed("The background fit stopped unexpectedly.") };
+    return callWorker<WorkerRequest, WorkerReply, FitOutcome>(this.url, { id: this.nextId++, job }, signal, handle, errors, () => onPhase("fitting"));
   }
 }
 

@@ -11,7 +11,9 @@ import { PaneController } from "../../../src/taskpane/paneController";
 import { EvaluationController, logSpacedPenalties } from "../../../src/taskpane/evaluationController";
 import {
   answerCvRequest,
+  CvCancelled,
   InlineEvaluationRunner,
+  WorkerEvaluationRunner,
   type CvCompute,
   type CvReply,
   type CvResult,
@@ -237,5 +239,40 @@ describe("cross-validation runs", () => {
     answerCvRequest({ id: 8, job }, failing, (r) => out.push(r));
     expect(out).toHaveLength(1);
     expect("failure" in out[0] && out[0].failure.message).toContain("Use 2 or more folds.");
+  });
+
+  test("the worker runner relays each progress report and the result, and Cancel ends the worker at once", async () => {
+    const workers: { terminated: boolean }[] = [];
+    class StepWorker {
+      onmessage: ((e: { data: CvReply }) => void) | null = null;
+      onerror: unknown = null;
+      terminated = false;
+      constructor() {
+        workers.push(this);
+      }
+      postMessage(request: { id: number; job: never }) {
+        // Each reply arrives as its own message, as from a real worker.
+        answerCvRequest(request, countingCompute(3), (reply) => setTimeout(() => !this.terminated && this.onmessage?.({ data: reply }), 1));
+      }
+      terminate() {
+        this.terminated = true;
+      }
+    }
+    (globalThis as Record<string, unknown>).Worker = StepWorker;
+    try {
+      const job = { labels: [], predictors: [], options: {}, folds: 3, seed: 1, penalties: [0.1, 1] };
+      const seen: number[] = [];
+      const out = await new WorkerEvaluationRunner("evalworker.js").run(job, (p) => seen.push(p.done), new AbortController().signal);
+      expect(seen).toEqual([1, 2, 3]);
+      expect(out.runner).toBe("worker");
+      expect(out.entries.map((e) => e.penalty)).toEqual([0.1, 1]);
+      expect(workers[0].terminated).toBe(true);
+      const abort = new AbortController();
+      const run = new WorkerEvaluationRunner("evalworker.js").run(job, () => abort.abort(), abort.signal);
+      await expect(run).rejects.toBeInstanceOf(CvCancelled);
+      expect(workers[1].terminated).toBe(true);
+    } finally {
+      delete (globalThis as Record<string, unknown>).Worker;
+    }
   });
 });
