@@ -5,9 +5,7 @@
  * the chooser moves the borderline list; the charts are drawn at the pane's narrow and wide widths
  * with no overlapping labels. Screenshots go to test-artifacts/ (look at them).
  */
-import type { Server } from "http";
-import type { BrowserContext, Page } from "playwright-core";
-import fs from "fs";
+import type { Page } from "playwright-core";
 import { nearBoundaryRows } from "../../src/engine/boundary";
 import { rocAuc } from "../../src/engine/metrics/rocAuc";
 import { confusionCounts } from "../../src/engine/metrics/confusionCounts";
@@ -15,40 +13,24 @@ import { scoreRows, trainModel } from "../../src/engine/model";
 import { readModelOptions } from "../../src/functions/modelCell";
 import { DEMO_SHEETS } from "../../src/preview/demo";
 import { EVALUATION_CAUTIONS } from "../../src/taskpane/cautions";
-import { BUILD_TIMEOUT_MS, ensureBuild, launch, saveArtifact, startServer } from "./harness";
+import { saveArtifact, useBrowser } from "./harness";
 
 jest.setTimeout(120_000);
 
 /** Time the pane may take to fit, write and recalculate on the demo data (~0.5 s measured). */
 const FIT_WAIT_MS = 30_000;
 
-let server: Server;
-let base: string;
-let context: BrowserContext;
-let profile: string;
+const browser = useBrowser();
 const pageErrors: string[] = [];
 
-beforeAll(async () => {
-  ensureBuild();
-  ({ server, base } = await startServer());
-  ({ context, profile } = await launch());
-}, BUILD_TIMEOUT_MS);
-
-afterAll(async () => {
-  await context?.close();
-  server?.closeAllConnections();
-  server?.close();
-  if (profile) fs.rmSync(profile, { recursive: true, force: true });
-});
-
 async function openFitted(width: number): Promise<Page> {
-  const page = await context.newPage();
+  const page = await browser.context.newPage();
   page.on("console", (m) => {
     if (m.type() === "error") pageErrors.push(m.text());
   });
   page.on("pageerror", (e) => pageErrors.push(e.message));
   await page.setViewportSize({ width: 1360, height: 900 });
-  await page.goto(`${base}/preview.html`);
+  await page.goto(`${browser.base}/preview.html`);
   await page.waitForSelector("#osm-use");
   // Narrow the pane column to the width under test (the pane is the right-hand column).
   // (Through the CSSOM: the page's policy refuses style elements and attributes.)
@@ -244,9 +226,9 @@ describe("evaluation section", () => {
   });
 
   test("the demo workbook's Check sheet shows the validate-and-decide steps, computed", async () => {
-    const page = await context.newPage();
+    const page = await browser.context.newPage();
     page.on("pageerror", (e) => pageErrors.push(e.message));
-    await page.goto(`${base}/preview.html`);
+    await page.goto(`${browser.base}/preview.html`);
     await page.click('.ledger-tab[data-sheet="Check"]');
     await page.waitForSelector('.ledger-table td[data-row="4"][data-col="4"]');
     const { labels, p } = engineFit();

@@ -10,7 +10,7 @@ import type { AddressInfo } from "net";
 import type { Server } from "http";
 import { chromium, type BrowserContext } from "playwright-core";
 
-import { DIST, ROOT } from "./ensureBuild";
+import { BUILD_TIMEOUT_MS, DIST, ROOT, ensureBuild } from "./ensureBuild";
 
 export { BUILD_TIMEOUT_MS, ensureBuild } from "./ensureBuild";
 export const ARTIFACTS = path.join(ROOT, "test-artifacts");
@@ -53,4 +53,30 @@ export function saveArtifact(name: string, data: Buffer): string {
   const file = path.join(ARTIFACTS, name);
   fs.writeFileSync(file, data);
   return file;
+}
+
+/**
+ * The per-file set-up of a browser suite: a current build, the static server and a fresh Chromium
+ * profile before the tests, all closed and removed after them. Read `base` and `context` inside tests.
+ */
+export function useBrowser(): { readonly base: string; readonly context: BrowserContext } {
+  let server: Server | undefined;
+  let profile: string | undefined;
+  const state = { base: "", context: undefined as unknown as BrowserContext };
+  beforeAll(async () => {
+    ensureBuild();
+    const started = await startServer();
+    server = started.server;
+    state.base = started.base;
+    const launched = await launch();
+    state.context = launched.context;
+    profile = launched.profile;
+  }, BUILD_TIMEOUT_MS);
+  afterAll(async () => {
+    await state.context?.close();
+    server?.closeAllConnections();
+    server?.close();
+    if (profile) fs.rmSync(profile, { recursive: true, force: true });
+  });
+  return state;
 }

@@ -6,33 +6,14 @@
  * a Microsoft host when it runs outside Office; the page's Content-Security-Policy blocks it before
  * any request is made. Our own code causes no policy violation.
  */
-import fs from "fs";
-import type { Server } from "http";
-import type { BrowserContext } from "playwright-core";
-import { BUILD_TIMEOUT_MS, ensureBuild, launch, startServer } from "./harness";
+import { useBrowser } from "./harness";
 
 jest.setTimeout(90_000);
 
-let server: Server;
-let base: string;
-let context: BrowserContext;
-let profile: string;
-
-beforeAll(async () => {
-  ensureBuild();
-  ({ server, base } = await startServer());
-  ({ context, profile } = await launch());
-}, BUILD_TIMEOUT_MS);
-
-afterAll(async () => {
-  await context?.close();
-  server?.closeAllConnections();
-  server?.close();
-  if (profile) fs.rmSync(profile, { recursive: true, force: true });
-});
+const browser = useBrowser();
 
 test("outside Office the task pane page explains where to open it, and nothing leaves the origin", async () => {
-  const page = await context.newPage();
+  const page = await browser.context.newPage();
   const requests: string[] = [];
   const violations: string[] = [];
   const errors: string[] = [];
@@ -43,14 +24,14 @@ test("outside Office the task pane page explains where to open it, and nothing l
     else errors.push(m.text());
   });
   page.on("pageerror", (e) => errors.push(e.message));
-  await page.goto(`${base}/taskpane.html`);
+  await page.goto(`${browser.base}/taskpane.html`);
   await page.waitForSelector(".osm-outside");
   expect(await page.textContent(".osm-outside")).toContain("Open it from Excel: Data > Oddsmith > Classifier");
   expect(await page.getAttribute(".osm-outside a", "href")).toBe("preview.html");
   // office.js and both bundles came from our folder.
-  const paths = requests.map((u) => (u.startsWith(base) ? u.slice(base.length) : u));
+  const paths = requests.map((u) => (u.startsWith(browser.base) ? u.slice(browser.base.length) : u));
   expect(paths).toEqual(expect.arrayContaining(["/office-js/office.js", "/functions.js", "/taskpane.js"]));
-  expect(requests.filter((u) => !u.startsWith(base))).toEqual([]);
+  expect(requests.filter((u) => !u.startsWith(browser.base))).toEqual([]);
   expect(errors).toEqual([]);
   // Every blocked action was office.js's telemetry frame or its inline style for that frame.
   for (const v of violations) expect(v).toMatch(/telemetry|inline style/i);
@@ -58,12 +39,12 @@ test("outside Office the task pane page explains where to open it, and nothing l
 });
 
 test("the help page is styled by our style sheet under the same strict policy, with no policy violation", async () => {
-  const page = await context.newPage();
+  const page = await browser.context.newPage();
   const violations: string[] = [];
   page.on("console", (m) => {
     if (m.type() === "error") violations.push(m.text());
   });
-  const response = await page.goto(`${base}/help.html`);
+  const response = await page.goto(`${browser.base}/help.html`);
   const header = response!.headers()["content-security-policy"];
   const meta = await page.getAttribute('meta[http-equiv="Content-Security-Policy"]', "content");
   // The page's meta and the server's header are one policy, and it allows no inline style.
