@@ -252,11 +252,11 @@ export class EvaluationView {
     }
     unavailable.hidden = true;
     (this.byId("goalApply") as HTMLButtonElement).disabled = false;
-    const where = ev.source === "out-of-fold" ? "out-of-fold probabilities" : "the fitted rows (in-sample)";
+    const where = ev.source === "out-of-fold" ? "rows, out-of-fold probabilities" : "fitted rows (in-sample)";
     const a = ev.auc;
     renderRocChart(this.byId("roc"), buildRocChart(ev.curve, a, ev.threshold));
     this.byId("rocCaption").textContent =
-      `AUC ${f3(a.auc)} (${pct(a.level)} DeLong interval ${f3(a.lower)} to ${f3(a.upper)}), ${ev.rows.toLocaleString("en-US")} rows of ${where}, ` +
+      `AUC ${f3(a.auc)} (${pct(a.level)} DeLong interval ${f3(a.lower)} to ${f3(a.upper)}), ${ev.rows.toLocaleString("en-US")} ${where}, ` +
       `positive class "${ev.positiveClass}". The orange dot is the review threshold ${ev.threshold} (click the curve, or focus it and use the arrow keys, to move it); the dashed line is a model that ranks at random.`;
     this.renderSplitPicker();
     const split = ev.split;
@@ -269,7 +269,7 @@ export class EvaluationView {
     this.byId("calibrationCaption").textContent =
       `Calibration slope ${f3(s.slope.estimate)} (${pct(s.level)} interval ${f3(s.slope.lower)} to ${f3(s.slope.upper)}; 1 is ideal, below 1 means too extreme), ` +
       `intercept with slope ${f3(s.interceptWithSlope.estimate)}, calibration-in-the-large ${f3(s.intercept.estimate)} (${f3(s.intercept.lower)} to ${f3(s.intercept.upper)}; 0 is ideal). ` +
-      `${ev.calibration.groups.length} groups of ${where} by predicted probability; dot size shows the group's rows; the dashed line is observed = predicted.` +
+      `${ev.calibration.groups.length} groups of ${ev.rows.toLocaleString("en-US")} ${where} by predicted probability; dot size shows the group's rows; the dashed line is observed = predicted.` +
       (split
         ? ` Lines per value of ${split.column}, ${SPLIT_CALIBRATION_GROUPS} groups each${split.tooSmall.length ? `; not drawn (under ${MIN_SPLIT_ROWS} rows): ${split.tooSmall.join(", ")}` : ""}. A gap between lines is a statistical association in this data, not a cause.`
         : "") +

@@ -83,7 +83,7 @@ describe("evaluation section", () => {
     const { labels, p } = engineFit();
     const auc = rocAuc(labels, p, { level: 0.95 });
     const caption = await page.textContent("#osm-roc-caption");
-    expect(caption).toContain(`AUC ${auc.auc.toFixed(3)} (95% DeLong interval ${auc.lower.toFixed(3)} to ${auc.upper.toFixed(3)}), 240 rows`);
+    expect(caption).toContain(`AUC ${auc.auc.toFixed(3)} (95% DeLong interval ${auc.lower.toFixed(3)} to ${auc.upper.toFixed(3)}), 240 fitted rows (in-sample)`);
     const counts = confusionCounts(labels, p, { threshold: 0.5 });
     expect(await page.textContent("#osm-threshold-now")).toContain(
       `Review threshold 0.5: ${counts.truePositives} true positives, ${counts.falsePositives} false positives, ${counts.trueNegatives} true negatives, ${counts.falseNegatives} false negatives`,
