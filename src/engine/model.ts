@@ -630,7 +630,8 @@ export function scoreRows(
   options: { threshold?: number; offset?: CellValue[][] | null; headers?: "auto" | "yes" | "no" } = {},
 ): RowScores {
   const threshold = options.threshold ?? model.threshold;
-  const encoded = predictors === null ? model.trainingRows : encodeRows(model.encoding, predictors, { headers: options.headers ?? "auto" });
+  // Rows given here are the caller's new rows (ODDS.PROB's new_rows): messages name that argument.
+  const encoded = predictors === null ? model.trainingRows : encodeRows(model.encoding, predictors, { argument: "new_rows", headers: options.headers ?? "auto" });
   const n = encoded.design.rows;
   const ok = encoded.ok.slice();
   const problems = encoded.problems.slice();

@@ -52,5 +52,11 @@ export function spill(rows: readonly (readonly unknown[])[]): CellValue[][] {
 
 /** Percentage label of a confidence level, e.g. 0.95 -> "95%", 0.975 -> "97.5%". */
 export function levelLabel(level: number): string {
-  return `${Number((level * 100).toPrecision(6))}%`;
+  // Six significant digits, or as many more as it takes not to round up to 100% (or down to 0%):
+  // level=0.999999999999 is "99.9999999999%", never "lower 100%".
+  for (let digits = 6; digits <= 17; digits++) {
+    const pct = Number((level * 100).toPrecision(digits));
+    if ((pct !== 100 || level === 1) && (pct !== 0 || level === 0)) return `${pct}%`;
+  }
+  return `${level * 100}%`;
 }

@@ -14,6 +14,7 @@
  * - A row whose label is blank, or whose probability cells are all blank (a row ODDS.PROB left blank
  *   because it was skipped by the fit), is skipped and counted; a row with some but not all class
  *   probabilities blank is an error (METRIC_MISSING_VALUE) naming the sheet row.
+ * - Every probability lies in [0, 1] (BAD_PROBABILITY, naming the sheet row), for every metric alike.
  * - Row numbers in every message are 1-based rows of the ranges as selected (header row = row 1).
  * - An error value (#N/A, #DIV/0!, ...) in either range is refused (ERROR_VALUE_CELL, naming the
  *   cell): a metric over silently fewer rows would look like a result for all of them.
@@ -209,6 +210,9 @@ export function readMetricInputs(
         // Some class probabilities blank, others not: an incomplete row, not a skipped one.
         throw problem("METRIC_MISSING_VALUE", { argument: "probabilities", row: sheetRows[r] });
       }
+      // One rule for every metric (AUC too, although a ranking would not need it): probabilities lie in [0, 1].
+      const v = columns[j][i];
+      if (!(v >= 0 && v <= 1)) throw problem("BAD_PROBABILITY", { row: sheetRows[r], value: v });
     }
     if (kind === "binary") {
       y[r] = info.codes[i] === 1 ? 1 : 0;

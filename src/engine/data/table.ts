@@ -438,7 +438,10 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
   for (let j = 0; j < width; j++) {
     if (firstNonFinite[j] >= 0) {
       const i = firstNonFinite[j];
-      throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value: String(nums[j][i]) });
+      // Numeric text is quoted as typed ("1e999" overflows; its number would read "Infinity").
+      const typed = rows[start + i][j];
+      const value = typeof typed === "string" ? `"${typed.trim()}" (too large for a number)` : String(nums[j][i]);
+      throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value });
     }
     // Every number is finite here: the numbers (and numeric text) are the cells of no other kind.
     const nNum = n - nBlank[j] - nBool[j] - nText[j];
