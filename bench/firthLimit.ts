@@ -45,7 +45,7 @@ function seeded(seed: number): () => number {
 }
 
 /** Labels and predictors ranges (header rows included) of the case. */
-export function firthCaseRanges(rows = FIRTH_CASE.rows, predictors = FIRTH_CASE.predictors, seed = 20261204): { labels: CellValue[][]; predictors: CellValue[][] } {
+export function firthCaseRanges(rows: number = FIRTH_CASE.rows, predictors: number = FIRTH_CASE.predictors, seed = 20261204): { labels: CellValue[][]; predictors: CellValue[][] } {
   const u = seeded(seed);
   const normal = () => Math.sqrt(-2 * Math.log(u())) * Math.cos(2 * Math.PI * u());
   const X: CellValue[][] = [Array.from({ length: predictors }, (_, j) => `x${j + 1}`)];
