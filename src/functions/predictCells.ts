@@ -30,14 +30,18 @@ function outputRows(labels: CellValue[][] | null, newRows: CellValue[][] | null)
 }
 
 /**
- * Distinct non-blank values of the labels' first column (an upper bound on the classes: a header
- * counts as one more), counted up to MAX_CLASSES + 2 (more are refused by the fit anyway).
+ * Distinct non-blank values of the labels' first column, counted up to MAX_CLASSES + 2 (more are
+ * refused by the fit anyway). A text first row is left out (it is usually the header); should it be
+ * a class of its own, the estimate is one column short, and the payload check after the fit and
+ * spill's last guard still hold the output to the sheet's limits.
  */
 function distinctLabels(labels: CellValue[][] | null): number {
   if (!Array.isArray(labels)) return 1;
   const seen = new Set<unknown>();
-  for (const row of labels) {
+  for (let i = 0; i < labels.length; i++) {
+    const row = labels[i];
     const v = Array.isArray(row) ? row[0] : row;
+    if (i === 0 && typeof v === "string") continue;
     if (isBlankCell(v)) continue;
     seen.add(typeof v === "string" ? v.trim() : v);
     if (seen.size > MAX_CLASSES + 1) break;
@@ -58,7 +62,7 @@ function scored(
   const classes = what === "prob" ? distinctLabels(labels) : 1;
   checkOutputSize(outputRows(labels, newRows), classes > 2 ? classes : 1, {
     fn: FN[what],
-    what: what === "prob" && classes > 2 ? `one probability column per class (up to ${classes} classes) for each scored row` : "one value for each scored row",
+    what: what === "prob" && classes > 2 ? `one probability column per class (${classes} classes) for each scored row` : "one value for each scored row",
     hint: "Score fewer rows per formula (for example split new_rows over several formulas).",
   });
   // One output column per row for CLASS, MARGIN and two-class PROB...
