@@ -6,12 +6,14 @@
 export { sourcesOf } from "./basis";
 export type { BasisColumn, RowNote } from "./basis/common";
 export { TRANSFORM_NAMES, applyRecipe, fitRecipe, parseRecipe } from "./basis/recipe";
+export { estimateRecipeColumns } from "./basis/recipeSize";
+export { FIRTH_WORK_LIMIT } from "./data/fitWork";
 export type { RecipeState } from "./basis/recipe";
 export { nearBoundaryRows } from "./boundary";
 export type { BoundaryReview } from "./boundary";
-export { compareText, matchClass, readLabels } from "./data/labels";
+export { compareText, MAX_CLASSES, matchClass, readLabels } from "./data/labels";
 export type { LabelInfo } from "./data/labels";
-export { isBlankCell, parseNumericText, rangeRow, readTable } from "./data/table";
+export { errorLiteral, isBlankCell, parseNumericText, rangeRow, readTable } from "./data/table";
 export type { HeaderEvidence, Table, TableColumn } from "./data/table";
 export { INTERCEPT_TERM } from "./inference";
 export { wasmKernels } from "./kernels/wasmKernels";

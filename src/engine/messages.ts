@@ -30,7 +30,7 @@ export const MESSAGES = {
     cellError: "#VALUE!",
     title: "Ranges of different lengths",
     template:
-      "The {argument} range has {got} rows but {expectedArgument} has {expected}. Select ranges that cover the same rows.",
+      "The {argument} range has {got} {got|row|rows} but {expectedArgument} has {expected}. Select ranges that cover the same rows.",
   },
   RANGE_TOO_LARGE: {
     cellError: "#VALUE!",
@@ -59,7 +59,7 @@ export const MESSAGES = {
     cellError: "#VALUE!",
     title: "Rows of different lengths",
     template:
-      "Row {row} of the {argument} range has {got} cells but row 1 has {expected}. Pass a rectangular range.",
+      "Row {row} of the {argument} range has {got} {got|cell|cells} but row 1 has {expected}. Pass a rectangular range.",
   },
   NOT_FINITE_VALUE: {
     cellError: "#VALUE!",
@@ -87,7 +87,7 @@ export const MESSAGES = {
     cellError: "#VALUE!",
     title: "Different columns than in training",
     template:
-      "The {argument} range has {got} columns but the model was trained on {expected} ({columns}). Select the same columns in the same order, or include their names in the first row.",
+      "The {argument} range has {got} {got|column|columns} but the model was trained on {expected} ({columns}). Select the same columns in the same order, or include their names in the first row.",
   },
   TOO_MANY_LEVELS: {
     cellError: "#VALUE!",
@@ -104,7 +104,7 @@ export const MESSAGES = {
     cellError: "#N/A",
     title: "Rare categories pooled",
     template:
-      "{count} categories of {column} ({levels}) occur in fewer than {min} rows and were pooled into \"(other)\".",
+      "{count} {count|category|categories} of {column} ({levels}) {count|occurs|occur} in fewer than {min} rows and {count|was|were} pooled into \"(other)\".",
   },
   // ---- options (#VALUE!) -----------------------------------------------------------------------
   UNKNOWN_OPTION: {
@@ -121,7 +121,7 @@ export const MESSAGES = {
     cellError: "#VALUE!",
     title: "Options not understood",
     template:
-      "The options text \"{text}\" could not be read at \"{at}\". Write name=value pairs separated by semicolons, e.g. \"penalty=0.1; level=0.9\".",
+      "The options text \"{text}\" could not be read at \"{at}\". Write name=value pairs separated by semicolons (or line breaks), e.g. \"penalty=0.1; level=0.9\".",
   },
   DUPLICATE_OPTION: {
     cellError: "#VALUE!",
@@ -163,7 +163,7 @@ export const MESSAGES = {
     cellError: "#N/A",
     title: "Fewer rows than parameters",
     template:
-      "Only {rows} usable rows for {parameters} parameters. Add rows, remove predictors, or set a penalty.",
+      "Only {rows} usable {rows|row|rows} for {parameters} {parameters|parameter|parameters}. Add rows, remove predictors, or set a penalty.",
   },
   TOO_MANY_PARAMETERS: {
     cellError: "#VALUE!",
@@ -192,13 +192,13 @@ export const MESSAGES = {
     cellError: "#N/A",
     title: "Quasi-complete separation",
     template:
-      "{columns} separate the classes for {count} rows (for example rows {rows}): some estimates run off to infinity. Use bias reduction (firth=true) or a penalty.",
+      "The classes are separated by {columns} for {count} {count|row|rows} (for example {count|row|rows} {rows}): some estimates run off to infinity. Use bias reduction (firth=true) or a penalty.",
   },
   CLASSES_SEPARATED: {
     cellError: "#N/A",
     title: "Classes separated (multi-class)",
     template:
-      "{separated} can be told apart perfectly by {columns} ({count} rows, for example rows {rows}): maximum-likelihood estimates do not exist (they run off to infinity), so none are shown. Set a penalty, or remove the separating columns, or merge the separated classes.",
+      "{separated} can be told apart perfectly by {columns} ({count} {count|row|rows}, for example {count|row|rows} {rows}): maximum-likelihood estimates do not exist (they run off to infinity), so none are shown. Set a penalty, or remove the separating columns, or merge the separated classes.",
   },
   EMPTY_CLASS: {
     cellError: "#N/A",
@@ -233,7 +233,7 @@ export const MESSAGES = {
   ROWS_SKIPPED: {
     cellError: "#N/A",
     title: "Rows skipped",
-    template: "{count} rows were skipped because a used value was missing ({detail}).",
+    template: "{count} {count|row was|rows were} skipped because a used value was missing ({detail}).",
   },
   BAD_RESPONSE: {
     cellError: "#VALUE!",
@@ -245,7 +245,7 @@ export const MESSAGES = {
     cellError: "#N/A",
     title: "Separation kept finite by the fit method",
     template:
-      "{columns} separate the classes ({count} rows, for example rows {rows}), so ordinary estimates would run off to infinity; the {method} keeps them finite. Read these estimates with care.",
+      "The classes are separated by {columns} ({count} {count|row|rows}, for example {count|row|rows} {rows}), so ordinary estimates would run off to infinity; the {method} keeps them finite. Read these estimates with care.",
   },
   PROFILE_INTERVAL_OPEN: {
     cellError: "#N/A",
@@ -311,7 +311,7 @@ export const MESSAGES = {
     cellError: "#VALUE!",
     title: "Probability columns do not match the classes",
     template:
-      "The probabilities range has {got} columns for {count} classes ({classes}). Give one column of positive-class probabilities for two classes, or one column per class under a header row naming the classes (as ODDS.PROB writes it).",
+      "The probabilities range has {got} {got|column|columns} for {count} classes ({classes}). Give one column of positive-class probabilities for two classes, or one column per class under a header row naming the classes (as ODDS.PROB writes it).",
   },
   PROBABILITY_COLUMN_MISSING: {
     cellError: "#VALUE!",
@@ -367,13 +367,13 @@ export const MESSAGES = {
   BASIS_REDUCED: {
     cellError: "#N/A",
     title: "Fewer basis columns than asked",
-    template: "{transform} on \"{column}\" made {got} columns instead of the {asked} asked for, because {reason}.",
+    template: "{transform} on \"{column}\" made {got} {got|column|columns} instead of the {asked} asked for, because {reason}.",
   },
   BASIS_MANY_COLUMNS: {
     cellError: "#N/A",
     title: "Many basis columns for the rows",
     template:
-      "The recipe makes {columns} columns for {rows} rows ({ratio} rows per column). With fewer than {rule} rows per column a fit tends to overfit or separate: use fewer or smaller transforms, or more rows.",
+      "The recipe makes {columns} {columns|column|columns} for {rows} {rows|row|rows} ({ratio} rows per column). With fewer than {rule} rows per column a fit tends to overfit or separate: use fewer or smaller transforms, or more rows.",
   },
   BASIS_NEEDS_HEADER: {
     cellError: "#VALUE!",
@@ -451,13 +451,13 @@ export const MESSAGES = {
     cellError: "#VALUE!",
     title: "Too few probability columns",
     template:
-      "Multi-class metrics need one probability column per class, at least 2, but {got} were given. For a single column of positive-class probabilities use the binary metrics.",
+      "Multi-class metrics need one probability column per class, at least 2, but {got} {got|was|were} given. For a single column of positive-class probabilities use the binary metrics.",
   },
   ZERO_TOTAL_WEIGHT: {
     cellError: "#VALUE!",
     title: "All weights are zero",
     template:
-      "Every weight is zero, so there is nothing to average over ({rows} rows). Give at least one row a positive weight.",
+      "Every weight is zero, so there is nothing to average over ({rows} {rows|row|rows}). Give at least one row a positive weight.",
   },
   METRIC_NEEDS_BOTH_CLASSES: {
     cellError: "#N/A",
@@ -481,7 +481,7 @@ export const MESSAGES = {
     cellError: "#N/A",
     title: "Probabilities clipped",
     template:
-      "{count} probabilities (first in row {row}) were 0 or 1, or closer to them than {eps}, and were moved to {eps} or 1 - {eps} before taking logarithms, so their contribution is large but finite.",
+      "{count} {count|probability|probabilities} (first in row {row}) {count|was|were} 0 or 1, or closer to them than {eps}, and {count|was|were} moved to {eps} or 1 - {eps} before taking logarithms, so {count|its|their} contribution is large but finite.",
   },
   RATE_UNDEFINED: {
     cellError: "#N/A",
@@ -498,13 +498,67 @@ export const MESSAGES = {
     cellError: "#N/A",
     title: "Small expected counts",
     template:
-      "{count} of {groups} groups have an expected count below {minimum} (first: group {group}), so the chi-square p-value of the Hosmer-Lemeshow test may be unreliable. Use fewer groups or more rows.",
+      "{count} of {groups} groups {count|has|have} an expected count below {minimum} (first: group {group}), so the chi-square p-value of the Hosmer-Lemeshow test may be unreliable. Use fewer groups or more rows.",
   },
   CALIBRATION_SLOPE_UNBOUNDED: {
     cellError: "#N/A",
     title: "Calibration slope unbounded",
     template:
       "The probabilities separate the labels (no negative row has a higher probability than a positive row), so the calibration slope runs off to infinity and is not given. Judge calibration from the observed-vs-expected table instead.",
+  },
+  // ---- sheet limits and error cells (robustness) -----------------------------------------------
+  OUTPUT_TOO_LARGE: {
+    cellError: "#VALUE!",
+    title: "Result too large for the sheet",
+    template:
+      "{fn} would return {rows} {rows|row|rows} x {columns} {columns|column|columns} ({what}), more than one formula can spill: a sheet has at most 1,048,576 rows and 16,384 columns, and one call can return about 5 MB (about {cells} cells of numbers). {hint}",
+  },
+  TEXT_TRUNCATED: {
+    cellError: "#N/A",
+    title: "Text cut to the cell limit",
+    template: " [... cut: {dropped} more characters; a cell holds at most {limit}]",
+  },
+  ERROR_VALUE_CELL: {
+    cellError: "#VALUE!",
+    title: "Error value in an input",
+    template:
+      "The {argument} range holds the error value {value} in row {row}, column {column}, and {what}. Correct the formula behind that cell, or wrap it in IFERROR(..., \"\") to leave it blank.",
+  },
+  ERROR_VALUES_AS_BLANK: {
+    cellError: "#N/A",
+    title: "Error values read as blank",
+    template:
+      "{count} {count|cell|cells} of the {argument} range {count|holds an error value|hold error values} (first: {value} in row {row}, column {column}); {count|it was|they were} read as blank, so {count|its row was|their rows were} skipped.",
+  },
+  FIRTH_TOO_COSTLY: {
+    cellError: "#VALUE!",
+    title: "Bias reduction too costly here",
+    template:
+      "Bias reduction (firth=true) on {rows} rows x {terms} terms would take too long in one call: its work grows with rows x terms x terms ({work} here, the limit is {limit}; for example {example}). Use fewer terms or rows, or a penalty (e.g. penalty=0.1) instead of firth=true.",
+  },
+  OPTION_DECIMAL_COMMA: {
+    cellError: "#VALUE!",
+    title: "Decimal comma in the options",
+    template:
+      "The options text \"{text}\" has \"{at}\" after a comma. Commas and semicolons separate options, so write decimals with a point (e.g. \"{suggestion}\").",
+  },
+  OPTIONS_RANGE_SHAPE: {
+    cellError: "#VALUE!",
+    title: "Options range of more than two columns",
+    template:
+      "The options range has {columns} columns, and column {column} holds \"{value}\" (row {row}). Give options as text, as one column of name=value texts, or as two columns: names, then values.",
+  },
+  COEFFICIENT_REFERENCE_IS_EQUATION: {
+    cellError: "#VALUE!",
+    title: "Reference class listed with coefficients",
+    template:
+      "The class header names \"{reference}\" as the reference class, but row {row} of the coefficients range gives an equation for \"{reference}\". The reference class has no equation of its own: correct the header or remove its rows.",
+  },
+  METRIC_CLASS_UNNAMED: {
+    cellError: "#VALUE!",
+    title: "One class, probabilities unnamed",
+    template:
+      "Every row has the label \"{label}\", and nothing says which class the probabilities are for. Name the class in the probabilities' header row (e.g. \"P({label})\"), or set the positive option.",
   },
   // ---- catch-all (#VALUE!) ---------------------------------------------------------------------
   INTERNAL: {
@@ -517,11 +571,26 @@ export const MESSAGES = {
 
 export type MessageCode = keyof typeof MESSAGES;
 
-/** Fill a template's {placeholders}; a missing value is shown as "?" so a gap is visible, not hidden. */
+/** Longest text a filled-in placeholder shows: a message stays far below a cell's 32,767 characters (a quoted cell of 30,000 characters helps nobody). */
+export const MAX_PARAM_CHARS = 1000;
+
+/** A placeholder's text, cut to MAX_PARAM_CHARS with a visible ellipsis. */
+function paramText(value: unknown): string {
+  const text = String(value);
+  return text.length > MAX_PARAM_CHARS ? `${text.slice(0, MAX_PARAM_CHARS - 1)}\u2026` : text;
+}
+
+/**
+ * Fill a template's placeholders: {name} is the value (cut to MAX_PARAM_CHARS characters); {name|one|other}
+ * is the word for the count `name` ("one" when it is 1, "other" otherwise: "{rows} {rows|row|rows}").
+ * A missing value is shown as "?" so a gap is visible, not hidden.
+ */
 export function formatMessage(code: MessageCode, params: Record<string, unknown> = {}): string {
-  return MESSAGES[code].template.replace(/\{(\w+)\}/g, (_, key: string) =>
-    params[key] === undefined ? "?" : String(params[key]),
-  );
+  return MESSAGES[code].template.replace(/\{(\w+)(?:\|([^|{}]*)\|([^|{}]*))?\}/g, (_, key: string, one?: string, other?: string) => {
+    const value = params[key];
+    if (one !== undefined) return Number(value) === 1 ? one : (other as string);
+    return value === undefined ? "?" : paramText(value);
+  });
 }
 
 /**

@@ -24,6 +24,7 @@
  * - A fit estimates at most 500 coefficients (equations x terms; TOO_MANY_PARAMETERS): a Newton step
  *   costs about rows x coefficients^2 + coefficients^3 operations (measured: 500 coefficients over
  *   2,000 rows take 2-3 s; 1,000 terms with a penalty 11 s, 2,000 terms 33 s, more run out of memory).
+ * - Bias reduction (firth) is refused above rows x terms^2 = 2.5e7 (FIRTH_TOO_COSTLY, data/fitWork.ts).
  * - Profile-likelihood intervals refit the model twice per term, about rows x terms^3 operations in
  *   all (measured: 1,000 rows x 50 terms 3 s, 2,000 rows x 100 terms 38 s); beyond 1e8 of those
  *   units the fit gives Wald intervals with a PROFILE_NOT_AVAILABLE note instead.
@@ -32,6 +33,7 @@
  *   that cannot be scored keeps its place with NaN numbers and a per-row problem.
  */
 import { fitBinaryModel } from "./binary";
+import { checkFirthWork } from "./data/fitWork";
 import { buildDesign, encodeRows, skippedDetail, type DesignEncoding, type EncodedRows, type RowProblem, type SkippedRows } from "./data/design";
 import { readLabels, type LabelInfo } from "./data/labels";
 import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
@@ -222,6 +224,8 @@ function readAligned(
     if (!t.header && k !== 1) t.columns[0].name = t.names[0] = names[k];
     return t;
   });
+  // Error cells were read as blank: each range that held some is named in a warning.
+  for (const t of tables) if (t.errorCells.count > 0) notes.push(errorCellsNote(t));
   // Ranges are aligned by selected rows: compare the row counts before trimming.
   const selected = ranges.map((r, k) => tables[k].rows + tables[k].trimmedRows);
   const n = Math.max(...tables.map((t) => t.rows));
@@ -238,6 +242,13 @@ function readAligned(
   // A range that ends earlier than the others is blank below its end.
   for (const t of tables) ownRows.push(t.rows);
   return tables.map((t) => padTable(t, n));
+}
+
+/** The ERROR_VALUES_AS_BLANK warning of a range whose error cells were read as blank. */
+function errorCellsNote(t: Table): Diagnostic {
+  const first = t.errorCells.first as { row: number; column: number; value: string };
+  const params = { count: t.errorCells.count, argument: t.argument, value: first.value, row: first.row, column: first.column };
+  return { code: "ERROR_VALUES_AS_BLANK", severity: "warning", message: formatMessage("ERROR_VALUES_AS_BLANK", params), params };
 }
 
 function singleColumn(t: Table): void {
@@ -384,6 +395,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
       throw problem("ONE_CLASS_ONLY", { label: s === 0 ? GROUPED_CLASSES[0] : GROUPED_CLASSES[1] });
     }
     checkModelSize(terms, 1);
+    if (common.biasReduction) checkFirthWork(design.rows, terms);
     fit = fitBinaryModel(design, y, {
       ...common,
       intervalMethod: intervals.method,
@@ -402,6 +414,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     if (classes.kind === "binary") {
       const y = Float64Array.from(codes);
       checkModelSize(terms, 1);
+      if (common.biasReduction) checkFirthWork(design.rows, terms);
       fit = fitBinaryModel(design, y, {
         ...common,
         intervalMethod: intervals.method,
@@ -617,7 +630,8 @@ export function scoreRows(
   options: { threshold?: number; offset?: CellValue[][] | null; headers?: "auto" | "yes" | "no" } = {},
 ): RowScores {
   const threshold = options.threshold ?? model.threshold;
-  const encoded = predictors === null ? model.trainingRows : encodeRows(model.encoding, predictors, { headers: options.headers ?? "auto" });
+  // Rows given here are the caller's new rows (ODDS.PROB's new_rows): messages name that argument.
+  const encoded = predictors === null ? model.trainingRows : encodeRows(model.encoding, predictors, { argument: "new_rows", headers: options.headers ?? "auto" });
   const n = encoded.design.rows;
   const ok = encoded.ok.slice();
   const problems = encoded.problems.slice();

@@ -16,7 +16,8 @@
  * - Only when no data row yields any value is an error thrown: the first row's reason (its catalogue
  *   code and cell error), with the row counted as in the range (header = row 1).
  */
-import { applyRecipe, fitRecipe, parseRecipe, problem, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
+import { checkOutputSize, SHEET_COLUMNS } from "./sheetLimits";
+import { errorLiteral, estimateRecipeColumns, applyRecipe, fitRecipe, parseRecipe, problem, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 
 /** The columns of a parsed table in the form the basis transforms read (blank = null). */
@@ -31,6 +32,12 @@ export function tableToBasisColumns(table: Table): BasisColumn[] {
 /** The recipe text from a cell value or a range of cells (non-blank cells joined with "; "). */
 export function recipeText(recipe: string | CellValue | CellValue[][]): string {
   if (Array.isArray(recipe)) {
+    recipe.forEach((row, i) =>
+      (Array.isArray(row) ? row : [row]).forEach((v, j) => {
+        const literal = errorLiteral(v);
+        if (literal !== null) throw problem("ERROR_VALUE_CELL", { argument: "recipe", value: literal, row: i + 1, column: j + 1, what: "a recipe is text" });
+      }),
+    );
     return recipe
       .flat()
       .map((v) => (v === null || v === undefined ? "" : String(v).trim()))
@@ -64,6 +71,14 @@ export function basisCell(
     fitColumns = tableToBasisColumns(readTable(training, { argument: "training_data", headers: "yes" }));
     fitArgument = "training_data";
   }
+  // The output (a header and one row per data row, one column per basis column) is sized from the
+  // plan before any transform is fitted: a recipe that cannot fit the sheet does no work.
+  const columns = estimateRecipeColumns(plan, fitColumns, fitArgument, SHEET_COLUMNS);
+  checkOutputSize(table.rows + 1, columns, {
+    fn: "ODDS.BASIS",
+    what: `about ${columns.toLocaleString("en-US")} basis columns for each of ${table.rows.toLocaleString("en-US")} rows`,
+    hint: "Use fewer or smaller transforms (levels on a column of many different texts, pairs on many columns and high-degree poly on several columns make the most), or build the basis for fewer rows at a time.",
+  });
   const state = fitRecipe(plan, fitColumns, fitArgument);
   const block = applyRecipe(state, rows, "data");
 

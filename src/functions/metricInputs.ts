@@ -14,7 +14,10 @@
  * - A row whose label is blank, or whose probability cells are all blank (a row ODDS.PROB left blank
  *   because it was skipped by the fit), is skipped and counted; a row with some but not all class
  *   probabilities blank is an error (METRIC_MISSING_VALUE) naming the sheet row.
+ * - Every probability lies in [0, 1] (BAD_PROBABILITY, naming the sheet row), for every metric alike.
  * - Row numbers in every message are 1-based rows of the ranges as selected (header row = row 1).
+ * - An error value (#N/A, #DIV/0!, ...) in either range is refused (ERROR_VALUE_CELL, naming the
+ *   cell): a metric over silently fewer rows would look like a result for all of them.
  */
 import { compareText, matchClass, readLabels, OddsmithError, listNames, problem, readTable, type LabelInfo, type HeaderEvidence, type Table, type CellValue } from "../engine";
 
@@ -45,6 +48,9 @@ export interface MetricInputs {
   /** 1-based row of the labels range (as selected) of each used row. */
   sheetRows: Int32Array;
 }
+
+/** Why a metric refuses an error cell (ERROR_VALUE_CELL). */
+const METRIC_ERROR_REASON = "a metric over fewer rows than selected would be misread";
 
 const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, weak: 1, none: 0 };
 
@@ -101,18 +107,18 @@ export function readMetricInputs(
   options: MetricInputOptions,
 ): MetricInputs {
   const headers = options.headers ?? "auto";
-  let labelTable = readTable(labelCells, { argument: "labels", headers });
+  let labelTable = readTable(labelCells, { argument: "labels", headers, errors: "refuse", errorReason: METRIC_ERROR_REASON });
   if (labelTable.columns.length !== 1) {
     throw problem("SINGLE_COLUMN_NEEDED", { argument: "labels", columns: labelTable.columns.length });
   }
-  let probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column " });
+  let probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column ", errors: "refuse", errorReason: METRIC_ERROR_REASON });
   if (labelTable.header !== probTable.header && headers === "auto") {
     // Under auto the two ranges share one header decision: the stronger evidence decides for both
     // (probabilities win a tie), as the fitting functions do.
     const labelsDecide = EVIDENCE_RANK[labelTable.headerEvidence] > EVIDENCE_RANK[probTable.headerEvidence];
     const forced = (labelsDecide ? labelTable.header : probTable.header) ? "yes" : "no";
-    labelTable = readTable(labelCells, { argument: "labels", headers: forced });
-    probTable = readTable(probabilityCells, { argument: "probabilities", headers: forced, namePrefix: "column " });
+    labelTable = readTable(labelCells, { argument: "labels", headers: forced, errors: "refuse", errorReason: METRIC_ERROR_REASON });
+    probTable = readTable(probabilityCells, { argument: "probabilities", headers: forced, namePrefix: "column ", errors: "refuse", errorReason: METRIC_ERROR_REASON });
   }
   // Both ranges must cover the same rows: same header decision, same number of data rows (counted
   // as selected, before trailing blank rows are trimmed).
@@ -204,6 +210,9 @@ export function readMetricInputs(
         // Some class probabilities blank, others not: an incomplete row, not a skipped one.
         throw problem("METRIC_MISSING_VALUE", { argument: "probabilities", row: sheetRows[r] });
       }
+      // One rule for every metric (AUC too, although a ranking would not need it): probabilities lie in [0, 1].
+      const v = columns[j][i];
+      if (!(v >= 0 && v <= 1)) throw problem("BAD_PROBABILITY", { row: sheetRows[r], value: v });
     }
     if (kind === "binary") {
       y[r] = info.codes[i] === 1 ? 1 : 0;

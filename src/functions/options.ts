@@ -4,7 +4,7 @@
  *
  * Accepted forms of the options argument:
  * - omitted (null/undefined) or blank: every option takes its default;
- * - text: "penalty=0.1; level=0.9" — pairs name=value separated by ";" or ",", names in any case,
+ * - text: "penalty=0.1; level=0.9" — pairs name=value separated by ";", "," or a line break, names in any case,
  *   spaces anywhere around names, "=" and values; an empty piece (e.g. a trailing ";") is ignored;
  *   a boolean option named alone ("firth") means true;
  * - a range of two columns: option names in the first column, values in the second (blank rows
@@ -16,7 +16,7 @@
  * Problems: OPTION_SYNTAX, UNKNOWN_OPTION (lists the valid names), BAD_OPTION_VALUE (says what is
  * valid), DUPLICATE_OPTION.
  */
-import { problem, parseNumericText } from "../engine";
+import { errorLiteral, problem, parseNumericText } from "../engine";
 
 interface SpecBase {
   /** Lower-case name the user writes. */
@@ -116,8 +116,10 @@ function isBlank(v: unknown): boolean {
 
 function pairsFromText(text: string, booleanNames: Set<string>): Pair[] {
   const pairs: Pair[] = [];
-  for (const piece of text.split(/[;,]/)) {
-    const p = piece.trim();
+  // Separators: ";", "," and line breaks (a cell of several lines).
+  const pieces = text.split(/[;,\r\n]/);
+  for (let k = 0, start = 0; k < pieces.length; start += pieces[k].length + 1, k++) {
+    const p = pieces[k].trim();
     // An empty piece (a trailing or doubled separator) is ignored.
     if (p === "") continue;
     const eq = p.indexOf("=");
@@ -127,6 +129,11 @@ function pairsFromText(text: string, booleanNames: Set<string>): Pair[] {
       if (booleanNames.has(bare)) {
         pairs.push({ name: bare, value: true, source: p });
         continue;
+      }
+      // Digits right after "name=number," are a decimal comma ("penalty=0,5"): say so.
+      const before = k > 0 ? pieces[k - 1].trim() : "";
+      if (/^\d+$/.test(p) && /=\s*[+-]?\d+$/.test(before) && text.charAt(start - 1) === ",") {
+        throw problem("OPTION_DECIMAL_COMMA", { text: text.trim(), at: p, suggestion: `${before.replace(/\s+/g, "")}.${p}` });
       }
       throw problem("OPTION_SYNTAX", { text: text.trim(), at: p });
     }
@@ -146,6 +153,14 @@ function collectPairs(raw: unknown, booleanNames: Set<string>): Pair[] {
   }
   const rows = raw.length > 0 && !Array.isArray(raw[0]) ? [raw as unknown[]] : (raw as unknown[][]);
   const width = rows.length > 0 ? rows[0].length : 0;
+  rows.forEach((row, i) =>
+    row.forEach((v, j) => {
+      // An error value is never an option; a third column would be silently dropped: both refused.
+      const literal = errorLiteral(v);
+      if (literal !== null) throw problem("ERROR_VALUE_CELL", { argument: "options", value: literal, row: i + 1, column: j + 1, what: "options are text or numbers" });
+      if (j >= 2 && !isBlank(v)) throw problem("OPTIONS_RANGE_SHAPE", { columns: width, column: j + 1, row: i + 1, value: String(v) });
+    }),
+  );
   const pairs: Pair[] = [];
   if (width === 1) {
     // A one-column range: each non-blank cell is options text.

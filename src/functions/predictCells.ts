@@ -14,7 +14,8 @@
  *   |p - threshold|; several -> the gap between the two largest class probabilities.
  * - threshold (option) sets the two-class decision for CLASS and MARGIN; it never refits.
  */
-import { scoreRows, type RowScores, type CellValue } from "../engine";
+import { isBlankCell, MAX_CLASSES, scoreRows, type RowScores, type CellValue } from "../engine";
+import { checkOutputSize } from "./sheetLimits";
 import { spill } from "./cellOutput";
 import { fittedModel, readModelOptions, refuseThresholdForSeveralClasses, requireUsableFit } from "./modelCell";
 import { checkPayload } from "./payload";
@@ -28,6 +29,26 @@ function outputRows(labels: CellValue[][] | null, newRows: CellValue[][] | null)
   return Array.isArray(newRows) ? newRows.length : Array.isArray(labels) ? labels.length : 1;
 }
 
+/**
+ * Distinct non-blank values of the labels' first column, counted up to MAX_CLASSES + 2 (more are
+ * refused by the fit anyway). A text first row is left out (it is usually the header); should it be
+ * a class of its own, the estimate is one column short, and the payload check after the fit and
+ * spill's last guard still hold the output to the sheet's limits.
+ */
+function distinctLabels(labels: CellValue[][] | null): number {
+  if (!Array.isArray(labels)) return 1;
+  const seen = new Set<unknown>();
+  for (let i = 0; i < labels.length; i++) {
+    const row = labels[i];
+    const v = Array.isArray(row) ? row[0] : row;
+    if (i === 0 && typeof v === "string") continue;
+    if (isBlankCell(v)) continue;
+    seen.add(typeof v === "string" ? v.trim() : v);
+    if (seen.size > MAX_CLASSES + 1) break;
+  }
+  return seen.size;
+}
+
 function scored(
   what: Output,
   labels: CellValue[][] | null,
@@ -37,6 +58,13 @@ function scored(
 ): RowScores {
   const opts = readModelOptions(FN[what], options);
   const inputs = newRows ? [{ argument: "new_rows", cells: newRows }] : [];
+  // The output's size is known before the fit: the scored rows, and (PROB) one column per class.
+  const classes = what === "prob" ? distinctLabels(labels) : 1;
+  checkOutputSize(outputRows(labels, newRows), classes > 2 ? classes : 1, {
+    fn: FN[what],
+    what: what === "prob" && classes > 2 ? `one probability column per class (${classes} classes) for each scored row` : "one value for each scored row",
+    hint: "Score fewer rows per formula (for example split new_rows over several formulas).",
+  });
   // One output column per row for CLASS, MARGIN and two-class PROB...
   const model = fittedModel(labels, predictors, opts, outputRows(labels, newRows), inputs);
   requireUsableFit(model);

@@ -15,6 +15,7 @@
 import fs from "fs";
 import path from "path";
 import { BUILD_TIMEOUT_MS, DIST, ensureBuild, ROOT } from "../browser/ensureBuild";
+import { startTags } from "../support/htmlTags";
 
 const SRC = path.join(ROOT, "src");
 
@@ -104,9 +105,16 @@ function parsePolicy(policy: string): Map<string, string[]> {
   return map;
 }
 
+/** The page's Content-Security-Policy meta tag, read with the HTML attribute rules (quoted or not). */
 function metaPolicy(html: string): string | null {
-  const m = /<meta\s+http-equiv=["']Content-Security-Policy["']\s+content=(?:"([^"]+)"|'([^']+)')/i.exec(html);
-  return m ? (m[1] ?? m[2]) : null;
+  const meta = startTags(html).find((t) => t.name === "meta" && (t.attributes.get("http-equiv") ?? "").toLowerCase() === "content-security-policy");
+  return meta?.attributes.get("content") ?? null;
+}
+
+/** The src of every script tag, and whether any script tag has no src (an inline script). */
+function scriptSources(html: string): { sources: string[]; inline: boolean } {
+  const scripts = startTags(html).filter((t) => t.name === "script");
+  return { sources: scripts.filter((t) => t.attributes.has("src")).map((t) => t.attributes.get("src") as string), inline: scripts.some((t) => !t.attributes.has("src")) };
 }
 
 /** The checks every policy of ours must pass. */
@@ -164,6 +172,15 @@ describe("privacy: no connections and no evaluated code in our sources", () => {
   });
 });
 
+describe("privacy: the page reader follows the HTML attribute rules", () => {
+  test("quoted, single-quoted, unquoted (minified) and boolean attributes; comments skipped", () => {
+    const minified = `<!-- <script src=https://x.example/a.js> --><meta http-equiv=Content-Security-Policy content="default-src 'self'"><script defer src=functions.js></script><script>inline()</script>`;
+    expect(metaPolicy(minified)).toBe("default-src 'self'");
+    expect(scriptSources(minified)).toEqual({ sources: ["functions.js"], inline: true });
+    expect(scriptSources(`<script src='a.js' async></script><SCRIPT SRC="b.js"></SCRIPT>`)).toEqual({ sources: ["a.js", "b.js"], inline: false });
+  });
+});
+
 describe("privacy: built bundles and pages", () => {
   beforeAll(() => ensureBuild(), BUILD_TIMEOUT_MS);
 
@@ -191,16 +208,16 @@ describe("privacy: built bundles and pages", () => {
   test("every script a page loads comes from our own folder", () => {
     for (const page of ["taskpane.html", "preview.html"]) {
       const html = fs.readFileSync(path.join(DIST, page), "utf8");
-      const sources = [...html.matchAll(/<script[^>]*\ssrc=["']([^"']+)["']/gi)].map((m) => m[1]);
+      const { sources, inline } = scriptSources(html);
       expect(sources.length).toBeGreaterThan(0);
       for (const s of sources) expect([page, s, /^(https?:)?\/\//i.test(s)]).toEqual([page, s, false]);
-      expect([page, /<script(?![^>]*\ssrc=)[^>]*>/i.test(html)]).toEqual([page, false]); // no inline scripts
+      expect([page, inline]).toEqual([page, false]); // no inline scripts
     }
   });
 
   test("the shared-runtime page (functions and pane) loads office.js from our folder, first", () => {
     const html = fs.readFileSync(path.join(DIST, "taskpane.html"), "utf8");
-    const sources = [...html.matchAll(/<script[^>]*\ssrc=["']([^"']+)["']/gi)].map((m) => m[1]);
+    const { sources } = scriptSources(html);
     expect(sources[0]).toBe("office-js/office.js");
     expect(sources).toEqual(expect.arrayContaining(["functions.js", "taskpane.js"]));
   });

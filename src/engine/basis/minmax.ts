@@ -45,6 +45,9 @@ export function fitMinmax(column: BasisColumn): MinmaxState {
 export function applyMinmax(state: MinmaxState, column: BasisColumn): BasisBlock {
   const notes: BasisBlock["notes"] = [];
   const x = readNumbers(column, "minmax", notes);
-  const range = state.max - state.min;
-  return { names: [...state.names], columns: [x.map((v) => (v - state.min) / range)], notes };
+  // Halved first: max - min of values near +-1.7e308 overflows to Infinity (every result would be
+  // 0 or NaN), while max/2 - min/2 and x/2 - min/2 are finite; the quotient is the same.
+  const range = state.max / 2 - state.min / 2;
+  const low = state.min / 2;
+  return { names: [...state.names], columns: [x.map((v) => (v / 2 - low) / range)], notes };
 }

@@ -25,12 +25,47 @@
  *   (any order; extra columns ignored), otherwise by position, which needs the training width.
  */
 import { formatMessage, listNames, problem, type MessageCode } from "../messages";
+import { INTERCEPT_TERM } from "../inference";
 import { compareText } from "./labels";
 import { detectHeader, isBlankCell, normalizeRange, parseNumericText, type Table, type TableColumn } from "./table";
 import type { CellValue, DesignMatrix, Diagnostic } from "../types";
 
 /** Name of the pooled rare-levels category. */
 export const OTHER_LEVEL = "(other)";
+
+/**
+ * Name of the indicator term of `level` in `column`: "column=level", or column="level" when quoted
+ * (to tell it from a column of that name) or when the level itself is wrapped in double quotes (so
+ * ODDS.SCORE, which removes one pair of quotes, reads the level back unchanged).
+ */
+export function indicatorTerm(column: string, level: string, quoted: boolean): string {
+  const wrapped = level.length >= 2 && level.startsWith('"') && level.endsWith('"');
+  return quoted || wrapped ? `${column}="${level}"` : `${column}=${level}`;
+}
+
+/**
+ * Make every term name unique (by construction, so a coefficient table names each term once and
+ * ODDS.SCORE can read it back): the intercept's name is reserved; a numeric column whose name another
+ * term already has is written in quotes ("(intercept)"), an indicator as column="level"; a name still
+ * taken gets " (2)", " (3)", ... Renames `names` and the encodings' terms in place.
+ */
+function uniqueTermNames(columns: ColumnEncoding[], names: string[]): void {
+  const taken = new Set<string>([INTERCEPT_TERM]);
+  let t = 0;
+  for (const c of columns) {
+    for (let k = 0; k < c.terms.length; k++, t++) {
+      let name = c.terms[k];
+      // A name another term (or the intercept) already holds is written in its quoted form...
+      if (taken.has(name)) name = c.kind === "category" ? indicatorTerm(c.name, c.levels.filter((l) => l !== c.reference)[k], true) : `"${c.name}"`;
+      // ...and numbered when even that is taken.
+      const base = name;
+      for (let n = 2; taken.has(name); n++) name = `${base} (${n})`;
+      taken.add(name);
+      c.terms[k] = name;
+      names[t] = name;
+    }
+  }
+}
 
 /** Most levels a text predictor may have after pooling (each level but the reference is a term). */
 export const MAX_LEVELS = 100;
@@ -203,6 +238,7 @@ export function buildDesign(table: Table, opts: BuildDesignOptions = {}): BuiltD
       names.push(enc.terms[t]);
     }
   }
+  uniqueTermNames(columns, names);
   return {
     design: { rows: m, columns: designColumns, names },
     encoding: { version: 1, columns, terms: names.slice(), header: table.header },
@@ -300,7 +336,7 @@ function encodeCategory(
     reference = matchLevel(levels, pooled, wantedRef.trim(), c.name);
   }
   // The reference level is the caller's, otherwise the first in sorted order.
-  const terms = levels.filter((l) => l !== reference).map((l) => `${c.name}=${l}`);
+  const terms = levels.filter((l) => l !== reference).map((l) => indicatorTerm(c.name, l, false));
   const encoding: ColumnEncoding & { kind: "category" } = { name: c.name, kind: "category", levels, reference, pooled, terms };
   // Codes of first appearance -> levels (pooled levels -> "(other)").
   const lookup = levelLookup(encoding);

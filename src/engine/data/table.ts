@@ -31,6 +31,12 @@
  * - Column names: the header text (trimmed); a blank header, or no header row, gives "x1", "x2", ...
  *   (prefix configurable); a repeated name gets " (2)", " (3)", ... appended.
  * - Ragged input (rows of different lengths) is rejected (RAGGED_RANGE); a lone scalar is a 1x1 range.
+ * - Error cells: an object in a cell (how a custom function with errors allowed receives #N/A and the
+ *   like, e.g. a CustomFunctions.Error or an error cell value) or text that is exactly an error's
+ *   literal ("#N/A", "#DIV/0!", ...: how the Excel JavaScript API reads an error cell) is an error
+ *   value, never data. errors="blank" (the default) reads it as a blank cell and counts it
+ *   (Table.errorCells: how many, and the first one's row, column and literal); errors="refuse" throws
+ *   ERROR_VALUE_CELL naming the cell. A header cell holding an error gets a generated name.
  * - Positions in messages are 1-based rows and columns of the range as the user selected it (the header
  *   row, when present, is row 1).
  */
@@ -76,6 +82,14 @@ export interface Table {
   trimmedRows: number;
   /** 1-based row of the range that holds data row 0 (2 with a header, 1 without). */
   firstRow: number;
+  /** Error cells read as blank (errors="blank"): how many, and the first (1-based row and column of the range). */
+  errorCells: ErrorCells;
+}
+
+/** Error values found in a range and read as blank cells. */
+export interface ErrorCells {
+  count: number;
+  first: { row: number; column: number; value: string } | null;
 }
 
 export interface ReadTableOptions {
@@ -85,6 +99,37 @@ export interface ReadTableOptions {
   headers?: "auto" | "yes" | "no";
   /** Prefix of generated column names ["x"]. */
   namePrefix?: string;
+  /** Error cells: read as blank and counted ["blank"], or refused with ERROR_VALUE_CELL. */
+  errors?: "blank" | "refuse";
+  /** Why an error cell cannot be used, for ERROR_VALUE_CELL ("metrics need a value in every row"). */
+  errorReason?: string;
+}
+
+/** The literals of Excel's error values, as the Excel JavaScript API reads error cells. */
+const ERROR_LITERALS = new Set([
+  "#N/A", "#DIV/0!", "#VALUE!", "#REF!", "#NAME?", "#NUM!", "#NULL!", "#SPILL!", "#CALC!",
+  "#GETTING_DATA", "#FIELD!", "#BLOCKED!", "#CONNECT!", "#BUSY!", "#UNKNOWN!", "#EXTERNAL!", "#PYTHON!",
+]);
+
+/**
+ * The error literal of a cell holding an error value ("#N/A"), or null for any other cell. An object
+ * names its error by `code` (CustomFunctions.Error), `basicValue` or `errorType` (error cell values);
+ * an object naming none is "an error value".
+ * @example errorLiteral("#N/A") // "#N/A"; errorLiteral({ code: "#DIV/0!" }) // "#DIV/0!"; errorLiteral("N/A") // null
+ */
+export function errorLiteral(v: unknown): string | null {
+  if (typeof v === "string") {
+    if (v.length > 40) return null;
+    const t = v.trim();
+    return t.charCodeAt(0) === 35 && ERROR_LITERALS.has(t) ? t : null;
+  }
+  if (v === null || typeof v !== "object" || Array.isArray(v)) return null;
+  const o = v as Record<string, unknown>;
+  for (const key of ["code", "basicValue", "errorType"]) {
+    const named = o[key];
+    if (typeof named === "string" && named.trim() !== "") return named.trim().slice(0, 40);
+  }
+  return "an error value";
 }
 
 /** Classification of one cell (NUM is 0, so a fresh kinds array reads "all numbers"). */
@@ -116,6 +161,8 @@ function classify(v: CellValue): number {
   if (typeof v === "number") return NUM;
   if (typeof v === "boolean") return BOOL;
   if (typeof v === "string") return classifyTrimmed(v.trim());
+  // An error value (an object in a cell) is no data.
+  if (typeof v === "object" && !Array.isArray(v)) return BLANK;
   return TEXT;
 }
 
@@ -124,6 +171,8 @@ function classifyTrimmed(t: string): number {
   if (t === "") return BLANK;
   // Numbers stored as text follow the locale-free rule (the regex runs only on a plausible start).
   const c = t.charCodeAt(0);
+  // An error's literal ("#N/A") is no data: blank wherever a kind is asked for (readColumns counts it).
+  if (c === 35 && ERROR_LITERALS.has(t)) return BLANK;
   const plausible = (c >= 48 && c <= 57) || c === 43 || c === 45 || c === 46;
   return plausible && NUMERIC_TEXT.test(t) ? NUM : TEXT;
 }
@@ -231,7 +280,8 @@ export function readTable(cells: CellValue[][], opts: ReadTableOptions): Table {
   if (n === 0) throw problem("EMPTY_RANGE", { argument });
 
   const names = makeNames(header ? rowsIn[0] : null, width, prefix);
-  const columns = readColumns(rowsIn, start, width, names, argument);
+  const errorCells: ErrorCells = { count: 0, first: null };
+  const columns = readColumns(rowsIn, start, width, names, argument, { policy: opts.errors ?? "blank", reason: opts.errorReason ?? "", found: errorCells });
   return {
     argument,
     header,
@@ -241,6 +291,7 @@ export function readTable(cells: CellValue[][], opts: ReadTableOptions): Table {
     rows: n,
     trimmedRows: total - end,
     firstRow: start + 1,
+    errorCells,
   };
 }
 
@@ -279,14 +330,21 @@ export function normalizeRange(
 
 function makeNames(headerRow: CellValue[] | null, width: number, prefix: string): string[] {
   const names: string[] = [];
-  const seen = new Map<string, number>();
+  const taken = new Set<string>();
+  const repeats = new Map<string, number>();
   for (let j = 0; j < width; j++) {
-    // A blank header cell (or no header row) gives a generated name.
-    let name = headerRow && !isBlankCell(headerRow[j]) ? textOf(headerRow[j]) : `${prefix}${j + 1}`;
-    const count = (seen.get(name) ?? 0) + 1;
-    seen.set(name, count);
-    // A repeated name gets " (2)", " (3)", ... appended.
-    if (count > 1) name = `${name} (${count})`;
+    // A blank header cell, an error value (or no header row) gives a generated name.
+    const h = headerRow ? headerRow[j] : null;
+    const base = h !== null && !isBlankCell(h) && errorLiteral(h) === null ? textOf(h) : `${prefix}${j + 1}`;
+    let name = base;
+    // A repeated name gets " (2)", " (3)", ... appended, skipping any suffix another header already
+    // holds ("a", "a", "a (2)" -> "a", "a (2)", "a (2) (2)"), so names are unique by construction.
+    for (let k = repeats.get(base) ?? 1; taken.has(name); ) {
+      k++;
+      repeats.set(base, k);
+      name = `${base} (${k})`;
+    }
+    taken.add(name);
     names.push(name);
   }
   return names;
@@ -300,7 +358,23 @@ function makeNames(headerRow: CellValue[] | null, width: number, prefix: string)
  * once). The per-column decisions (kind, a 0 sent for a blank, the majority rule) and their errors
  * then follow column by column, in the same order as reading one column after another would raise them.
  */
-function readColumns(rows: CellValue[][], start: number, width: number, names: string[], argument: string): TableColumn[] {
+/** How readColumns treats error cells, and where it counts the ones read as blank. */
+interface ErrorPolicy {
+  policy: "blank" | "refuse";
+  reason: string;
+  found: ErrorCells;
+}
+
+/** Handle the error cell `literal` at data row i, column j: refuse it or count it (it is then read as blank). */
+function errorCell(e: ErrorPolicy, literal: string, argument: string, row: number, column: number): void {
+  if (e.policy === "refuse") {
+    throw problem("ERROR_VALUE_CELL", { argument, value: literal, row, column, what: e.reason || "it cannot be used as data" });
+  }
+  if (e.found.count === 0) e.found.first = { row, column, value: literal };
+  e.found.count++;
+}
+
+function readColumns(rows: CellValue[][], start: number, width: number, names: string[], argument: string, errors: ErrorPolicy): TableColumn[] {
   const n = rows.length - start;
   const kinds: Uint8Array[] = [];
   const nums: Float64Array[] = [];
@@ -332,7 +406,10 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
       }
       // Text is trimmed once: for its kind, its number, and its value in a text column (kept).
       const t = typeof v === "string" ? v.trim() : null;
-      const k = t !== null ? classifyTrimmed(t) : classify(v);
+      // An error value (an object, or an error's literal) is never data: refused, or read as blank.
+      const isError = t !== null ? t.charCodeAt(0) === 35 && ERROR_LITERALS.has(t) : typeof v === "object" && v !== null && !Array.isArray(v);
+      if (isError) errorCell(errors, errorLiteral(v) as string, argument, start + i + 1, j + 1);
+      const k = isError ? BLANK : t !== null ? classifyTrimmed(t) : classify(v);
       kinds[j][i] = k;
       if (k === BLANK) {
         nums[j][i] = NaN;
@@ -361,7 +438,10 @@ function readColumns(rows: CellValue[][], start: number, width: number, names: s
   for (let j = 0; j < width; j++) {
     if (firstNonFinite[j] >= 0) {
       const i = firstNonFinite[j];
-      throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value: String(nums[j][i]) });
+      // Numeric text is quoted as typed ("1e999" overflows; its number would read "Infinity").
+      const typed = rows[start + i][j];
+      const value = typeof typed === "string" ? `"${typed.trim()}" (too large for a number)` : String(nums[j][i]);
+      throw problem("NOT_FINITE_VALUE", { argument, row: start + i + 1, column: j + 1, value });
     }
     // Every number is finite here: the numbers (and numeric text) are the cells of no other kind.
     const nNum = n - nBlank[j] - nBool[j] - nText[j];

@@ -223,7 +223,7 @@ describe("readTable: shape", () => {
     const e = caught(() => read([[1, 2], [3, 4], [5]]));
     expect(e.code).toBe("RAGGED_RANGE");
     expect(e.message).toBe(
-      "Row 3 of the predictors range has 1 cells but row 1 has 2. Pass a rectangular range.",
+      "Row 3 of the predictors range has 1 cell but row 1 has 2. Pass a rectangular range.",
     );
   });
 

@@ -46,7 +46,8 @@ describe("payload guard and the fit cache", () => {
 
   test("a cached fit does not let an oversized scoring call through (RANGE_TOO_LARGE)", () => {
     fitCell(labels, predictors, null);
-    const huge = Array.from({ length: 1_100_000 }, () => [0.5]);
+    // Inputs plus output over 5 MB while the output alone (one value per row) fits the sheet.
+    const huge = Array.from({ length: 200_000 }, () => [0.5, 0.5, 0.5]);
     expect(codeOf(() => probCell(labels, predictors, huge, null))).toBe("RANGE_TOO_LARGE");
   });
 });

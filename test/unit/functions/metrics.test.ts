@@ -121,10 +121,15 @@ describe("ODDS.LOGLOSS", () => {
 
 describe("ODDS.AUC", () => {
   const marker = asah.markers.find((m) => m.marker === "s100b") as (typeof asah.markers)[number];
+  // s100b is a concentration (up to about 2), not a probability, and every metric now refuses values
+  // outside [0, 1]: it is divided by a constant above its maximum. The AUC and its DeLong interval
+  // depend only on the order of the values (DeLong et al. 1988), which a positive scaling keeps.
+  const s100bMax = Math.max(...asah.s100b);
+  const s100b = asah.s100b.map((v) => v / (2 * s100bMax));
 
   test("aSAH s100b: AUC and DeLong 95% interval agree with pROC", () => {
     const labels = column("outcome", asah.label.map((y) => (y === 1 ? "Poor" : "Good")));
-    const out = auc(labels, column("s100b", asah.s100b), [["positive=Poor"]]);
+    const out = auc(labels, column("s100b", s100b), [["positive=Poor"]]);
     expectCleanCells(out);
     expect(out[0]).toEqual(["AUC (positive: Poor)", "lower 95%", "upper 95%", "std. error", "rows used"]);
     expectClose(out[1][0], marker.auc, R_PRINT_TOLERANCE, "AUC");
@@ -135,7 +140,7 @@ describe("ODDS.AUC", () => {
   });
 
   test("level=0.9 gives pROC's 90% interval", () => {
-    const out = auc(column("y", asah.label), column("s100b", asah.s100b), [["level", 0.9]]);
+    const out = auc(column("y", asah.label), column("s100b", s100b), [["level", 0.9]]);
     expect(out[0][1]).toBe("lower 90%");
     expectClose(out[1][1], marker.ci90[0], R_PRINT_TOLERANCE, "lower 90");
     expectClose(out[1][2], marker.ci90[1], R_PRINT_TOLERANCE, "upper 90");

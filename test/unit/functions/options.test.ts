@@ -105,11 +105,11 @@ describe("parseOptions: problems", () => {
     );
   });
 
-  test("a number with a decimal comma is not read as a number (the comma separates options)", () => {
+  test("a number with a decimal comma is not read as a number, and the message says the comma separates options", () => {
     const e = caught(() => parse("level=0,9"));
-    expect(e.code).toBe("OPTION_SYNTAX");
+    expect(e.code).toBe("OPTION_DECIMAL_COMMA");
     expect(e.message).toBe(
-      'The options text "level=0,9" could not be read at "9". Write name=value pairs separated by semicolons, e.g. "penalty=0.1; level=0.9".',
+      'The options text "level=0,9" has "9" after a comma. Commas and semicolons separate options, so write decimals with a point (e.g. "level=0.9").',
     );
   });
 
@@ -163,7 +163,7 @@ describe("parseOptions: problems", () => {
     const e = caught(() => parse(3));
     expect(e.code).toBe("OPTION_SYNTAX");
     expect(e.message).toBe(
-      'The options text "3" could not be read at "3". Write name=value pairs separated by semicolons, e.g. "penalty=0.1; level=0.9".',
+      'The options text "3" could not be read at "3". Write name=value pairs separated by semicolons (or line breaks), e.g. "penalty=0.1; level=0.9".',
     );
   });
 
@@ -171,7 +171,7 @@ describe("parseOptions: problems", () => {
     const e = caught(() => parse([[1, 2]]));
     expect(e.code).toBe("OPTION_SYNTAX");
     expect(e.message).toBe(
-      'The options text "1 | 2" could not be read at "1". Write name=value pairs separated by semicolons, e.g. "penalty=0.1; level=0.9".',
+      'The options text "1 | 2" could not be read at "1". Write name=value pairs separated by semicolons (or line breaks), e.g. "penalty=0.1; level=0.9".',
     );
   });
 });

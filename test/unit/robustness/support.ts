@@ -206,7 +206,8 @@ export const fittableRanges: fc.Arbitrary<{ labels: Range; predictors: Range; he
 
 /** A regular expression matching any filling of a catalogue template. */
 export function templatePattern(code: MessageCode): RegExp {
-  const parts = MESSAGES[code].template.split(/\{\w+\}/);
+  // Placeholders: {name}, and {name|one|other} (a word chosen by a count).
+  const parts = MESSAGES[code].template.split(/\{\w+(?:\|[^|{}]*\|[^|{}]*)?\}/);
   const escaped = parts.map((p) => p.replace(/[.*+?^${}()|[\]\\]/g, "\\$&"));
   return new RegExp(`^${escaped.join("[\\s\\S]*?")}$`);
 }

@@ -287,7 +287,7 @@ describe("length mismatch", () => {
 
   test("a multi-class probability column of another length names the column", () => {
     const e = expectProblem(() => multiclassBrierScore(Int32Array.from([0, 1]), [f64([0.5, 0.5]), f64([0.5])]), "RANGE_SHAPE_MISMATCH");
-    expect(e.message).toContain("probabilities (column 2) range has 1 rows but classes has 2");
+    expect(e.message).toContain("probabilities (column 2) range has 1 row but classes has 2");
   });
 
   test("empty input: EMPTY_RANGE", () => {

@@ -1,0 +1,206 @@
+/**
+ * Regression tests of robustness issue 12 (round two), one block per point of the issue. Each
+ * reproduces the reported call through the registry (as the sheet calls it) and states what must
+ * happen now; docs/numeric-extremes.md and docs/errors.md say the same in words.
+ */
+import { evaluateCellFunction as call } from "../../../src/functions/registry";
+import { CellFunctionFailure } from "../../../src/functions/cellError";
+import { fitCellText, levelLabel } from "../../../src/functions/cellOutput";
+import { MAX_CELL_TEXT } from "../../../src/functions/sheetLimits";
+import { checkFirthWork, FIRTH_WORK_LIMIT } from "../../../src/engine/data/fitWork";
+import { formatMessage, MAX_PARAM_CHARS } from "../../../src/engine/messages";
+import { readTable } from "../../../src/engine/data/table";
+import type { CellValue } from "../../../src/engine/types";
+import { firthCaseRanges } from "../../../bench/firthLimit";
+
+type Range = CellValue[][];
+
+function failure(f: () => unknown): CellFunctionFailure {
+  try {
+    f();
+  } catch (e) {
+    if (e instanceof CellFunctionFailure) return e;
+    throw e;
+  }
+  throw new Error("expected a cell error");
+}
+
+/** 14 rows of a small binary problem (labels, one numeric column) with headers. */
+const Y: Range = [["y"], ...[0, 1, 0, 1, 1, 0, 1, 0, 1, 0, 1, 1, 0, 0].map((v) => [v])];
+const column = (f: (i: number) => CellValue): Range => Y.slice(1).map((_, i) => [f(i)]);
+
+/** Probabilities of a softmax row add up to 1 within this (a sum of a few doubles of at most 1). */
+const SUM_TOLERANCE = 1e-12;
+
+describe("1. outputs are sized before the work and refused with the sheet's limits", () => {
+  test("BASIS levels on 5,000 distinct texts is refused at once, naming the output and the limits", () => {
+    const data: Range = [["a"], ...Array.from({ length: 5000 }, (_, i) => [`t${i}`])];
+    const e = failure(() => call("BASIS", [data, [["a: levels"]]]));
+    expect(e.code).toBe("OUTPUT_TOO_LARGE");
+    expect(e.message).toContain("ODDS.BASIS would return 5,001 rows x 5,000 columns");
+    expect(e.message).toContain("1,048,576 rows and 16,384 columns");
+  });
+
+  test("pairs on 200 columns and poly(10) on 12 columns exceed 16,384 columns: refused", () => {
+    const wide = (m: number): Range => [Array.from({ length: m }, (_, j) => `c${j}`), ...Array.from({ length: 4 }, (_, i) => Array.from({ length: m }, (_, j) => i * j + 1))];
+    expect(failure(() => call("BASIS", [wide(200), [["*: pairs"]]])).message).toContain("19,900 columns");
+    expect(failure(() => call("BASIS", [wide(12), [["*: poly(10)"]]])).code).toBe("OUTPUT_TOO_LARGE");
+  });
+
+  test("PROB with 45 classes on 10,000 rows blames the output, not the input", () => {
+    const labels: Range = [["y"], ...Array.from({ length: 10000 }, (_, i) => [`k${i % 45}`])];
+    const predictors: Range = [["x"], ...Array.from({ length: 10000 }, (_, i) => [i % 7])];
+    const e = failure(() => call("PROB", [labels, predictors]));
+    expect(e.code).toBe("OUTPUT_TOO_LARGE");
+    expect(e.message).toContain("ODDS.PROB");
+  });
+
+  test("SCORE with 300 classes over 5,000 rows is refused before scoring", () => {
+    const table: Range = [["class (reference: c0)", "term", "coefficient"], ...Array.from({ length: 299 }, (_, k) => [`c${k + 1}`, "(intercept)", k / 100])];
+    const rows: Range = [["x"], ...Array.from({ length: 5000 }, (_, i) => [i])];
+    expect(failure(() => call("SCORE", [table, rows])).code).toBe("OUTPUT_TOO_LARGE");
+  });
+});
+
+describe("2. no text over 32,767 characters reaches a cell", () => {
+  test("a long header is cut with a note saying how much was dropped", () => {
+    const name = "h".repeat(40_000);
+    const out = call("BASIS", [[[name], [1], [2], [3]], [[`"${name}": z`]]]);
+    const header = out[0][0] as string;
+    expect(header.length).toBeLessThanOrEqual(MAX_CELL_TEXT);
+    expect(header).toMatch(/cut: [\d,]+ more characters; a cell holds at most 32,767\]$/);
+  });
+
+  test("fitCellText keeps short text and never splits a surrogate pair", () => {
+    expect(fitCellText("abc")).toBe("abc");
+    const cut = fitCellText("🍎".repeat(20_000));
+    expect(cut.length).toBeLessThanOrEqual(MAX_CELL_TEXT);
+    expect(cut).not.toMatch(/[\ud800-\udbff](?![\udc00-\udfff])/);
+  });
+
+  test("a message quoting a huge cell stays short (placeholders are capped)", () => {
+    const m = formatMessage("NOT_A_NUMBER", { argument: "x", row: 2, column: 1, value: "v".repeat(40_000) });
+    expect(m.length).toBeLessThan(MAX_PARAM_CHARS + 200);
+  });
+});
+
+describe("3. error cells are missing values (counted, named) or refused, per argument", () => {
+  const predictors: Range = [["x"], ...column((i) => (i * 7) % 5)];
+  test("#N/A in a yes/no label column skips the row with a warning, never a third class", () => {
+    const labels: Range = [["y"], ...column((i) => (i === 2 ? ({ code: "#N/A" } as unknown as CellValue) : i % 3 === 0 ? "yes" : "no")) as Range];
+    const out = call("FIT", [labels, predictors]);
+    expect(out[0][0]).toBe("class (positive: yes)");
+    expect(out.some((r) => /1 cell of the labels range holds an error value \(first: #N\/A in row 4, column 1\)/.test(String(r[0])))).toBe(true);
+  });
+
+  test("an error literal in a text predictor is blank, not a category", () => {
+    const labels: Range = [["y"], ...column((i) => (i % 3 === 0 ? "yes" : "no"))];
+    const text: Range = [["x", "r"], ...Y.slice(1).map((_, i) => [(i * 7) % 5, i === 5 ? "#N/A" : ["S", "T"][i % 2]])];
+    const terms = call("FIT", [labels, text]).map((r) => r[1]);
+    expect(terms).not.toContain("r=#N/A");
+    expect(readTable(text, { argument: "predictors" }).errorCells).toEqual({ count: 1, first: { row: 7, column: 2, value: "#N/A" } });
+  });
+
+  test("metrics refuse an error cell, naming the argument and the cell", () => {
+    const e = failure(() => call("LOGLOSS", [[["y"], [1], [0]], [["p"], [{ code: "#DIV/0!" } as unknown as CellValue], [0.2]]]));
+    expect(e.code).toBe("ERROR_VALUE_CELL");
+    expect(e.message).toContain("The probabilities range holds the error value #DIV/0! in row 2, column 1");
+  });
+});
+
+describe("4. Firth's cost is bounded by a work estimate", () => {
+  test("2,000 rows x 400 terms is refused before fitting, with an accepted size as example", () => {
+    expect(() => checkFirthWork(2000, 401)).toThrow(/at most 111 terms at 2,000 rows/);
+    expect(() => checkFirthWork(1100, 150)).not.toThrow();
+    expect(1100 * 150 * 150).toBeLessThanOrEqual(FIRTH_WORK_LIMIT);
+  });
+
+  test("FIT firth=true over the limit is FIRTH_TOO_COSTLY; the benchmark's case is accepted by the limit", () => {
+    const { labels, predictors } = firthCaseRanges(300, 300);
+    expect(failure(() => call("FIT", [labels, predictors, [["firth=true"]]])).code).toBe("FIRTH_TOO_COSTLY");
+  });
+});
+
+describe("5. wrong or blank answers at the ends of the double range", () => {
+  test("minmax on [1.7e308, -1.7e308, 0] is 1, 0, 0.5", () => {
+    expect(call("BASIS", [[["a"], [1.7e308], [-1.7e308], [0]], [["a: minmax"]]])).toEqual([["minmax(a)"], [1], [0], [0.5]]);
+  });
+
+  test("SCORE's multi-class probabilities add up to 1 for intercepts of 1e15 and more", () => {
+    for (const b of [1e15, 1e200]) {
+      const out = call("SCORE", [[["class (reference: A)", "term", "coefficient"], ["B", "(intercept)", b], ["C", "(intercept)", b]], [["x"], [1]]]);
+      const p = out[1] as number[];
+      expect(Math.abs(p[0] + p[1] + p[2] - 1)).toBeLessThan(SUM_TOLERANCE);
+      expect(p).toEqual([0, 0.5, 0.5]);
+    }
+  });
+
+  test("a binary score whose linear predictor overflows is 1 or 0, not blank", () => {
+    const out = call("SCORE", [[["class (positive: y)", "term", "coefficient"], ["y", "(intercept)", 1e308], ["y", "x", 1e308]], [["x"], [1], [-2]]]);
+    expect(out).toEqual([["P(y)"], [1], [0]]);
+  });
+});
+
+describe("6. term names are unique by construction, and SCORE reads FIT's own table", () => {
+  const labels = Y;
+  const cases: [string, Range][] = [
+    ["headers a, a, a (2)", [["a", "a", "a (2)"], ...Y.slice(1).map((_, i) => [i % 3, (i * 7) % 5, (i * i) % 4])]],
+    ["a header (intercept)", [["(intercept)", "b"], ...Y.slice(1).map((_, i) => [i % 3, (i * 7) % 5])]],
+    ["a numeric column r=S beside text column r holding S", [["r=S", "r"], ...Y.slice(1).map((_, i) => [(i * 7) % 5, ["A", "S"][i % 2]])]],
+  ];
+  test.each(cases)("%s", (_, predictors) => {
+    const table = call("FIT", [labels, predictors]);
+    const terms = table.slice(1).map((r) => r[1]).filter((t) => t !== "" && !String(t).includes(" were ") && !String(t).includes(" was "));
+    expect(new Set(terms).size).toBe(terms.length);
+    const fitted = call("PROB", [labels, predictors]).slice(1).map((r) => r[0] as number);
+    const scored = call("SCORE", [table, predictors]).slice(1).map((r) => r[0] as number);
+    scored.forEach((p, i) => expect(p).toBeCloseTo(fitted[i], 10));
+  });
+
+  test("class (reference: B) with an equation for B is refused; class (reference: ) names no P())", () => {
+    expect(failure(() => call("SCORE", [[["class (reference: B)", "term", "coefficient"], ["B", "(intercept)", 1], ["C", "(intercept)", 1]], [["x"], [1]]])).code).toBe("COEFFICIENT_REFERENCE_IS_EQUATION");
+    expect(call("SCORE", [[["class (reference: )", "term", "coefficient"], ["B", "(intercept)", 1], ["C", "(intercept)", 1]], [["x"], [1]]])[0]).toEqual(["P(reference)", "P(B)", "P(C)"]);
+  });
+});
+
+describe("7. one validation rule for the metrics", () => {
+  test("AUC refuses probabilities of 1.5 and -0.1 like LOGLOSS", () => {
+    for (const fn of ["AUC", "LOGLOSS", "CONFUSION", "CALIBRATION"]) {
+      expect([fn, failure(() => call(fn, [[[1], [0], [1]], [[1.5], [-0.1], [0.4]]])).code]).toEqual([fn, "BAD_PROBABILITY"]);
+    }
+  });
+});
+
+describe("8. messages", () => {
+  test("a wrong new_rows range is named new_rows", () => {
+    const predictors: Range = [["x", "z"], ...Y.slice(1).map((_, i) => [(i * 7) % 5, i % 3])];
+    expect(failure(() => call("PROB", [Y, predictors, [[1], [2]]])).message).toContain("new_rows");
+  });
+
+  test("penalty=0,5 says the comma is a separator; a line break separates; a third column is refused", () => {
+    const predictors: Range = [["x"], ...column((i) => (i * 7) % 5)];
+    const e = failure(() => call("FIT", [Y, predictors, [["penalty=0,5"]]]));
+    expect(e.code).toBe("OPTION_DECIMAL_COMMA");
+    expect(e.message).toContain('"penalty=0.5"');
+    expect(call("FIT", [Y, predictors, [["level=0.9\npenalty=0"]]])[0][6]).toBe("lower 90%");
+    expect(failure(() => call("FIT", [Y, predictors, [["level", 0.9, "x"]]])).code).toBe("OPTIONS_RANGE_SHAPE");
+  });
+
+  test("1e999 is quoted as typed, not called Infinity", () => {
+    const e = failure(() => call("FIT", [Y, [["x"], ...column((i) => (i === 0 ? "1e999" : i))]]));
+    expect(e.message).toContain('"1e999"');
+    expect(e.message).not.toContain("Infinity");
+  });
+
+  test("level=0.999999999999 is not labelled 100%", () => {
+    expect(levelLabel(0.999999999999)).toBe("99.9999999999%");
+    expect(levelLabel(0.95)).toBe("95%");
+    expect(levelLabel(1)).toBe("100%");
+  });
+
+  test("singular and plural", () => {
+    expect(formatMessage("RANGE_SHAPE_MISMATCH", { argument: "a", got: 1, expectedArgument: "b", expected: 2 })).toContain("has 1 row but");
+    expect(formatMessage("BASIS_MANY_COLUMNS", { columns: 1, rows: 1, ratio: 1, rule: 10 })).toContain("makes 1 column for 1 row (");
+    expect(formatMessage("SEPARATION_QUASI", { columns: '"a"', count: 1, rows: "3" })).toMatch(/^The classes are separated by "a" for 1 row \(for example row 3\)/);
+  });
+});
