@@ -42,3 +42,5 @@ export { scoreRows, trainModel } from "./model";
 export type { ModelOptions, RowScores, TrainedModel } from "./model";
 export { logSumExp, sigmoid } from "./numerics";
 export type { CellValue, CoefficientRow, Diagnostic, ModelFit } from "./types";
+export { chooseThreshold } from "./evaluation/chooseThreshold";
+export type { ThresholdChoice, ThresholdRule } from "./evaluation/chooseThreshold";

@@ -158,3 +158,18 @@ export function score(coefficients: any[][], rows: any[][]): any[][] {
 export function basis(data: any[][], recipe: any[][], training_data?: any[][]): any[][] {
   return runCell(F.BASIS.doing, () => F.BASIS.adapter(data, recipe, training_data ?? null));
 }
+
+// ---- Evaluation functions (issue 13) ----
+
+/**
+ * Chooses a decision threshold for two-class probabilities: least expected cost for a cost ratio of false positives to false negatives, a target sensitivity, or a review budget of rows; spills the confusion counts at it.
+ * @customfunction CUTOFF CUTOFF
+ * @helpurl https://localhost:3000/help.html#cutoff
+ * @param labels Actual classes (two), one per row.
+ * @param probabilities Predicted probability of the positive class, one per row.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "cost=0.25", "sensitivity=0.9" or "budget=50".
+ * @returns The rule, the threshold, rows flagged, expected cost, the 2 x 2 counts and rates.
+ */
+export function cutoff(labels: any[][], probabilities: any[][], options?: any[][]): any[][] {
+  return runCell(F.CUTOFF.doing, () => F.CUTOFF.adapter(labels, probabilities, options ?? null));
+}

@@ -29,3 +29,31 @@ export const LOGLOSS_OPTIONS = [OPT_POSITIVE, OPT_HEADERS] as const;
 export const AUC_OPTIONS = [OPT_POSITIVE, OPT_LEVEL, OPT_HEADERS] as const;
 export const CONFUSION_OPTIONS = [OPT_POSITIVE, OPT_THRESHOLD, OPT_HEADERS] as const;
 export const CALIBRATION_OPTIONS = [OPT_POSITIVE, OPT_GROUPS, OPT_SAMPLE, OPT_HEADERS] as const;
+
+/** ODDS.CUTOFF rules: one of cost, sensitivity, budget (cost = 1 when none is given). */
+export const OPT_COST = {
+  name: "cost",
+  type: "number",
+  min: 0,
+  minExclusive: true,
+  default: null,
+  help: "Cost of a false positive divided by the cost of a false negative; the threshold with the least expected cost is chosen (default 1).",
+} as const satisfies NumberSpec;
+export const OPT_SENSITIVITY = {
+  name: "sensitivity",
+  type: "number",
+  min: 0,
+  max: 1,
+  default: null,
+  help: "Target sensitivity: the highest threshold whose sensitivity reaches it.",
+} as const satisfies NumberSpec;
+export const OPT_BUDGET = {
+  name: "budget",
+  type: "number",
+  min: 0,
+  max: 1048576,
+  integer: true,
+  default: null,
+  help: "Review budget: the lowest threshold that flags at most this many rows (tied rows stay together).",
+} as const satisfies NumberSpec;
+export const CUTOFF_OPTIONS = [OPT_POSITIVE, OPT_COST, OPT_SENSITIVITY, OPT_BUDGET, OPT_HEADERS] as const;

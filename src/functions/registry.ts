@@ -17,6 +17,7 @@ import { classCell, marginCell, probCell } from "./predictCells";
 import { reportCell } from "./reportCell";
 import { logLossCell } from "./logLossCell";
 import { aucCell } from "./aucCell";
+import { cutoffCell } from "./cutoffCell";
 import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
@@ -87,6 +88,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   spec("SCORE", "scoring rows from a coefficient table", [req("coefficients"), req("rows")], (c, r) => scoreCell(c, r)),
   spec("BASIS", "building basis columns", [req("data"), req("recipe"), opt("training_data")], (d, r, t) =>
     basisCellGuarded(d, r, t ?? null),
+  ),
+  spec("CUTOFF", "choosing the threshold", [req("labels"), req("probabilities"), opt("options")], (l, p, o) =>
+    cutoffCell(l, p, o ?? null),
   ),
 ];
 
