@@ -15,11 +15,32 @@
  * - thresholdChooser: the engine's threshold for a cost ratio FP : FN, a target sensitivity or a
  *   review budget (top N rows), from the labels and probabilities the section shows.
  */
+import { chooseThreshold, type ThresholdRule } from "../engine";
 import type { ThresholdChooser } from "./evaluationController";
+import { shortestThreshold } from "./evaluationGeometry";
 import type { CvCompute } from "./evaluationRunner";
 
 /** The path computation (see CvCompute), or null where the build lacks the engine's cross-validation. */
 export const pathCompute: CvCompute | null = null;
 
-/** The engine's threshold choice, or null where the build lacks it. */
-export const thresholdChooser: ThresholdChooser | null = null;
+/** The engine's threshold choice (chooseThreshold), with a note of what it found. */
+export const thresholdChooser: ThresholdChooser | null = (labels, probabilities, goal, value) => {
+  const rule: ThresholdRule =
+    goal === "cost" ? { rule: "cost", costRatio: value } : goal === "sensitivity" ? { rule: "sensitivity", target: value } : { rule: "budget", budget: value };
+  const found = chooseThreshold(labels, probabilities, rule);
+  const c = found.counts;
+  // Shown and used as the shortest decimal that flags exactly the same rows (p >= threshold).
+  let below = 0;
+  for (const q of probabilities) if (q < found.threshold && q > below) below = q;
+  const threshold = found.threshold >= 1 ? found.threshold : shortestThreshold(found.threshold, below);
+  const why =
+    goal === "cost"
+      ? `least expected cost ${found.expectedCost.toPrecision(4)} per row at a cost ratio FP : FN of ${value}`
+      : goal === "sensitivity"
+        ? `highest threshold reaching sensitivity ${value}`
+        : `lowest threshold flagging at most ${value} rows`;
+  return {
+    threshold,
+    note: `Threshold ${threshold}: ${why}; ${found.flaggedRows} rows flagged (TP ${c.truePositives}, FP ${c.falsePositives}, TN ${c.trueNegatives}, FN ${c.falseNegatives}).`,
+  };
+};

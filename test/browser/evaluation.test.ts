@@ -9,6 +9,7 @@ import type { Page } from "playwright-core";
 import { nearBoundaryRows } from "../../src/engine/boundary";
 import { rocAuc } from "../../src/engine/metrics/rocAuc";
 import { confusionCounts } from "../../src/engine/metrics/confusionCounts";
+import { chooseThreshold } from "../../src/engine/evaluation/chooseThreshold";
 import { scoreRows, trainModel } from "../../src/engine/model";
 import { readModelOptions } from "../../src/functions/modelCell";
 import { DEMO_SHEETS } from "../../src/preview/demo";
@@ -113,6 +114,23 @@ describe("evaluation section", () => {
     expect(title).toBe(`Threshold 0.3: sensitivity ${counts.sensitivity.toFixed(3)}, false positive rate ${(1 - counts.specificity).toFixed(3)}`);
     // The boundary plot's legend follows the new threshold too.
     expect(await page.textContent("#osm-plot-legend")).toContain("boundary where p = 0.3");
+    await page.close();
+  });
+
+  test("a review budget in the chooser moves the review threshold to the engine's budget threshold", async () => {
+    const page = await openFitted(360);
+    await page.selectOption("#osm-goal", "budget");
+    await page.fill("#osm-goal-value", "25");
+    await page.click("#osm-goal-apply");
+    const { labels, p } = engineFit();
+    const expected = chooseThreshold(labels, p, { rule: "budget", budget: 25 });
+    await page.waitForFunction(() => /rows flagged/.test(document.querySelector("#osm-chooser-note")?.textContent ?? ""));
+    expect(await page.textContent("#osm-chooser-note")).toContain(`${expected.flaggedRows} rows flagged`);
+    const shown = Number(await page.$eval("#osm-review-threshold", (e) => (e as HTMLInputElement).value));
+    // The review box shows the shortest decimal that flags exactly the same rows.
+    expect(confusionCounts(labels, p, { threshold: shown }).truePositives + confusionCounts(labels, p, { threshold: shown }).falsePositives).toBe(expected.flaggedRows);
+    await page.$eval("#osm-threshold-chooser", (e) => e.scrollIntoView({ block: "center" }));
+    saveArtifact("evaluation-budget-chooser.png", await page.screenshot());
     await page.close();
   });
 

@@ -24,6 +24,8 @@ import { rocAuc } from "../../../src/engine/metrics/rocAuc";
 import { confusionCounts } from "../../../src/engine/metrics/confusionCounts";
 import { calibrationTable } from "../../../src/engine/metrics/calibrationTable";
 import { problem } from "../../../src/engine/messages";
+import { chooseThreshold } from "../../../src/engine/evaluation/chooseThreshold";
+import { thresholdChooser } from "../../../src/taskpane/evaluationCompute";
 import { readModelOptions } from "../../../src/functions/modelCell";
 
 /** A stepped computation for the runner tests: `steps` progress reports, then a fixed path. */
@@ -152,6 +154,35 @@ describe("evaluation of the pane's fit", () => {
     expect(asked).toEqual([[240, 240, "cost", 2]]);
     expect(pane.reviewSettings.threshold).toBe(0.42);
     expect(evaluation.chooserNote).toBe("note from the chooser");
+  });
+
+  test("the built chooser (the engine's chooseThreshold) moves the review to the engine's threshold for each goal", async () => {
+    const workbook = new MemoryWorkbook({ evaluator: evaluateFormula });
+    const sheet = loadDemo(workbook);
+    workbook.select(sheet, { top: 3, left: 2, bottom: 3, right: 2 });
+    const pane = new PaneController({ port: new MemoryPort(workbook), runner: "inline", refreshDelayMs: 0 });
+    await pane.useSelection();
+    expect(thresholdChooser).not.toBeNull();
+    const evaluation = new EvaluationController(pane, new InlineEvaluationRunner(countingCompute(1)), thresholdChooser);
+    expect(evaluation.canChooseByGoal).toBe(true);
+    await pane.fit(false);
+    const { p, labels } = engine();
+    const cases = [
+      { kind: "cost", value: 3, rule: { rule: "cost", costRatio: 3 } },
+      { kind: "sensitivity", value: 0.9, rule: { rule: "sensitivity", target: 0.9 } },
+      { kind: "budget", value: 25, rule: { rule: "budget", budget: 25 } },
+    ] as const;
+    for (const c of cases) {
+      const expected = chooseThreshold(labels, p, c.rule);
+      await evaluation.chooseThreshold({ kind: c.kind, value: c.value });
+      // The review uses the shortest decimal that flags exactly the engine's rows.
+      const used = pane.reviewSettings.threshold;
+      const flagged = p.filter((q) => q >= used).length;
+      expect(flagged).toBe(p.filter((q) => q >= expected.threshold).length);
+      expect(evaluation.chooserNote).toContain(`${expected.flaggedRows} rows flagged`);
+    }
+    // The budget goal flags at most the budget (ties stay together).
+    expect(chooseThreshold(labels, p, { rule: "budget", budget: 25 }).flaggedRows).toBeLessThanOrEqual(25);
   });
 
   test("split by a column: one calibration table per value, each the engine's table on that value's rows", async () => {
