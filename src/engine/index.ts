@@ -9,6 +9,7 @@ export { TRANSFORM_NAMES, applyRecipe, fitRecipe, parseRecipe } from "./basis/re
 export type { RecipeState } from "./basis/recipe";
 export { nearBoundaryRows } from "./boundary";
 export type { BoundaryReview } from "./boundary";
+export { agreeHeaders } from "./data/alignRanges";
 export { compareText, matchClass, readLabels } from "./data/labels";
 export type { LabelInfo } from "./data/labels";
 export { isBlankCell, parseNumericText, rangeRow, readTable } from "./data/table";

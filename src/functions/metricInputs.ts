@@ -16,7 +16,7 @@
  *   probabilities blank is an error (METRIC_MISSING_VALUE) naming the sheet row.
  * - Row numbers in every message are 1-based rows of the ranges as selected (header row = row 1).
  */
-import { compareText, matchClass, readLabels, OddsmithError, listNames, problem, readTable, type LabelInfo, type HeaderEvidence, type Table, type CellValue } from "../engine";
+import { agreeHeaders, compareText, matchClass, readLabels, OddsmithError, listNames, problem, readTable, type LabelInfo, type Table, type CellValue } from "../engine";
 
 export interface MetricInputOptions {
   /** Function name as the user sees it, for messages ("ODDS.AUC"). */
@@ -45,8 +45,6 @@ export interface MetricInputs {
   /** 1-based row of the labels range (as selected) of each used row. */
   sheetRows: Int32Array;
 }
-
-const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, weak: 1, none: 0 };
 
 /** "P(yes)" -> "yes"; "yes" -> "yes". */
 export function classFromHeader(name: string): string {
@@ -101,19 +99,17 @@ export function readMetricInputs(
   options: MetricInputOptions,
 ): MetricInputs {
   const headers = options.headers ?? "auto";
-  let labelTable = readTable(labelCells, { argument: "labels", headers });
+  // The two ranges share one header decision (the engine's header-agreement rule; probabilities win a tie).
+  const ranges = [
+    { argument: "labels", cells: labelCells },
+    { argument: "probabilities", cells: probabilityCells },
+  ];
+  const agreed = headers === "auto" ? (agreeHeaders(ranges, headers).header ? "yes" : "no") : headers;
+  const labelTable = readTable(labelCells, { argument: "labels", headers: agreed });
   if (labelTable.columns.length !== 1) {
     throw problem("SINGLE_COLUMN_NEEDED", { argument: "labels", columns: labelTable.columns.length });
   }
-  let probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column " });
-  if (labelTable.header !== probTable.header && headers === "auto") {
-    // Under auto the two ranges share one header decision: the stronger evidence decides for both
-    // (probabilities win a tie), as the fitting functions do.
-    const labelsDecide = EVIDENCE_RANK[labelTable.headerEvidence] > EVIDENCE_RANK[probTable.headerEvidence];
-    const forced = (labelsDecide ? labelTable.header : probTable.header) ? "yes" : "no";
-    labelTable = readTable(labelCells, { argument: "labels", headers: forced });
-    probTable = readTable(probabilityCells, { argument: "probabilities", headers: forced, namePrefix: "column " });
-  }
+  const probTable = readTable(probabilityCells, { argument: "probabilities", headers: agreed, namePrefix: "column " });
   // Both ranges must cover the same rows: same header decision, same number of data rows (counted
   // as selected, before trailing blank rows are trimmed).
   if (dataHeight(labelTable) !== dataHeight(probTable) || labelTable.header !== probTable.header) {
