@@ -19,7 +19,7 @@
  * - An error value (#N/A, #DIV/0!, ...) in either range is refused (ERROR_VALUE_CELL, naming the
  *   cell): a metric over silently fewer rows would look like a result for all of them.
  */
-import { compareText, matchClass, readLabels, OddsmithError, listNames, problem, readTable, type LabelInfo, type HeaderEvidence, type Table, type CellValue } from "../engine";
+import { agreeHeaders, compareText, matchClass, readLabels, OddsmithError, listNames, problem, readTable, type LabelInfo, type Table, type CellValue } from "../engine";
 
 export interface MetricInputOptions {
   /** Function name as the user sees it, for messages ("ODDS.AUC"). */
@@ -51,8 +51,6 @@ export interface MetricInputs {
 
 /** Why a metric refuses an error cell (ERROR_VALUE_CELL). */
 const METRIC_ERROR_REASON = "a metric over fewer rows than selected would be misread";
-
-const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, weak: 1, none: 0 };
 
 /** "P(yes)" -> "yes"; "yes" -> "yes". */
 export function classFromHeader(name: string): string {
@@ -107,19 +105,17 @@ export function readMetricInputs(
   options: MetricInputOptions,
 ): MetricInputs {
   const headers = options.headers ?? "auto";
-  let labelTable = readTable(labelCells, { argument: "labels", headers, errors: "refuse", errorReason: METRIC_ERROR_REASON });
+  // The two ranges share one header decision (the engine's header-agreement rule; probabilities win a tie).
+  const ranges = [
+    { argument: "labels", cells: labelCells },
+    { argument: "probabilities", cells: probabilityCells },
+  ];
+  const agreed = headers === "auto" ? (agreeHeaders(ranges, headers).header ? "yes" : "no") : headers;
+  const labelTable = readTable(labelCells, { argument: "labels", headers: agreed, errors: "refuse", errorReason: METRIC_ERROR_REASON });
   if (labelTable.columns.length !== 1) {
     throw problem("SINGLE_COLUMN_NEEDED", { argument: "labels", columns: labelTable.columns.length });
   }
-  let probTable = readTable(probabilityCells, { argument: "probabilities", headers, namePrefix: "column ", errors: "refuse", errorReason: METRIC_ERROR_REASON });
-  if (labelTable.header !== probTable.header && headers === "auto") {
-    // Under auto the two ranges share one header decision: the stronger evidence decides for both
-    // (probabilities win a tie), as the fitting functions do.
-    const labelsDecide = EVIDENCE_RANK[labelTable.headerEvidence] > EVIDENCE_RANK[probTable.headerEvidence];
-    const forced = (labelsDecide ? labelTable.header : probTable.header) ? "yes" : "no";
-    labelTable = readTable(labelCells, { argument: "labels", headers: forced, errors: "refuse", errorReason: METRIC_ERROR_REASON });
-    probTable = readTable(probabilityCells, { argument: "probabilities", headers: forced, namePrefix: "column ", errors: "refuse", errorReason: METRIC_ERROR_REASON });
-  }
+  const probTable = readTable(probabilityCells, { argument: "probabilities", headers: agreed, namePrefix: "column ", errors: "refuse", errorReason: METRIC_ERROR_REASON });
   // Both ranges must cover the same rows: same header decision, same number of data rows (counted
   // as selected, before trailing blank rows are trimmed).
   if (dataHeight(labelTable) !== dataHeight(probTable) || labelTable.header !== probTable.header) {

@@ -13,28 +13,25 @@
  *   why. (FIT, PROB, CLASS and MARGIN show #N/A with the reason instead.)
  * - Diagnostics are listed last, one row each: "problem" (no estimate), "warning" or "note".
  */
-import { readLabels, brierScore, accuracy, logLoss, multiclassAccuracy, multiclassBrierScore, multiclassLogLoss, rocAuc, scoreRows, readTable, type TrainedModel, type CellValue } from "../engine";
+import { brierScore, accuracy, logLoss, multiclassAccuracy, multiclassBrierScore, multiclassLogLoss, rocAuc, scoreRows, type TrainedModel, type CellValue } from "../engine";
 import { spill } from "./cellOutput";
 import { fitFailure, fittedModel, readModelOptions, refuseThresholdForSeveralClasses } from "./modelCell";
 
 const SEVERITY_WORD = { error: "problem", warning: "warning", note: "note" } as const;
 
 /** In-sample metrics of a usable fit, as [statistic, value] rows. */
-function inSampleMetrics(model: TrainedModel, labels: CellValue[][], threshold: number): unknown[][] {
+function inSampleMetrics(model: TrainedModel, threshold: number): unknown[][] {
   const fit = model.fit;
+  // The fit's own classes per row (model.labels.codes, indices into fit.classes): nothing is parsed again.
+  const codes = model.labels.codes;
+  if (!codes) return [];
   const s = scoreRows(model, null, { threshold });
-  const table = readTable(labels, { argument: "labels", headers: model.header ? "yes" : "no" });
-  const info = readLabels(table.columns[0], {
-    positive: model.labels.positiveClass ?? null,
-    reference: model.labels.referenceClass ?? null,
-    use: Uint8Array.from(model.rowMap.subarray(0, table.rows), (r) => (r >= 0 ? 1 : 0)),
-  });
   const used: number[] = [];
   const classOf: number[] = [];
-  for (let i = 0; i < Math.min(table.rows, model.rows); i++) {
-    if (model.rowMap[i] < 0 || !s.scored[i] || info.codes[i] < 0) continue;
+  for (let i = 0; i < Math.min(codes.length, model.rows); i++) {
+    if (model.rowMap[i] < 0 || !s.scored[i] || codes[i] < 0) continue;
     used.push(i);
-    classOf.push(fit.classes.indexOf(info.classes[info.codes[i]]));
+    classOf.push(codes[i]);
   }
   if (fit.kind === "binary") {
     const positive = fit.classes.indexOf(fit.positiveClass as string);
@@ -96,7 +93,7 @@ export function reportCell(labels: CellValue[][] | null, predictors: CellValue[]
     ["LR test df", fit.lrTest.df],
     ["LR test p", fit.lrTest.p],
   ];
-  if (!failure) rows.push(...inSampleMetrics(model, labels as CellValue[][], opts.threshold));
+  if (!failure) rows.push(...inSampleMetrics(model, opts.threshold));
   for (const d of fit.diagnostics) rows.push([SEVERITY_WORD[d.severity], d.message]);
   return spill(rows);
 }

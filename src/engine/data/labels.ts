@@ -23,17 +23,10 @@
  */
 import { listNames, problem } from "../messages";
 import type { TableColumn } from "./table";
+import { checkClassCount } from "./validate";
 
-/** Numeric label columns with more distinct values than this are taken for measurements. */
-export const MAX_NUMERIC_CLASSES = 10;
-
-/**
- * Most classes any label column may have. A softmax fit has (K - 1) x terms coefficients and its
- * Newton step costs about rows x ((K - 1) x terms)^2 operations: measured here, 50 classes over
- * 1,000 rows of two predictors take under 1 s, 100 classes over 2,000 rows about 7 s, 300 classes
- * 25 s, and thousands of classes would not finish.
- */
-export const MAX_CLASSES = 50;
+/** The class-count limits live with the other input checks (validate.ts); re-exported for callers of the label reader. */
+export { MAX_CLASSES, MAX_NUMERIC_CLASSES } from "./validate";
 
 /** Classes found in a label column. */
 export interface LabelInfo {
@@ -142,21 +135,8 @@ export function readLabels(column: TableColumn, opts: ReadLabelsOptions = {}): L
   if (column.kind === "text") sorted.sort(compareText);
   else sorted.sort((a, b) => (numericByKey.get(a) as number) - (numericByKey.get(b) as number));
 
-  if (source === "number") {
-    const anyFraction = sorted.some((k) => !Number.isInteger(numericByKey.get(k) as number));
-    // A numeric label column with > 10 distinct values, or > 2 with a fraction, is a measurement.
-    if (sorted.length > MAX_NUMERIC_CLASSES || (anyFraction && sorted.length > 2)) {
-      throw problem("TOO_MANY_CLASSES", { count: sorted.length, rows: usable });
-    }
-  }
-  // More than MAX_CLASSES distinct labels is an identifier or free-text column, not classes.
-  if (sorted.length > MAX_CLASSES) {
-    throw problem("TOO_MANY_LABELS", { count: sorted.length, rows: usable, limit: MAX_CLASSES });
-  }
-  // Fewer than two classes among the usable rows cannot be classified.
-  if (sorted.length < 2) {
-    throw problem("ONE_CLASS_ONLY", { label: sorted.length === 1 ? sorted[0] : "" });
-  }
+  // The distinct labels must make classes (validate.ts: measurement, identifier column, one class).
+  checkClassCount(sorted, usable, source === "number" ? (k) => numericByKey.get(k) as number : null);
 
   let classes: string[];
   let positiveClass: string | undefined;

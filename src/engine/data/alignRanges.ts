@@ -1,0 +1,107 @@
+/**
+ * Reading several ranges that describe the same rows (labels, predictors, weights, ...) with one
+ * header decision: the one header-agreement rule of the program, used by the fits and by the metric
+ * cell functions alike.
+ *
+ * Policy (each rule is repeated in one line above the code that applies it):
+ * - headers = "yes" / "no" decide for every range.
+ * - Under "auto", the range with the strongest header evidence (forced > strong > weak > none)
+ *   decides for all; the second range wins a tie (the predictors of a fit, the probabilities of a
+ *   metric), so a labels column of words and a block of numbers cannot end up shifted by one row.
+ * - A range whose own evidence pointed the other way is named in a HEADERS_DISAGREE note.
+ * - Row counts must agree (validate.ts, checkAlignedRows); a range that ends earlier than the others
+ *   is blank below its end.
+ */
+import { formatMessage } from "../messages";
+import type { CellValue, Diagnostic } from "../types";
+import { detectHeader, normalizeRange, padTable, readTable, type HeaderEvidence, type Table } from "./table";
+import { checkAlignedRows } from "./validate";
+
+/** One range of an aligned read: its argument name (in messages) and its cells. */
+export interface RangeArg {
+  argument: string;
+  cells: CellValue[][];
+}
+
+/** The shared header decision of several ranges. */
+export interface HeaderAgreement {
+  header: boolean;
+  /** The note naming a range whose own evidence pointed the other way, or null. */
+  note: Diagnostic | null;
+}
+
+const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, weak: 1, none: 0 };
+
+/**
+ * The one header decision of ranges that describe the same rows (see the policy above). Under
+ * "auto" each range's evidence comes from readTable's header rule (detectHeader).
+ */
+export function agreeHeaders(ranges: RangeArg[], headers: "auto" | "yes" | "no"): HeaderAgreement {
+  if (headers !== "auto") return { header: headers === "yes", note: null };
+  const detected = ranges.map((r) => detectHeader(normalizeRange(r.cells, r.argument).rows));
+  // Under auto, the range with the strongest evidence decides for all (the second range wins a tie).
+  let best = 1 < ranges.length ? 1 : 0;
+  detected.forEach((d, k) => {
+    if (EVIDENCE_RANK[d.evidence] > EVIDENCE_RANK[detected[best].evidence]) best = k;
+  });
+  const header = detected[best].header;
+  // A range whose own evidence pointed the other way is named in a note, so the choice is visible.
+  const other = detected.findIndex((d) => d.header !== header && d.evidence !== "none");
+  if (other < 0) return { header, note: null };
+  const looks = (h: boolean) => (h ? "column names" : "data");
+  const params = {
+    decided: ranges[best].argument,
+    decidedLooks: looks(header),
+    other: ranges[other].argument,
+    otherLooks: looks(!header),
+    decision: looks(header),
+  };
+  return { header, note: { code: "HEADERS_DISAGREE", severity: "note", message: formatMessage("HEADERS_DISAGREE", params) } };
+}
+
+/** Aligned tables of a fit, with what the read found out. */
+export interface AlignedTables {
+  /** One table per range, padded to the longest (`rows` data rows each). */
+  tables: Table[];
+  /** Data rows of each range itself, before padding. */
+  ownRows: number[];
+  rows: number;
+  notes: Diagnostic[];
+}
+
+/**
+ * Read a fit's ranges with one header decision and one row count. The first range is the reference
+ * for shape messages ("labels"); the second holds the predictors (columns named x1, x2, ... without a
+ * header); a single-column range without a header is named after its argument ("labels", "weights").
+ * @throws OddsmithError RANGE_SHAPE_MISMATCH, and readTable's range problems
+ */
+export function readAlignedRanges(ranges: RangeArg[], headers: "auto" | "yes" | "no"): AlignedTables {
+  const agreement = agreeHeaders(ranges, headers);
+  const forced = agreement.header ? "yes" : "no";
+  const tables = ranges.map((r, k) => {
+    const t = readTable(r.cells, { argument: r.argument, headers: forced, namePrefix: k === 1 ? "x" : r.argument });
+    // A single-column range without a header is named after its argument ("labels", "weights").
+    if (!t.header && k !== 1) t.columns[0].name = t.names[0] = r.argument;
+    return t;
+  });
+  // Error cells were read as blank: each range that held some is named in a warning.
+  const notes = agreement.note ? [agreement.note] : [];
+  for (const t of tables) if (t.errorCells.count > 0) notes.push(errorCellsNote(t));
+  // Ranges are aligned by selected rows: compare the row counts before trimming.
+  checkAlignedRows(tables);
+  const rows = Math.max(...tables.map((t) => t.rows));
+  // A range that ends earlier than the others is blank below its end.
+  return {
+    tables: tables.map((t) => padTable(t, rows)),
+    ownRows: tables.map((t) => t.rows),
+    rows,
+    notes,
+  };
+}
+
+/** The ERROR_VALUES_AS_BLANK warning of a range whose error cells were read as blank. */
+function errorCellsNote(t: Table): Diagnostic {
+  const first = t.errorCells.first as { row: number; column: number; value: string };
+  const params = { count: t.errorCells.count, argument: t.argument, value: first.value, row: first.row, column: first.column };
+  return { code: "ERROR_VALUES_AS_BLANK", severity: "warning", message: formatMessage("ERROR_VALUES_AS_BLANK", params), params };
+}
