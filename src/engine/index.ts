@@ -18,8 +18,8 @@ export { errorLiteral, isBlankCell, parseNumericText, rangeRow, readTable } from
 export type { HeaderEvidence, Table, TableColumn } from "./data/table";
 export { INTERCEPT_TERM } from "./inference";
 export { wasmKernels } from "./kernels/wasmKernels";
-export { MESSAGES, OddsmithError, formatMessage, listNames, problem } from "./messages";
-export type { CellErrorKind, MessageCode } from "./messages";
+export { ENGINE_MESSAGES, OddsmithError, fillTemplate, listNames } from "./messages";
+export type { CellErrorKind, MessageEntry, MessageCode as EngineMessageCode } from "./messages";
 export { accuracy } from "./metrics/accuracy";
 export { brierScore } from "./metrics/brierScore";
 export { calibrationSlope } from "./metrics/calibrationSlope";
