@@ -45,3 +45,5 @@ export { logSumExp, sigmoid } from "./numerics";
 export type { CellValue, CoefficientRow, Diagnostic, ModelFit } from "./types";
 export { chooseThreshold } from "./evaluation/chooseThreshold";
 export type { ThresholdChoice, ThresholdRule } from "./evaluation/chooseThreshold";
+export { EFFECTS_WORK_LIMIT, averageMarginalEffects } from "./evaluation/marginalEffects";
+export type { AverageEffectsOptions, MarginalEffect, MarginalEffects } from "./evaluation/marginalEffects";
