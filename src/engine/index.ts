@@ -55,3 +55,5 @@ export type { HeldOutScores } from "./evaluation/heldOutScores";
 export { choosePenalty } from "./evaluation/penaltyChoice";
 export { givenPenalties, logSpacedPenalties, MAX_PENALTIES } from "./evaluation/penaltyGrid";
 export { MAX_FOLDS, MIN_FOLDS } from "./evaluation/stratifiedFolds";
+export { EFFECTS_WORK_LIMIT, averageMarginalEffects } from "./evaluation/marginalEffects";
+export type { AverageEffectsOptions, MarginalEffect, MarginalEffects } from "./evaluation/marginalEffects";

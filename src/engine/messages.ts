@@ -508,6 +508,31 @@ export const ENGINE_MESSAGES = {
     title: "Two ways of splitting",
     template: "Both a split column and the holdout option ({value}) are given. Use one: the column marks the training rows, or holdout=share asks for a seeded split.",
   },
+  // ---- marginal effects ------------------------------------------------------------------------
+  EFFECTS_TWO_CLASSES_ONLY: {
+    cellError: "#VALUE!",
+    title: "Marginal effects need two classes",
+    template:
+      "Marginal effects are computed for two-class models only, and the labels hold {count} classes. Turn the labels into two classes (e.g. one class against the rest) to see effects on that class's probability.",
+  },
+  EFFECTS_TOO_COSTLY: {
+    cellError: "#VALUE!",
+    title: "Marginal effects too costly here",
+    template:
+      "Marginal effects on {rows} rows x {terms} terms with {changes} discrete changes would take too long in one call: the work grows with rows x terms x changes ({work} here, the limit is {limit}). Use fewer rows or fewer text levels, or indicators=slope.",
+  },
+  EFFECTS_NO_STANDARD_ERRORS: {
+    cellError: "#N/A",
+    title: "Marginal effects without standard errors",
+    template:
+      "The fit has no covariance of its coefficients (a penalized fit), so the marginal effects are shown without standard errors, z, p or intervals.",
+  },
+  EFFECTS_NOT_CAUSAL: {
+    cellError: "#N/A",
+    title: "What marginal effects cannot show",
+    template:
+      "These are average changes in the fitted probability of {positive} over the {rows} {rows|row|rows} used: statistical associations of the model, not causes. They do not tell what would happen if a column were changed.",
+  },
   // ---- catch-all (#VALUE!) ---------------------------------------------------------------------
   INTERNAL: {
     cellError: "#VALUE!",

@@ -24,10 +24,12 @@ export interface ModelCallOptions {
   parsed: FitCellOptions;
 }
 
-/** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
-export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
-  const o = parseOptions(fn, FIT_OPTIONS, options);
-  const model: ModelOptions = {
+/**
+ * The fit options of parsed fitting-function options: one builder, so every function over the same
+ * ranges and settings computes the same cache key (ODDS.EFFECTS parses a schema of its own).
+ */
+export function modelOptionsOf(o: Omit<FitCellOptions, "threshold">): ModelOptions {
+  return {
     headers: o.headers,
     positive: o.positive,
     reference: o.reference,
@@ -41,7 +43,12 @@ export function readModelOptions(fn: string, options: CellValue[][] | null): Mod
     minLevelCount: o.pool,
     form: o.form,
   };
-  return { model, threshold: o.threshold, headers: o.headers, parsed: o };
+}
+
+/** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
+export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
+  const o = parseOptions(fn, FIT_OPTIONS, options);
+  return { model: modelOptionsOf(o), threshold: o.threshold, headers: o.headers, parsed: o };
 }
 
 /** The cache shared by every fitting function and the task pane. */
@@ -73,7 +80,7 @@ export function modelCacheKey(labels: CellValue[][], predictors: CellValue[][], 
 export function fittedModel(
   labels: CellValue[][] | null,
   predictors: CellValue[][] | null,
-  options: ModelCallOptions,
+  options: Pick<ModelCallOptions, "model">,
   extraOutputCells: number,
   extraInputs: { argument: string; cells: unknown }[] = [],
 ): TrainedModel {
