@@ -25,7 +25,11 @@ export interface ModelCallOptions {
 
 /** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
 export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
-  const o = parseOptions(fn, FIT_OPTIONS, options);
+  return modelCallOptions(parseOptions(fn, FIT_OPTIONS, options));
+}
+
+/** The fit and scoring options of parsed fitting options (also for schemas that extend FIT_OPTIONS). */
+export function modelCallOptions(o: FitCellOptions): ModelCallOptions {
   const model: ModelOptions = {
     headers: o.headers,
     positive: o.positive,

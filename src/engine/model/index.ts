@@ -92,6 +92,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     trainingRows: encodeTrainingRows(built.encoding, built.design, predTable, read.ownRows[1], predictors, read.rows),
     trainingOffset: columns.offset ? columns.offset.values : null,
     usesOffset: columns.offset !== null,
+    offsetColumn: columns.offset ? columns.offset.name : null,
     threshold: options.threshold ?? 0.5,
   };
 }
