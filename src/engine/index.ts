@@ -57,3 +57,11 @@ export { givenPenalties, logSpacedPenalties, MAX_PENALTIES } from "./evaluation/
 export { MAX_FOLDS, MIN_FOLDS } from "./evaluation/stratifiedFolds";
 export { EFFECTS_WORK_LIMIT, averageMarginalEffects } from "./evaluation/marginalEffects";
 export type { AverageEffectsOptions, MarginalEffect, MarginalEffects } from "./evaluation/marginalEffects";
+export { columnLetters, parseCellReference, quoteSheet } from "./export/cellReference";
+export type { CellPosition } from "./export/cellReference";
+export type { BlockPlacement, SheetColumn } from "./export/formulaTemplate";
+export { planScoring, renderScoringRow } from "./export/scoringPlan";
+export type { ExportNote, PlanColumn, ScoringPlan } from "./export/scoringPlan";
+export { describeModel } from "./portable/describeModel";
+export { checkBasisAgreement } from "./portable/basisAgreement";
+export type { ModelDescription } from "./portable/modelDescription";

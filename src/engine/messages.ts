@@ -533,6 +533,48 @@ export const ENGINE_MESSAGES = {
     template:
       "These are average changes in the fitted probability of {positive} over the {rows} {rows|row|rows} used: statistical associations of the model, not causes. They do not tell what would happen if a column were changed.",
   },
+  // ---- portable model: formulas and the model description -------------------------------------
+  EXPORT_COLUMN_NOT_PLACED: {
+    cellError: "#VALUE!",
+    title: "Column the formulas cannot find",
+    template:
+      "The model reads the column \"{column}\", but it is not among the {where} the formulas can refer to ({columns}). {hint}",
+  },
+  EXPORT_FORMULA_TOO_LONG: {
+    cellError: "#N/A",
+    title: "Formula longer than a cell holds",
+    template:
+      "The formula for \"{column}\" would be {length} characters long, more than a cell formula may hold (8,192). {hint}",
+  },
+  EXPORT_LEVEL_TOO_LONG: {
+    cellError: "#N/A",
+    title: "Category too long for a formula",
+    template:
+      "The category \"{level}\" of the {column} column has {length} characters, more than a text constant in a formula may hold (255), so the model cannot be written as plain formulas. Shorten the categories (for example with a lookup column) and fit again.",
+  },
+  EXPORT_LEFT_TO_ADDIN: {
+    cellError: "#N/A",
+    title: "Basis column left to the add-in",
+    template:
+      "The basis column \"{column}\" is not written as a formula ({reason}): the formulas read it from the sheet's column of that name, which Oddsmith computes (ODDS.BASIS), so that column needs the add-in.",
+  },
+  EXPORT_NO_ESTIMATES: {
+    cellError: "#N/A",
+    title: "Model without estimates",
+    template:
+      "The model has no estimate for the term \"{term}\"{equation}, so there are no formulas to write. Fix the fit first (see ODDS.REPORT).",
+  },
+  EXPORT_BASIS_MISMATCH: {
+    cellError: "#VALUE!",
+    title: "Basis columns from another recipe or data",
+    template:
+      "The predictor column \"{column}\" does not hold what the recipe makes from the data (data row {row}: {got} in the predictors, {expected} from the recipe). Give the same data range and recipe as the ODDS.BASIS formula that made the column.",
+  },
+  EXPORT_NO_ROOM: {
+    cellError: "#VALUE!",
+    title: "No room for the formulas",
+    template: "The formulas cannot be placed at {at}: {reason}. {hint}",
+  },
   // ---- catch-all (#VALUE!) ---------------------------------------------------------------------
   INTERNAL: {
     cellError: "#VALUE!",

@@ -186,3 +186,20 @@ export function cutoff(labels: any[][], probabilities: any[][], options?: any[][
 export function effects(labels: any[][], predictors: any[][], options?: any[][]): any[][] {
   return runCell(F.EFFECTS.doing, () => F.EFFECTS.adapter(labels, predictors, options ?? null));
 }
+
+// ---- Portable model (issue 14) ----
+
+/**
+ * Writes the fitted model as plain formulas that need no add-in: lists what to enter in which cell (inputs, indicator and basis columns, linear predictors, probabilities with an overflow-safe sigmoid or softmax, the class) and the coefficient table the formulas read.
+ * @customfunction FORMULAS FORMULAS
+ * @helpurl https://localhost:3000/help.html#formulas
+ * @param labels Label column used for fitting.
+ * @param predictors Predictor columns used for fitting (may be the output of ODDS.BASIS).
+ * @param [options] Fit options and where things go, e.g. "predictors_at=Data!A1; at=Data!H1".
+ * @param [recipe] The basis recipe that made predictor columns from data, so they are written from the raw columns.
+ * @param [data] The raw columns the recipe reads, with a header row.
+ * @returns Three columns: cell, content to enter there, and a note.
+ */
+export function formulas(labels: any[][], predictors: any[][], options?: any[][], recipe?: any[][], data?: any[][]): any[][] {
+  return runCell(F.FORMULAS.doing, () => F.FORMULAS.adapter(labels, predictors, options ?? null, recipe ?? null, data ?? null));
+}

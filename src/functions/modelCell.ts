@@ -47,7 +47,11 @@ export function modelOptionsOf(o: Omit<FitCellOptions, "threshold">): ModelOptio
 
 /** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
 export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
-  const o = parseOptions(fn, FIT_OPTIONS, options);
+  return modelCallOptions(parseOptions(fn, FIT_OPTIONS, options));
+}
+
+/** The fit and scoring options of parsed fitting options (also for schemas that extend FIT_OPTIONS). */
+export function modelCallOptions(o: FitCellOptions): ModelCallOptions {
   return { model: modelOptionsOf(o), threshold: o.threshold, headers: o.headers, parsed: o };
 }
 

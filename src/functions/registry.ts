@@ -23,6 +23,7 @@ import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
 import { basisCellGuarded } from "./basisCells";
+import { formulasCell } from "./formulasCell";
 
 /** A range argument as Excel passes it (row-major), or null for an omitted optional argument. */
 export type CellRange = CellValue[][];
@@ -95,6 +96,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("EFFECTS", "computing marginal effects", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
     effectsCell(l, p, o ?? null),
+  ),
+  spec("FORMULAS", "writing the model as formulas", [req("labels"), req("predictors"), opt("options"), opt("recipe"), opt("data")], (l, p, o, r, d) =>
+    formulasCell(l, p, o ?? null, r ?? null, d ?? null),
   ),
 ];
 

@@ -1,8 +1,12 @@
 /**
  * A1-style addresses: column letters, cell and range parsing and formatting. Used by both workbook
  * ports, the pane's formula writer and the preview's formula evaluator, so an address means the same
- * thing everywhere. Rows and columns are 1-based.
+ * thing everywhere. Rows and columns are 1-based. Column letters and sheet quoting are the engine's
+ * (src/engine/export/cellReference.ts), shared with the formulas the engine writes.
  */
+import { columnLetters, quoteSheet } from "../engine";
+
+export { columnLetters, quoteSheet };
 
 /** A rectangle of cells, 1-based and inclusive. */
 export interface CellRect {
@@ -15,18 +19,6 @@ export interface CellRect {
 /** Largest sheet in the current spreadsheet format (1,048,576 rows by 16,384 columns, "XFD"). */
 export const MAX_ROWS = 1_048_576;
 export const MAX_COLUMNS = 16_384;
-
-/** 1 -> "A", 27 -> "AA". */
-export function columnLetters(column: number): string {
-  let n = column;
-  let s = "";
-  while (n > 0) {
-    const r = (n - 1) % 26;
-    s = String.fromCharCode(65 + r) + s;
-    n = Math.floor((n - 1) / 26);
-  }
-  return s;
-}
 
 /** "A" -> 1, "aa" -> 27; NaN for anything that is not letters. */
 export function columnNumber(letters: string): number {
@@ -93,12 +85,6 @@ export function splitSheet(reference: string): { sheet: string | null; address: 
   let sheet = text.slice(0, bang);
   if (sheet.startsWith("'") && sheet.endsWith("'")) sheet = sheet.slice(1, -1).replace(/''/g, "'");
   return { sheet, address: text.slice(bang + 1) };
-}
-
-/** A sheet name as it must appear in a formula: quoted when it holds anything but letters, digits, _. */
-export function quoteSheet(name: string): string {
-  const plain = /^[A-Za-z_][A-Za-z0-9_.]*$/.test(name) && !/^[A-Za-z]{1,3}\d+$/.test(name);
-  return plain ? name : `'${name.replace(/'/g, "''")}'`;
 }
 
 /** "Data!$B$2:$D$40": an absolute reference to a rectangle on a sheet, for formulas we write. */

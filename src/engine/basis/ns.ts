@@ -211,6 +211,49 @@ export function fitNs(column: BasisColumn, options: NsOptions): NsState {
   return { kind: "ns", source: column.name, knots, boundary, names: nsNames(column.name, knots.length + 1) };
 }
 
+/** The knot sequence on the unit scale and the QR of the boundary constraints of a fitted basis. */
+interface NsProjection {
+  /** Knot sequence in u = (x - lo) / (hi - lo): boundary knots 0 and 1 repeated ORDER times. */
+  t: number[];
+  qrCols: Float64Array[];
+  qraux: number[];
+  /** B-splines after dropping the first (no intercept). */
+  nbc: number;
+  /** Columns of the basis. */
+  df: number;
+}
+
+function nsProjection(state: NsState): NsProjection {
+  const [lo, hi] = state.boundary;
+  const h = hi - lo;
+  const t = [0, 0, 0, 0, ...state.knots.map((v) => (v - lo) / h), 1, 1, 1, 1];
+  const nbc = t.length - ORDER - 1; // first B-spline dropped (no intercept)
+  // Constraint matrix t(const): nbc rows x 2 columns (second derivatives at lo and hi), column-major.
+  const c0 = bsplineRow(t, 0, 2).subarray(1);
+  const c1 = bsplineRow(t, 1, 2).subarray(1);
+  const qrCols = [Float64Array.from(c0), Float64Array.from(c1)];
+  const qraux = householderQr(qrCols, nbc);
+  return { t, qrCols, qraux, nbc, df: nbc - 2 };
+}
+
+/** The basis columns from one row of B-spline values (or derivatives), projected onto the natural null space. */
+function projectRow(p: NsProjection, row: Float64Array, y: Float64Array): Float64Array {
+  for (let j = 0; j < p.nbc; j++) y[j] = row[j + 1];
+  applyQt(p.qrCols, p.qraux, p.nbc, y);
+  return y.subarray(2, 2 + p.df);
+}
+
+/**
+ * The columns of a fitted natural-spline basis (deriv 0), or their derivatives of order `deriv`
+ * with respect to u = (x - lo) / (hi - lo), at u in [0, 1] (inside the boundary knots). At a knot
+ * the interval to its right is used (the left limit at u = 1). Used to write the basis as formulas.
+ * @example nsColumnsAtUnit(state, 0, 0) // the columns at the lower boundary knot
+ */
+export function nsColumnsAtUnit(state: NsState, u: number, deriv: 0 | 1 | 2 | 3): Float64Array {
+  const p = nsProjection(state);
+  return Float64Array.from(projectRow(p, bsplineRow(p.t, u, deriv), new Float64Array(p.nbc)));
+}
+
 /**
  * Apply a fitted natural-spline basis to rows (blank/text cells: NaN and a row note). Values beyond
  * the boundary knots are extrapolated linearly, as R's ns does.
@@ -225,20 +268,13 @@ export function applyNs(state: NsState, column: BasisColumn): BasisBlock {
   // or 1e-300 no longer over- or underflow in the derivatives (which gave wrong columns or none).
   const h = hi - lo;
   const unit = (v: number) => (v - lo) / h;
-  const t = [0, 0, 0, 0, ...state.knots.map(unit), 1, 1, 1, 1];
-  const nb = t.length - ORDER;
-  const nbc = nb - 1; // first B-spline dropped (no intercept)
-  // Constraint matrix t(const): nbc rows x 2 columns (second derivatives at lo and hi), column-major.
-  const c0 = bsplineRow(t, 0, 2).subarray(1);
-  const c1 = bsplineRow(t, 1, 2).subarray(1);
-  const qrCols = [Float64Array.from(c0), Float64Array.from(c1)];
-  const qraux = householderQr(qrCols, nbc);
+  const p = nsProjection(state);
+  const nb = p.t.length - ORDER;
   // Value and slope at each boundary, for linear extrapolation.
-  const atLo = [bsplineRow(t, 0, 0), bsplineRow(t, 0, 1)];
-  const atHi = [bsplineRow(t, 1, 0), bsplineRow(t, 1, 1)];
-  const df = nbc - 2;
-  const columns = Array.from({ length: df }, () => new Float64Array(x.length));
-  const y = new Float64Array(nbc);
+  const atLo = [bsplineRow(p.t, 0, 0), bsplineRow(p.t, 0, 1)];
+  const atHi = [bsplineRow(p.t, 1, 0), bsplineRow(p.t, 1, 1)];
+  const columns = Array.from({ length: p.df }, () => new Float64Array(x.length));
+  const y = new Float64Array(p.nbc);
   for (let i = 0; i < x.length; i++) {
     if (!Number.isFinite(x[i])) {
       for (const col of columns) col[i] = NaN;
@@ -252,11 +288,10 @@ export function applyNs(state: NsState, column: BasisColumn): BasisBlock {
       row = new Float64Array(nb);
       for (let j = 0; j < nb; j++) row[j] = b[j] + dx * db[j];
     } else {
-      row = bsplineRow(t, v, 0);
+      row = bsplineRow(p.t, v, 0);
     }
-    for (let j = 0; j < nbc; j++) y[j] = row[j + 1];
-    applyQt(qrCols, qraux, nbc, y);
-    for (let k = 0; k < df; k++) columns[k][i] = y[k + 2];
+    const out = projectRow(p, row, y);
+    for (let k = 0; k < p.df; k++) columns[k][i] = out[k];
   }
   return { names: [...state.names], columns, notes };
 }

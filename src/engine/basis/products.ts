@@ -50,8 +50,11 @@ function monomialsOfDegree(m: number, d: number): number[][] {
   return out;
 }
 
-/** For each term, the generated columns as lists of (source index, label, factor slot). */
-function expandTerm(sources: readonly string[], powers: readonly number[], levels: readonly (LevelsState | null)[]): { slots: number[]; name: string }[] {
+/**
+ * For each term (an exponent vector), its generated columns: the indicator slot used of each
+ * factor with a positive power (0 for a numeric factor) and the column name, in output order.
+ */
+export function expandTerm(sources: readonly string[], powers: readonly number[], levels: readonly (LevelsState | null)[]): { slots: number[]; name: string }[] {
   let out: { slots: number[]; parts: string[] }[] = [{ slots: [], parts: [] }];
   powers.forEach((p, j) => {
     if (p === 0) return;

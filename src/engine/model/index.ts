@@ -104,6 +104,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     trainingOffset: columns.offset ? columns.offset.values : null,
     observationWeights: observationWeights(columns, built.inputRows),
     usesOffset: columns.offset !== null,
+    offsetColumn: columns.offset ? columns.offset.name : null,
     threshold: options.threshold ?? 0.5,
   };
 }

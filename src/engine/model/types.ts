@@ -90,6 +90,8 @@ export interface TrainedModel {
   observationWeights: Float64Array | null;
   /** True when the model was fitted with an offset (scoring new rows then needs one). */
   usesOffset: boolean;
+  /** Header of the offset column (its name in the offset range), or null without an offset. */
+  offsetColumn: string | null;
   /** Default threshold for scoring. */
   threshold: number;
 }

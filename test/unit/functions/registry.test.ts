@@ -24,7 +24,7 @@ describe("cell-function registry", () => {
 
   test("lists thirteen functions, each with its required parameters before its optional ones", () => {
     expect(CELL_FUNCTIONS.map((f) => f.name)).toEqual([
-      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS",
+      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS", "FORMULAS",
     ]);
     for (const f of CELL_FUNCTIONS) {
       const firstOptional = f.parameters.findIndex((p) => p.optional);
