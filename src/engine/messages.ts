@@ -611,6 +611,12 @@ export const MESSAGES = {
     title: "Some fold fits did not converge",
     template: "{count} of {fits} fold {fits|fit|fits} did not converge (for example fold {fold}{penalty}); their held-out values are less reliable. A penalty usually helps.",
   },
+  EVALUATION_SCOPE: {
+    cellError: "#N/A",
+    title: "What held-out scores show",
+    template:
+      "These scores estimate how the model predicts new rows drawn like these. They show statistical associations, not causes, and an overall score can hide a group the model serves badly: compare groups before using it in decisions about people.",
+  },
   HOLDOUT_BAD_MARK: {
     cellError: "#VALUE!",
     title: "Unreadable training mark",

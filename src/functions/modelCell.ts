@@ -9,7 +9,7 @@
  */
 import { OddsmithError, problem, trainModel, type MessageCode, type ModelOptions, type TrainedModel, type CellValue, type Diagnostic } from "../engine";
 import { cellCount, contentKey, contentKeyAndSizes, sharedFitCache } from "../shared/fitCache";
-import { FIT_OPTIONS, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
+import { FIT_OPTIONS, OPT_INTERVAL, OPT_LEVEL, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
 import { PAYLOAD_SIZER, checkPayload, surelyTooLarge, type PayloadPart } from "./payload";
 import { required } from "./required";
 
@@ -26,7 +26,15 @@ export interface ModelCallOptions {
 /** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
 export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
   const o = parseOptions(fn, FIT_OPTIONS, options);
-  const model: ModelOptions = {
+  return { model: modelOptionsOf(o), threshold: o.threshold, headers: o.headers, parsed: o };
+}
+
+/**
+ * The model options of parsed fitting options; functions whose schema leaves out the interval
+ * options (the evaluation functions, which use only probabilities) get the defaults.
+ */
+export function modelOptionsOf(o: Omit<FitCellOptions, "level" | "interval"> & Partial<Pick<FitCellOptions, "level" | "interval">>): ModelOptions {
+  return {
     headers: o.headers,
     positive: o.positive,
     reference: o.reference,
@@ -34,13 +42,12 @@ export function readModelOptions(fn: string, options: CellValue[][] | null): Mod
     penalty: o.penalty,
     penaltyScale: o.scale,
     firth: o.firth,
-    level: o.level,
-    intervalMethod: o.interval,
+    level: o.level ?? OPT_LEVEL.default,
+    intervalMethod: o.interval ?? OPT_INTERVAL.default,
     referenceLevels: o.baseline.length > 0 ? parseBaselines(o.baseline) : null,
     minLevelCount: o.pool,
     form: o.form,
   };
-  return { model, threshold: o.threshold, headers: o.headers, parsed: o };
 }
 
 /** The cache shared by every fitting function and the task pane. */
