@@ -18,8 +18,8 @@ export { errorLiteral, isBlankCell, parseNumericText, rangeRow, readTable } from
 export type { HeaderEvidence, Table, TableColumn } from "./data/table";
 export { INTERCEPT_TERM } from "./inference";
 export { wasmKernels } from "./kernels/wasmKernels";
-export { MESSAGES, OddsmithError, formatMessage, listNames, problem } from "./messages";
-export type { CellErrorKind, MessageCode } from "./messages";
+export { ENGINE_MESSAGES, OddsmithError, fillTemplate, listNames } from "./messages";
+export type { CellErrorKind, MessageEntry, MessageCode as EngineMessageCode } from "./messages";
 export { accuracy } from "./metrics/accuracy";
 export { brierScore } from "./metrics/brierScore";
 export { calibrationSlope } from "./metrics/calibrationSlope";
@@ -55,3 +55,5 @@ export type { HeldOutScores } from "./evaluation/heldOutScores";
 export { choosePenalty } from "./evaluation/penaltyChoice";
 export { givenPenalties, logSpacedPenalties, MAX_PENALTIES } from "./evaluation/penaltyGrid";
 export { MAX_FOLDS, MIN_FOLDS } from "./evaluation/stratifiedFolds";
+export { EFFECTS_WORK_LIMIT, averageMarginalEffects } from "./evaluation/marginalEffects";
+export type { AverageEffectsOptions, MarginalEffect, MarginalEffects } from "./evaluation/marginalEffects";

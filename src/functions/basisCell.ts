@@ -17,7 +17,8 @@
  *   code and cell error), with the row counted as in the range (header = row 1).
  */
 import { checkOutputSize, SHEET_COLUMNS } from "./sheetLimits";
-import { errorLiteral, estimateRecipeColumns, tableBasisColumns, applyRecipe, fitRecipe, parseRecipe, problem, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
+import { errorLiteral, estimateRecipeColumns, tableBasisColumns, applyRecipe, fitRecipe, parseRecipe, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
+import { problem } from "../shared/messages";
 import { spill } from "./cellOutput";
 
 /** The columns of a parsed table in the form the basis transforms read (blank = null): the engine's. */

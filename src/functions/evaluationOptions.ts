@@ -13,7 +13,8 @@
  *   holding "," or ";" needs the two-column options range (name | value), where a value may hold a
  *   whole recipe.
  */
-import { givenPenalties, logSpacedPenalties, parseNumericText, problem } from "../engine";
+import { givenPenalties, logSpacedPenalties, parseNumericText } from "../engine";
+import { problem } from "../shared/messages";
 import {
   OPT_BASELINE,
   OPT_FIRTH,

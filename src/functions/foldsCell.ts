@@ -15,7 +15,8 @@
  * - folds: each row's fold (1..k), aligned the same way, "" for rows outside the folds.
  * With penalties, scores and out-of-fold are at the picked penalty (pick=one-se, or lowest).
  */
-import { CELL_BUDGET, crossValidate, formatMessage, problem, type CellValue, type CrossValidationResult, type PenaltyScores } from "../engine";
+import { CELL_BUDGET, crossValidate, type CellValue, type CrossValidationResult, type PenaltyScores } from "../engine";
+import { formatMessage, problem } from "../shared/messages";
 import { spill } from "./cellOutput";
 import { FOLDS_OPTIONS, readPenalties } from "./evaluationOptions";
 import { scoreLabels } from "./scoreLabels";

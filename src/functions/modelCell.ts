@@ -7,7 +7,8 @@
  * REPORT over the same ranges share one fit, and any edited, appended or deleted cell refits. The
  * cache is src/shared/fitCache.ts, shared with the task pane in the shared runtime.
  */
-import { OddsmithError, problem, trainModel, type MessageCode, type ModelOptions, type TrainedModel, type CellValue, type Diagnostic } from "../engine";
+import { trainModel, type ModelOptions, type TrainedModel, type CellValue, type Diagnostic } from "../engine";
+import { isMessageCode, problem } from "../shared/messages";
 import { cellCount, contentKey, contentKeyAndSizes, sharedFitCache } from "../shared/fitCache";
 import { FIT_OPTIONS, OPT_INTERVAL, OPT_LEVEL, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
 import { PAYLOAD_SIZER, checkPayload, surelyTooLarge, type PayloadPart } from "./payload";
@@ -23,17 +24,13 @@ export interface ModelCallOptions {
   parsed: FitCellOptions;
 }
 
-/** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
-export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
-  const o = parseOptions(fn, FIT_OPTIONS, options);
-  return { model: modelOptionsOf(o), threshold: o.threshold, headers: o.headers, parsed: o };
-}
-
 /**
- * The model options of parsed fitting options; functions whose schema leaves out the interval
- * options (the evaluation functions, which use only probabilities) get the defaults.
+ * The fit options of parsed fitting-function options: one builder, so every function over the same
+ * ranges and settings computes the same cache key (ODDS.EFFECTS, ODDS.FOLDS and ODDS.HOLDOUT parse
+ * schemas of their own; those without the interval options, which use only probabilities, get the
+ * defaults).
  */
-export function modelOptionsOf(o: Omit<FitCellOptions, "level" | "interval"> & Partial<Pick<FitCellOptions, "level" | "interval">>): ModelOptions {
+export function modelOptionsOf(o: Omit<FitCellOptions, "threshold" | "level" | "interval"> & Partial<Pick<FitCellOptions, "level" | "interval">>): ModelOptions {
   return {
     headers: o.headers,
     positive: o.positive,
@@ -48,6 +45,12 @@ export function modelOptionsOf(o: Omit<FitCellOptions, "level" | "interval"> & P
     minLevelCount: o.pool,
     form: o.form,
   };
+}
+
+/** Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"). */
+export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
+  const o = parseOptions(fn, FIT_OPTIONS, options);
+  return { model: modelOptionsOf(o), threshold: o.threshold, headers: o.headers, parsed: o };
 }
 
 /** The cache shared by every fitting function and the task pane. */
@@ -79,7 +82,7 @@ export function modelCacheKey(labels: CellValue[][], predictors: CellValue[][], 
 export function fittedModel(
   labels: CellValue[][] | null,
   predictors: CellValue[][] | null,
-  options: ModelCallOptions,
+  options: Pick<ModelCallOptions, "model">,
   extraOutputCells: number,
   extraInputs: { argument: string; cells: unknown }[] = [],
 ): TrainedModel {
@@ -111,7 +114,7 @@ export function fitFailure(model: TrainedModel): Diagnostic | null {
 export function requireUsableFit(model: TrainedModel): void {
   const failure = fitFailure(model);
   if (!failure) return;
-  const error = new OddsmithError(failure.code as MessageCode);
+  const error = problem(isMessageCode(failure.code) ? failure.code : "INTERNAL");
   // The diagnostic already carries the filled-in message (with columns and rows).
   error.message = failure.message;
   throw error;

@@ -19,6 +19,7 @@ import { logLossCell } from "./logLossCell";
 import { aucCell } from "./aucCell";
 import { cutoffCell } from "./cutoffCell";
 import { foldsCell } from "./foldsCell";
+import { effectsCell } from "./effectsCell";
 import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
@@ -92,6 +93,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("CUTOFF", "choosing the threshold", [req("labels"), req("probabilities"), opt("options")], (l, p, o) =>
     cutoffCell(l, p, o ?? null),
+  ),
+  spec("EFFECTS", "computing marginal effects", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
+    effectsCell(l, p, o ?? null),
   ),
   spec("FOLDS", "cross-validating the model", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
     foldsCell(l, p, o ?? null),

@@ -7,7 +7,7 @@ import * as spector from "../../fixtures/binary/spector.json";
 import { fit } from "../../../src/functions/functions";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import { CELL_FUNCTIONS, NAMESPACE, evaluateCellFunction, findCellFunction } from "../../../src/functions/registry";
-import { formatMessage } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
 import { OMITTED, column, table } from "./excel";
 
 const d = spector.data;
@@ -22,9 +22,9 @@ describe("cell-function registry", () => {
     expect(findCellFunction("SUM")).toBeUndefined();
   });
 
-  test("lists the functions in help-page order, each with its required parameters before its optional ones", () => {
+  test("lists thirteen functions, each with its required parameters before its optional ones", () => {
     expect(CELL_FUNCTIONS.map((f) => f.name)).toEqual([
-      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "FOLDS",
+      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS", "FOLDS",
     ]);
     for (const f of CELL_FUNCTIONS) {
       const firstOptional = f.parameters.findIndex((p) => p.optional);
