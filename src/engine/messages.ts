@@ -503,11 +503,6 @@ export const ENGINE_MESSAGES = {
     template:
       "The class \"{label}\" occurs in {count} held-out {count|row|rows} (for example row {row}) but in no training row, so the model cannot give it a probability. Move some of its rows into training.",
   },
-  HOLDOUT_BOTH_SPLITS: {
-    cellError: "#VALUE!",
-    title: "Two ways of splitting",
-    template: "Both a split column and the holdout option ({value}) are given. Use one: the column marks the training rows, or holdout=share asks for a seeded split.",
-  },
   // ---- marginal effects ------------------------------------------------------------------------
   EFFECTS_TWO_CLASSES_ONLY: {
     cellError: "#VALUE!",

@@ -203,3 +203,18 @@ export function effects(labels: any[][], predictors: any[][], options?: any[][])
 export function formulas(labels: any[][], predictors: any[][], options?: any[][], recipe?: any[][], data?: any[][]): any[][] {
   return runCell(F.FORMULAS.doing, () => F.FORMULAS.adapter(labels, predictors, options ?? null, recipe ?? null, data ?? null));
 }
+
+// ---- Cross-validation (issue 13) ----
+
+/**
+ * Cross-validates the model ODDS.FIT would fit: k stratified folds fixed by a seed; spills the mean and standard error over the folds of log-loss, Brier score, AUC and accuracy, or a path over penalties with the lowest and one-standard-error choices, or each row's out-of-fold probability.
+ * @customfunction FOLDS FOLDS
+ * @helpurl https://localhost:3000/help.html#folds
+ * @param labels Label column: one class per row, with or without a header.
+ * @param predictors Predictor columns, one row per label; text columns become indicator terms learned in each fold.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "folds=5; seed=7", "penalties=0.01 to 100" or "show=out-of-fold".
+ * @returns Scores with their standard errors, the penalty path, or per-row out-of-fold probabilities.
+ */
+export function folds(labels: any[][], predictors: any[][], options?: any[][]): any[][] {
+  return runCell(F.FOLDS.doing, () => F.FOLDS.adapter(labels, predictors, options ?? null));
+}

@@ -10,7 +10,7 @@
 import { trainModel, type ModelOptions, type TrainedModel, type CellValue, type Diagnostic } from "../engine";
 import { isMessageCode, problem } from "../shared/messages";
 import { cellCount, contentKey, contentKeyAndSizes, sharedFitCache } from "../shared/fitCache";
-import { FIT_OPTIONS, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
+import { FIT_OPTIONS, OPT_INTERVAL, OPT_LEVEL, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
 import { PAYLOAD_SIZER, checkPayload, surelyTooLarge, type PayloadPart } from "./payload";
 import { required } from "./required";
 
@@ -26,9 +26,11 @@ export interface ModelCallOptions {
 
 /**
  * The fit options of parsed fitting-function options: one builder, so every function over the same
- * ranges and settings computes the same cache key (ODDS.EFFECTS parses a schema of its own).
+ * ranges and settings computes the same cache key (ODDS.EFFECTS, ODDS.FOLDS and ODDS.HOLDOUT parse
+ * schemas of their own; those without the interval options, which use only probabilities, get the
+ * defaults).
  */
-export function modelOptionsOf(o: Omit<FitCellOptions, "threshold">): ModelOptions {
+export function modelOptionsOf(o: Omit<FitCellOptions, "threshold" | "level" | "interval"> & Partial<Pick<FitCellOptions, "level" | "interval">>): ModelOptions {
   return {
     headers: o.headers,
     positive: o.positive,
@@ -37,8 +39,8 @@ export function modelOptionsOf(o: Omit<FitCellOptions, "threshold">): ModelOptio
     penalty: o.penalty,
     penaltyScale: o.scale,
     firth: o.firth,
-    level: o.level,
-    intervalMethod: o.interval,
+    level: o.level ?? OPT_LEVEL.default,
+    intervalMethod: o.interval ?? OPT_INTERVAL.default,
     referenceLevels: o.baseline.length > 0 ? parseBaselines(o.baseline) : null,
     minLevelCount: o.pool,
     form: o.form,

@@ -35,7 +35,7 @@ function outputRows(labels: CellValue[][] | null, newRows: CellValue[][] | null)
  * a class of its own, the estimate is one column short, and the payload check after the fit and
  * spill's last guard still hold the output to the sheet's limits.
  */
-function distinctLabels(labels: CellValue[][] | null): number {
+export function distinctLabels(labels: CellValue[][] | null): number {
   if (!Array.isArray(labels)) return 1;
   const seen = new Set<unknown>();
   for (let i = 0; i < labels.length; i++) {

@@ -18,6 +18,7 @@ import { reportCell } from "./reportCell";
 import { logLossCell } from "./logLossCell";
 import { aucCell } from "./aucCell";
 import { cutoffCell } from "./cutoffCell";
+import { foldsCell } from "./foldsCell";
 import { effectsCell } from "./effectsCell";
 import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
@@ -99,6 +100,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("FORMULAS", "writing the model as formulas", [req("labels"), req("predictors"), opt("options"), opt("recipe"), opt("data")], (l, p, o, r, d) =>
     formulasCell(l, p, o ?? null, r ?? null, d ?? null),
+  ),
+  spec("FOLDS", "cross-validating the model", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
+    foldsCell(l, p, o ?? null),
   ),
 ];
 

@@ -75,6 +75,18 @@ export const CELL_MESSAGES = {
     template:
       "Every row has the label \"{label}\", and nothing says which class the probabilities are for. Name the class in the probabilities' header row (e.g. \"P({label})\"), or set the positive option.",
   },
+  // ---- evaluation functions (ODDS.FOLDS, ODDS.HOLDOUT) ---------------------------------------
+  EVALUATION_SCOPE: {
+    cellError: "#N/A",
+    title: "What held-out scores show",
+    template:
+      "These scores estimate how the model predicts new rows drawn like these. They show statistical associations, not causes, and an overall score can hide a group the model serves badly: compare groups before using it in decisions about people.",
+  },
+  HOLDOUT_BOTH_SPLITS: {
+    cellError: "#VALUE!",
+    title: "Two ways of splitting",
+    template: "Both a split column and the holdout option ({value}) are given. Use one: the column marks the training rows, or holdout=share asks for a seeded split.",
+  },
   // ---- what one call can carry and the sheet can hold ------------------------------------------
   RANGE_TOO_LARGE: {
     cellError: "#VALUE!",
