@@ -47,3 +47,5 @@ export { chooseThreshold } from "./evaluation/chooseThreshold";
 export type { ThresholdChoice, ThresholdRule } from "./evaluation/chooseThreshold";
 export { EFFECTS_WORK_LIMIT, averageMarginalEffects } from "./evaluation/marginalEffects";
 export type { AverageEffectsOptions, MarginalEffect, MarginalEffects } from "./evaluation/marginalEffects";
+export { MAX_GROUPS, compareGroups, groupsOf } from "./evaluation/groupComparison";
+export type { GroupComparison, GroupComparisonOptions, GroupFigures, GroupRatios } from "./evaluation/groupComparison";
