@@ -19,6 +19,7 @@ import { logLossCell } from "./logLossCell";
 import { aucCell } from "./aucCell";
 import { cutoffCell } from "./cutoffCell";
 import { effectsCell } from "./effectsCell";
+import { groupsCell } from "./groupsCell";
 import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
@@ -95,6 +96,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("EFFECTS", "computing marginal effects", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
     effectsCell(l, p, o ?? null),
+  ),
+  spec("GROUPS", "comparing groups", [req("labels"), req("probabilities_or_predictors"), req("group"), opt("options")], (l, p, g, o) =>
+    groupsCell(l, p, g, o ?? null),
   ),
 ];
 

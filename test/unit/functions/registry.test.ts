@@ -22,9 +22,9 @@ describe("cell-function registry", () => {
     expect(findCellFunction("SUM")).toBeUndefined();
   });
 
-  test("lists thirteen functions, each with its required parameters before its optional ones", () => {
+  test("lists fourteen functions, each with its required parameters before its optional ones", () => {
     expect(CELL_FUNCTIONS.map((f) => f.name)).toEqual([
-      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS",
+      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS", "GROUPS",
     ]);
     for (const f of CELL_FUNCTIONS) {
       const firstOptional = f.parameters.findIndex((p) => p.optional);
