@@ -1,11 +1,12 @@
 /**
- * Writes docs/errors.md, the user-facing list of every message Oddsmith can show, from the one
- * catalogue (src/engine/messages.ts). Run with `npm run docs:errors`; a unit test fails when the
- * committed file differs from what this script would write.
+ * Writes docs/errors.md, the user-facing list of every message Oddsmith can show, from the message
+ * catalogues (the engine's src/engine/messages.ts, then the surface's under src/shared/messages/).
+ * Run with `npm run docs:errors`; a unit test fails when the committed file differs from what this
+ * script would write.
  */
 import { writeFileSync } from "fs";
 import { join } from "path";
-import { MESSAGES } from "../src/engine/messages";
+import { MESSAGES } from "../src/shared/messages";
 
 /** Where the table is written, relative to the repository root. */
 export const ERROR_TABLE_PATH = join("docs", "errors.md");
@@ -20,7 +21,8 @@ export function renderErrorTable(): string {
   const lines = [
     "# Oddsmith messages",
     "",
-    "Every problem Oddsmith reports, generated from `src/engine/messages.ts` by",
+    "Every problem Oddsmith reports, generated from the message catalogues (`src/engine/messages.ts` for",
+    "the engine, `src/shared/messages/` for the cell functions and the task pane) by",
     "`npm run docs:errors` (do not edit by hand). A cell function that cannot return a result shows the",
     "cell error with the message; warnings and notes appear in the diagnostics of a result.",
     "`{name}` marks a value filled in when the message is shown.",

@@ -1,13 +1,20 @@
 /**
- * The message catalogue: every problem Oddsmith reports to a user, in one place.
+ * The engine's message catalogue: every problem the engine itself reports (input shape and parsing,
+ * labels, estimation, scoring, basis recipes, metrics, error cells in a table, work limits), and the
+ * one way to fill a template, used by every catalogue.
  *
- * Each entry has a stable code (used in tests and docs), the cell error it maps to when a cell
- * function cannot return a result (#VALUE! = the input is wrong, #N/A = the input is fine but
+ * Each entry has a stable code (used in tests and docs), the kind of problem written as the cell
+ * error a cell function shows for it (#VALUE! = the input is wrong, #N/A = the input is fine but
  * nothing can be estimated or scored), and a template that says what is wrong, where, and what to do.
- * Placeholders are written {name}; `formatMessage` fills them.
+ * Placeholders are written {name}; {name|one|other} is the word for the count `name`.
  *
- * Policy: add a code here before using it; never build user-facing text elsewhere. docs/errors.md is
- * generated from this table (scripts/write-error-table.ts) and a test keeps it in step.
+ * Codes of the surface (cell functions, task pane, basis columns that follow a table, output limits)
+ * live in their own catalogues under src/shared/messages/, which also combine both into the one
+ * `problem` / `formatMessage` the outside code uses. The engine never imports them.
+ *
+ * Policy: add a code to the catalogue of the layer that raises it before using it; never build
+ * user-facing text elsewhere. docs/errors.md is generated from the catalogues
+ * (scripts/write-error-table.ts) and a test keeps it in step.
  */
 
 export type CellErrorKind = "#VALUE!" | "#N/A";
@@ -19,7 +26,7 @@ export interface MessageEntry {
   template: string;
 }
 
-export const MESSAGES = {
+export const ENGINE_MESSAGES = {
   // ---- input shape and parsing (#VALUE!) -------------------------------------------------------
   EMPTY_RANGE: {
     cellError: "#VALUE!",
@@ -31,12 +38,6 @@ export const MESSAGES = {
     title: "Ranges of different lengths",
     template:
       "The {argument} range has {got} {got|row|rows} but {expectedArgument} has {expected}. Select ranges that cover the same rows.",
-  },
-  RANGE_TOO_LARGE: {
-    cellError: "#VALUE!",
-    title: "Range too large for a cell function",
-    template:
-      "The {argument} range holds about {cells} cells, more than a cell function can receive ({limit}). Use the Oddsmith task pane, which reads large tables in pieces.",
   },
   NOT_A_NUMBER: {
     cellError: "#VALUE!",
@@ -116,17 +117,6 @@ export const MESSAGES = {
     cellError: "#VALUE!",
     title: "Invalid option value",
     template: "The option {name} cannot be \"{value}\". {expected}",
-  },
-  OPTION_SYNTAX: {
-    cellError: "#VALUE!",
-    title: "Options not understood",
-    template:
-      "The options text \"{text}\" could not be read at \"{at}\". Write name=value pairs separated by semicolons (or line breaks), e.g. \"penalty=0.1; level=0.9\".",
-  },
-  DUPLICATE_OPTION: {
-    cellError: "#VALUE!",
-    title: "Option given twice",
-    template: "The option {name} is given twice (\"{first}\" and \"{second}\"). Give it once.",
   },
   // ---- labels (#VALUE!) ------------------------------------------------------------------------
   ONE_CLASS_ONLY: {
@@ -287,38 +277,6 @@ export const MESSAGES = {
     title: "Value outside the transform's domain",
     template: "Row {row}: {transform} is not defined for {value} in {column}. {hint}",
   },
-  // ---- coefficient tables on the sheet (ODDS.SCORE, #VALUE!) ----------------------------------
-  COEFFICIENT_TABLE_HEADER: {
-    cellError: "#VALUE!",
-    title: "Coefficient table without its header",
-    template:
-      "The coefficients range needs a header row with columns named \"term\" and \"coefficient\" (and \"class\" when the model has several classes); its first row holds {found}. Select the table ODDS.FIT wrote, header row included.",
-  },
-  COEFFICIENT_TERM_REPEATED: {
-    cellError: "#VALUE!",
-    title: "Term listed twice",
-    template:
-      "The term \"{term}\" appears twice for class \"{outcome}\" in the coefficients range (rows {first} and {second}). Keep one row per term and class.",
-  },
-  // ---- metric cell functions: matching labels with probability columns (#VALUE!) ---------------
-  BINARY_METRIC_ONLY: {
-    cellError: "#VALUE!",
-    title: "Metric for two classes only",
-    template:
-      "{fn} works with two classes, but the labels hold {count} ({classes}). For several classes use ODDS.LOGLOSS or ODDS.CONFUSION with one probability column per class.",
-  },
-  PROBABILITY_COLUMN_COUNT: {
-    cellError: "#VALUE!",
-    title: "Probability columns do not match the classes",
-    template:
-      "The probabilities range has {got} {got|column|columns} for {count} classes ({classes}). Give one column of positive-class probabilities for two classes, or one column per class under a header row naming the classes (as ODDS.PROB writes it).",
-  },
-  PROBABILITY_COLUMN_MISSING: {
-    cellError: "#VALUE!",
-    title: "No probability column for a class",
-    template:
-      "The labels hold the class \"{label}\" but no probability column is named for it (column headers: {headers}). Name each column after its class, e.g. \"P({label})\".",
-  },
   // ---- recipes for basis columns (#VALUE!) -----------------------------------------------------
   RECIPE_SYNTAX: {
     cellError: "#VALUE!",
@@ -368,54 +326,6 @@ export const MESSAGES = {
     cellError: "#N/A",
     title: "Fewer basis columns than asked",
     template: "{transform} on \"{column}\" made {got} {got|column|columns} instead of the {asked} asked for, because {reason}.",
-  },
-  BASIS_MANY_COLUMNS: {
-    cellError: "#N/A",
-    title: "Many basis columns for the rows",
-    template:
-      "The recipe makes {columns} {columns|column|columns} for {rows} {rows|row|rows} ({ratio} rows per column). With fewer than {rule} rows per column a fit tends to overfit or separate: use fewer or smaller transforms, or more rows.",
-  },
-  BASIS_NEEDS_HEADER: {
-    cellError: "#VALUE!",
-    title: "Basis columns need a header row",
-    template:
-      "The block {address} does not seem to start with a header row, and recipes name columns by their headers. Select the block including its header row, or say that the first row holds headers.",
-  },
-  BASIS_TARGET_NOT_EMPTY: {
-    cellError: "#VALUE!",
-    title: "Cells in the way",
-    template:
-      "The cells {address} on sheet \"{sheet}\" are not empty. Choose another place or a new sheet, or confirm that they may be overwritten.",
-  },
-  BASIS_FOLLOWED_ROWS: {
-    cellError: "#N/A",
-    title: "Basis formula follows the table",
-    template:
-      "The table now has {rows} data rows, so the basis formula at {sheet}!{anchor} was rewritten over {source}: its knots, centres, levels and scales are refitted on all {rows} rows, and the fit uses the new rows.",
-  },
-  BASIS_VALUES_NOT_REFRESHED: {
-    cellError: "#N/A",
-    title: "Basis values not refreshed",
-    template:
-      "The basis columns at {sheet}!{address} hold values, not a live formula, so they were not refreshed after {change}. Rows without basis values are skipped from the fit and edited rows keep their old basis values. Remove the generated columns and add them again, or add them as a live formula.",
-  },
-  BASIS_FOLLOW_BLOCKED: {
-    cellError: "#N/A",
-    title: "Basis formula not extended: cells in the way",
-    template:
-      "The basis formula at {sheet}!{anchor} was not extended to the table's new rows, because the cells {address} it would fill are not empty; the new rows have no basis values and are skipped from the fit. Clear or move those cells, then edit the table again (or remove the generated columns and add them again).",
-  },
-  BASIS_FOLLOW_LOST: {
-    cellError: "#N/A",
-    title: "Generated basis columns changed",
-    template:
-      "The basis columns written at {sheet}!{address} were changed or removed (their header row no longer reads {names}), so they were not rewritten for the table's new rows. Add them again from the basis section if you still need them.",
-  },
-  BASIS_FOLLOW_FAILED: {
-    cellError: "#N/A",
-    title: "Basis formula not extended: recipe fails on the new rows",
-    template:
-      "The basis formula at {sheet}!{anchor} was kept over its old rows, because its recipe cannot be computed over the table's new rows: {reason}",
   },
   // ---- metrics (#VALUE!) -----------------------------------------------------------------------
   BAD_PROBABILITY: {
@@ -506,18 +416,7 @@ export const MESSAGES = {
     template:
       "The probabilities separate the labels (no negative row has a higher probability than a positive row), so the calibration slope runs off to infinity and is not given. Judge calibration from the observed-vs-expected table instead.",
   },
-  // ---- sheet limits and error cells (robustness) -----------------------------------------------
-  OUTPUT_TOO_LARGE: {
-    cellError: "#VALUE!",
-    title: "Result too large for the sheet",
-    template:
-      "{fn} would return {rows} {rows|row|rows} x {columns} {columns|column|columns} ({what}), more than one formula can spill: a sheet has at most 1,048,576 rows and 16,384 columns, and one call can return about 5 MB (about {cells} cells of numbers). {hint}",
-  },
-  TEXT_TRUNCATED: {
-    cellError: "#N/A",
-    title: "Text cut to the cell limit",
-    template: " [... cut: {dropped} more characters; a cell holds at most {limit}]",
-  },
+  // ---- error cells and work limits ------------------------------------------------------------
   ERROR_VALUE_CELL: {
     cellError: "#VALUE!",
     title: "Error value in an input",
@@ -536,29 +435,78 @@ export const MESSAGES = {
     template:
       "Bias reduction (firth=true) on {rows} rows x {terms} terms would take too long in one call: its work grows with rows x terms x terms ({work} here, the limit is {limit}; for example {example}). Use fewer terms or rows, or a penalty (e.g. penalty=0.1) instead of firth=true.",
   },
-  OPTION_DECIMAL_COMMA: {
+  // ---- cross-validation and held-out checks -----------------------------------------------------
+  CV_CLASS_TOO_SMALL: {
     cellError: "#VALUE!",
-    title: "Decimal comma in the options",
+    title: "Class too small for the folds",
     template:
-      "The options text \"{text}\" has \"{at}\" after a comma. Commas and semicolons separate options, so write decimals with a point (e.g. \"{suggestion}\").",
+      "The class \"{label}\" has {count} {count|row|rows} in the fit, fewer than the {folds} folds asked for: every fold must hold each class. Use at most {count} folds (folds={count}), or gather more rows of that class.",
   },
-  OPTIONS_RANGE_SHAPE: {
+  CV_BAD_ASSIGNMENT: {
     cellError: "#VALUE!",
-    title: "Options range of more than two columns",
-    template:
-      "The options range has {columns} columns, and column {column} holds \"{value}\" (row {row}). Give options as text, as one column of name=value texts, or as two columns: names, then values.",
+    title: "Invalid fold assignment",
+    template: "The fold assignment cannot be used: {detail}. Number the folds 1, 2, ... and give every fold's training rows each class.",
   },
-  COEFFICIENT_REFERENCE_IS_EQUATION: {
+  CV_GROUPED_COUNTS: {
     cellError: "#VALUE!",
-    title: "Reference class listed with coefficients",
+    title: "Grouped counts cannot be split into folds",
     template:
-      "The class header names \"{reference}\" as the reference class, but row {row} of the coefficients range gives an equation for \"{reference}\". The reference class has no equation of its own: correct the header or remove its rows.",
+      "Cross-validation and held-out checks hold out whole rows of single cases; with grouped counts (trials) a row holds many cases. Give one row per case (a label per row) instead.",
   },
-  METRIC_CLASS_UNNAMED: {
+  CV_TOO_COSTLY: {
     cellError: "#VALUE!",
-    title: "One class, probabilities unnamed",
+    title: "Cross-validation too large",
     template:
-      "Every row has the label \"{label}\", and nothing says which class the probabilities are for. Name the class in the probabilities' header row (e.g. \"P({label})\"), or set the positive option.",
+      "This cross-validation needs {fits} fits of {rows} rows x {parameters} coefficients (about {work} work units), more than {limit} {where}. Use fewer folds or penalties, fewer rows or predictor columns{hint}.",
+  },
+  CV_FOLD_FAILED: {
+    cellError: "#N/A",
+    title: "A fold gave no usable fit",
+    template: "Fold {fold} of {folds}{penalty} gave no usable fit: {reason}",
+  },
+  CV_FOLD_UNSCORED: {
+    cellError: "#N/A",
+    title: "No held-out row of a fold could be scored",
+    template:
+      "No held-out row of fold {fold} of {folds} could be scored by the fit on the other folds (row {row}: {reason}). Use fewer folds, or pool rare categories (pool=...).",
+  },
+  CV_ROWS_UNSCORED: {
+    cellError: "#N/A",
+    title: "Held-out rows without a probability",
+    template:
+      "{count} held-out {count|row|rows} got no probability from the fit on the other rows and {count|is|are} left out of the held-out metrics (for example row {row}: {reason}).",
+  },
+  CV_PENALTY_FAILED: {
+    cellError: "#N/A",
+    title: "Penalties left out of the path",
+    template: "{count} {count|penalty|penalties} of the path gave no usable fit in some fold and {count|is|are} left out of the choice (penalty {penalty}: {reason})",
+  },
+  CV_NOT_CONVERGED: {
+    cellError: "#N/A",
+    title: "Some fold fits did not converge",
+    template: "{count} of {fits} fold {fits|fit|fits} did not converge (for example fold {fold}{penalty}); their held-out values are less reliable. A penalty usually helps.",
+  },
+  HOLDOUT_BAD_MARK: {
+    cellError: "#VALUE!",
+    title: "Unreadable training mark",
+    template:
+      "The {argument} value in row {row} (\"{value}\") is not a training mark. Use TRUE or 1 for a training row and FALSE or 0 for a held-out row; leave the cell blank to leave the row out.",
+  },
+  HOLDOUT_EMPTY_SIDE: {
+    cellError: "#VALUE!",
+    title: "No training or no held-out rows",
+    template: "{side} {note}Mark some rows for training and some as held out, or use a seeded split (holdout=0.3).",
+  },
+  HOLDOUT_CLASS_UNTRAINED: {
+    cellError: "#VALUE!",
+    title: "Held-out class absent from training",
+    template:
+      "The class \"{label}\" occurs in {count} held-out {count|row|rows} (for example row {row}) but in no training row, so the model cannot give it a probability. Move some of its rows into training.",
+  },
+  HOLDOUT_BOTH_SPLITS: {
+    cellError: "#VALUE!",
+    title: "Two ways of splitting",
+    template: "Both a split column and the holdout option ({value}) are given. Use one: the column marks the training rows, or holdout=share asks for a seeded split.",
   },
   // ---- marginal effects ------------------------------------------------------------------------
   EFFECTS_TWO_CLASSES_ONLY: {
@@ -624,7 +572,8 @@ export const MESSAGES = {
   },
 } as const satisfies Record<string, MessageEntry>;
 
-export type MessageCode = keyof typeof MESSAGES;
+/** A code of the engine's catalogue. */
+export type MessageCode = keyof typeof ENGINE_MESSAGES;
 
 /** Longest text a filled-in placeholder shows: a message stays far below a cell's 32,767 characters (a quoted cell of 30,000 characters helps nobody). */
 export const MAX_PARAM_CHARS = 1000;
@@ -638,35 +587,45 @@ function paramText(value: unknown): string {
 /**
  * Fill a template's placeholders: {name} is the value (cut to MAX_PARAM_CHARS characters); {name|one|other}
  * is the word for the count `name` ("one" when it is 1, "other" otherwise: "{rows} {rows|row|rows}").
- * A missing value is shown as "?" so a gap is visible, not hidden.
+ * A missing value is shown as "?" so a gap is visible, not hidden. Every catalogue fills its templates
+ * with this one function.
+ * @example fillTemplate("{n} {n|row|rows}", { n: 1 }) // "1 row"
  */
-export function formatMessage(code: MessageCode, params: Record<string, unknown> = {}): string {
-  return MESSAGES[code].template.replace(/\{(\w+)(?:\|([^|{}]*)\|([^|{}]*))?\}/g, (_, key: string, one?: string, other?: string) => {
+export function fillTemplate(template: string, params: Record<string, unknown> = {}): string {
+  return template.replace(/\{(\w+)(?:\|([^|{}]*)\|([^|{}]*))?\}/g, (_, key: string, one?: string, other?: string) => {
     const value = params[key];
     if (one !== undefined) return Number(value) === 1 ? one : (other as string);
     return value === undefined ? "?" : paramText(value);
   });
 }
 
+/** The message of an engine code with its placeholders filled (see fillTemplate). */
+export function formatMessage(code: MessageCode, params: Record<string, unknown> = {}): string {
+  return fillTemplate(ENGINE_MESSAGES[code].template, params);
+}
+
 /**
- * The one error type the engine throws for problems the user can act on. Adapters turn it into a
- * cell error (#VALUE! or #N/A) with `message`; anything else thrown is a bug and becomes INTERNAL.
+ * The one error type thrown for problems the user can act on, by the engine and the surface alike.
+ * Adapters turn it into a cell error (#VALUE! or #N/A) with `message`; anything else thrown is a bug
+ * and becomes INTERNAL. An engine code finds its entry here; a surface catalogue passes its own entry.
  */
 export class OddsmithError extends Error {
-  readonly code: MessageCode;
+  readonly code: string;
   readonly cellError: CellErrorKind;
   readonly params: Record<string, unknown>;
 
-  constructor(code: MessageCode, params: Record<string, unknown> = {}) {
-    super(formatMessage(code, params));
+  constructor(code: MessageCode, params?: Record<string, unknown>);
+  constructor(code: string, params: Record<string, unknown>, entry: MessageEntry);
+  constructor(code: string, params: Record<string, unknown> = {}, entry: MessageEntry = ENGINE_MESSAGES[code as MessageCode]) {
+    super(fillTemplate(entry.template, params));
     this.name = "OddsmithError";
     this.code = code;
-    this.cellError = MESSAGES[code].cellError;
+    this.cellError = entry.cellError;
     this.params = params;
   }
 }
 
-/** Shorthand used throughout: `throw problem("EMPTY_RANGE", { argument: "labels" })`. */
+/** Shorthand used throughout the engine: `throw problem("EMPTY_RANGE", { argument: "labels" })`. */
 export function problem(code: MessageCode, params: Record<string, unknown> = {}): OddsmithError {
   return new OddsmithError(code, params);
 }

@@ -4,7 +4,8 @@
  * Hosmer-Lemeshow test on those groups (engine hosmerLemeshow). Two classes only. The grouping rule is
  * written under the table, because H-L results depend on it.
  */
-import { OddsmithError, calibrationTable, hosmerLemeshow, type HosmerLemeshowResult, type CellValue } from "../engine";
+import { calibrationTable, hosmerLemeshow, type HosmerLemeshowResult, type CellValue } from "../engine";
+import { OddsmithError } from "../shared/messages";
 import { spill } from "./cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CALIBRATION_OPTIONS } from "./metricOptions";

@@ -12,7 +12,7 @@
  *
  * This module never touches Office at import time, so the adapters and the workbench can import it.
  */
-import { MESSAGES, OddsmithError, problem, type CellErrorKind, type MessageCode } from "../engine";
+import { MESSAGES, OddsmithError, codeOf, problem, type CellErrorKind, type MessageCode } from "../shared/messages";
 
 /** What a failing cell shows, independent of Office. */
 export interface CellFailureInfo {
@@ -44,7 +44,7 @@ export class CellFunctionFailure extends Error implements CellFailureInfo {
  */
 export function describeFailure(error: unknown, doing: string): CellFailureInfo {
   if (error instanceof OddsmithError) {
-    return { cellError: error.cellError, code: error.code, message: error.message };
+    return { cellError: error.cellError, code: codeOf(error), message: error.message };
   }
   if (error instanceof CellFunctionFailure) {
     return { cellError: error.cellError, code: error.code, message: error.message };

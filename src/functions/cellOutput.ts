@@ -10,7 +10,8 @@
  * - A result larger than the sheet (rows, columns, payload) is refused (OUTPUT_TOO_LARGE): each
  *   function estimates its output before computing (sheetLimits.ts); this is the last guard.
  */
-import { formatMessage, type CellValue } from "../engine";
+import { type CellValue } from "../engine";
+import { formatMessage } from "../shared/messages";
 import { checkOutputSize, MAX_CELL_TEXT } from "./sheetLimits";
 
 /** `text` cut so that it fits one cell, ending with the catalogue's note on what was cut. */

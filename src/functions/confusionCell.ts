@@ -5,7 +5,8 @@
  * probable class is predicted (engine confusionMatrix), with accuracy and each class's recall.
  * Layout: one row per ACTUAL class, one column per PREDICTED class.
  */
-import { problem, confusionCounts, confusionMatrix, type CellValue } from "../engine";
+import { confusionCounts, confusionMatrix, type CellValue } from "../engine";
+import { problem } from "../shared/messages";
 import { spill } from "./cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CONFUSION_OPTIONS } from "./metricOptions";

@@ -4,7 +4,8 @@
  * positive over that of a false negative; the default, 1), `sensitivity` (target), `budget` (at most
  * this many rows flagged). Two classes only.
  */
-import { chooseThreshold, problem, type CellValue, type ThresholdRule } from "../engine";
+import { chooseThreshold, type CellValue, type ThresholdRule } from "../engine";
+import { problem } from "../shared/messages";
 import { spill } from "./cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CUTOFF_OPTIONS } from "./metricOptions";

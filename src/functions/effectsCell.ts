@@ -13,7 +13,8 @@
  * - Same options as ODDS.FIT (the same cached fit) without the threshold, plus `indicators`.
  * - A fit without usable estimates is #N/A with the reason; several classes are refused.
  */
-import { averageMarginalEffects, formatMessage, problem, type CellValue, type MarginalEffect } from "../engine";
+import { averageMarginalEffects, type CellValue, type MarginalEffect } from "../engine";
+import { formatMessage, problem } from "../shared/messages";
 import { levelLabel, spill } from "./cellOutput";
 import { EFFECTS_OPTIONS } from "./metricOptions";
 import { fittedModel, modelOptionsOf, requireUsableFit } from "./modelCell";

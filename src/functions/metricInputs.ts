@@ -19,7 +19,8 @@
  * - An error value (#N/A, #DIV/0!, ...) in either range is refused (ERROR_VALUE_CELL, naming the
  *   cell): a metric over silently fewer rows would look like a result for all of them.
  */
-import { agreeHeaders, compareText, matchClass, readLabels, OddsmithError, listNames, problem, readTable, type LabelInfo, type Table, type CellValue } from "../engine";
+import { agreeHeaders, compareText, matchClass, readLabels, readTable, type LabelInfo, type Table, type CellValue } from "../engine";
+import { OddsmithError, codeOf, listNames, problem } from "../shared/messages";
 
 export interface MetricInputOptions {
   /** Function name as the user sees it, for messages ("ODDS.AUC"). */
@@ -255,7 +256,7 @@ export function withSheetRows<T>(inputs: MetricInputs, body: () => T): T {
     if (error instanceof OddsmithError && typeof error.params.index === "number") {
       const index = error.params.index;
       const row = index >= 0 && index < inputs.sheetRows.length ? inputs.sheetRows[index] : error.params.row;
-      throw new OddsmithError(error.code, { ...error.params, row });
+      throw problem(codeOf(error), { ...error.params, row });
     }
     throw error;
   }

@@ -7,7 +7,8 @@
  * REPORT over the same ranges share one fit, and any edited, appended or deleted cell refits. The
  * cache is src/shared/fitCache.ts, shared with the task pane in the shared runtime.
  */
-import { OddsmithError, problem, trainModel, type MessageCode, type ModelOptions, type TrainedModel, type CellValue, type Diagnostic } from "../engine";
+import { trainModel, type ModelOptions, type TrainedModel, type CellValue, type Diagnostic } from "../engine";
+import { isMessageCode, problem } from "../shared/messages";
 import { cellCount, contentKey, contentKeyAndSizes, sharedFitCache } from "../shared/fitCache";
 import { FIT_OPTIONS, OPT_THRESHOLD, parseBaselines, parseOptions, type ParsedOptions } from "./options";
 import { PAYLOAD_SIZER, checkPayload, surelyTooLarge, type PayloadPart } from "./payload";
@@ -111,7 +112,7 @@ export function fitFailure(model: TrainedModel): Diagnostic | null {
 export function requireUsableFit(model: TrainedModel): void {
   const failure = fitFailure(model);
   if (!failure) return;
-  const error = new OddsmithError(failure.code as MessageCode);
+  const error = problem(isMessageCode(failure.code) ? failure.code : "INTERNAL");
   // The diagnostic already carries the filled-in message (with columns and rows).
   error.message = failure.message;
   throw error;

@@ -16,7 +16,8 @@
  * Problems: OPTION_SYNTAX, UNKNOWN_OPTION (lists the valid names), BAD_OPTION_VALUE (says what is
  * valid), DUPLICATE_OPTION.
  */
-import { errorLiteral, problem, parseNumericText } from "../engine";
+import { errorLiteral, parseNumericText } from "../engine";
+import { problem } from "../shared/messages";
 
 interface SpecBase {
   /** Lower-case name the user writes. */

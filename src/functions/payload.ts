@@ -22,7 +22,7 @@
  * fitting functions size labels and predictors in the pass that hashes them for the fit cache
  * (PAYLOAD_SIZER) and hand the sizes in as PayloadPart.bytes.
  */
-import { problem } from "../engine";
+import { problem } from "../shared/messages";
 import type { CellSizer } from "../shared/fitCache";
 
 /** About 5 MB per call (Office custom-functions documentation, "payload limit"). */

@@ -1,5 +1,6 @@
 /** Required range arguments: Excel never omits them, but the workbench and tests can. */
-import { problem, type CellValue } from "../engine";
+import { type CellValue } from "../engine";
+import { problem } from "../shared/messages";
 
 /**
  * The range, or EMPTY_RANGE naming the argument when it is missing.

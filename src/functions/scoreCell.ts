@@ -18,7 +18,8 @@
  *   scored). A category that matches no term counts as the reference level (the table cannot tell
  *   the reference level from an unseen one: say so in the help).
  */
-import { errorLiteral, INTERCEPT_TERM, listNames, problem, sigmoid, isBlankCell, parseNumericText, readTable, type TableColumn, type CellValue } from "../engine";
+import { errorLiteral, INTERCEPT_TERM, sigmoid, isBlankCell, parseNumericText, readTable, type TableColumn, type CellValue } from "../engine";
+import { listNames, problem } from "../shared/messages";
 import { spill } from "./cellOutput";
 import { checkPayload } from "./payload";
 import { checkOutputSize } from "./sheetLimits";

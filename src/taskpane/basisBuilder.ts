@@ -20,7 +20,8 @@
  *   result would newly cover must be empty, else nothing is written and a note says which cells.
  *   Values are never rewritten: a note says they were not refreshed.
  */
-import { applyRecipe, fitRecipe, parseRecipe, TRANSFORM_NAMES, formatMessage, listNames, OddsmithError, problem, readTable, sourcesOf, type RecipeState, type BasisColumn, type MessageCode, type Table, type CellValue } from "../engine";
+import { applyRecipe, fitRecipe, parseRecipe, TRANSFORM_NAMES, readTable, sourcesOf, type RecipeState, type BasisColumn, type Table, type CellValue } from "../engine";
+import { codeOf, formatMessage, listNames, OddsmithError, problem, type MessageCode } from "../shared/messages";
 import { basisCell, tableToBasisColumns } from "../functions/basisCell";
 import { absoluteReference, cellAddress, parseAddress, rectAddress, type CellRect } from "./a1";
 import type { DerivedColumns } from "./plotGeometry";
@@ -226,7 +227,7 @@ export interface BasisPreview {
 export const PREVIEW_ROWS = 5;
 
 function asMessage(e: unknown): BuilderMessage {
-  if (e instanceof OddsmithError) return { code: e.code, message: e.message };
+  if (e instanceof OddsmithError) return { code: codeOf(e), message: e.message };
   return { code: "INTERNAL", message: formatMessage("INTERNAL", { doing: "previewing basis columns" }) };
 }
 

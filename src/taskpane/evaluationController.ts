@@ -9,21 +9,8 @@
  * Two classes only: ROC and calibration are defined for a positive class; a multi-class fit gets a
  * plain message instead. Nothing is only logged: every failure becomes the view's status line.
  */
-import {
-  calibrationSlope,
-  calibrationTable,
-  confusionCounts,
-  OddsmithError,
-  problem,
-  readLabels,
-  rocAuc,
-  rocCurve,
-  type CalibrationSlopeResult,
-  type CalibrationTable,
-  type ConfusionCounts,
-  type RocAucResult,
-  type RocCurve,
-} from "../engine";
+import { calibrationSlope, calibrationTable, confusionCounts, readLabels, rocAuc, rocCurve, type CalibrationSlopeResult, type CalibrationTable, type ConfusionCounts, type RocAucResult, type RocCurve } from "../engine";
+import { OddsmithError, problem } from "../shared/messages";
 import { fitFailure } from "../functions/modelCell";
 import { modelInputs } from "./modelSetup";
 import type { PaneController } from "./paneController";

@@ -10,7 +10,8 @@
  *   progress report; Cancel ends the worker at once.
  * `chooseEvaluationRunner` picks the worker above INLINE_PATH_CELL_LIMIT input cells x fits.
  */
-import { OddsmithError, type CellValue, type ModelOptions } from "../engine";
+import { type CellValue, type ModelOptions } from "../engine";
+import { OddsmithError } from "../shared/messages";
 import { yieldToPage } from "./fitRunner";
 import { callWorker } from "./workerCall";
 import type { PathEntry } from "./evaluationGeometry";

@@ -21,7 +21,8 @@
  * Both report progress in phases and honour an AbortSignal: a cancelled run rejects with FitCancelled
  * and its result is never used.
  */
-import { OddsmithError, scoreRows, trainModel, type RowScores, type TrainedModel, type CellValue } from "../engine";
+import { scoreRows, trainModel, type RowScores, type TrainedModel, type CellValue } from "../engine";
+import { OddsmithError } from "../shared/messages";
 import { modelCache, modelCacheKey, type ModelCallOptions } from "../functions/modelCell";
 import { cellCount } from "../shared/fitCache";
 import { callWorker } from "./workerCall";

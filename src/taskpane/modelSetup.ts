@@ -6,7 +6,8 @@
  * One options text serves both: the pane parses it with the same reader the cell functions use
  * (readModelOptions), so the pane's fit and the formulas' fit are the same fit.
  */
-import { problem, type CellValue } from "../engine";
+import { type CellValue } from "../engine";
+import { problem } from "../shared/messages";
 import { readModelOptions, type ModelCallOptions } from "../functions/modelCell";
 import { type CellRect, absoluteReference, cellAddress, quoteSheet } from "./a1";
 import { type DataTable, columnRect, pickColumns, tableReference } from "./dataTable";

@@ -7,7 +7,8 @@
  * Every workbook access goes through the WorkbookPort. Every failure becomes a status with a
  * catalogue message (what is wrong, where, what to do); nothing is only logged.
  */
-import { OddsmithError, problem, readLabels, scoreRows, type RowScores, type CellValue, type Diagnostic } from "../engine";
+import { readLabels, scoreRows, type RowScores, type CellValue, type Diagnostic } from "../engine";
+import { OddsmithError, problem } from "../shared/messages";
 import { fitFailure } from "../functions/modelCell";
 import { rectAddress } from "./a1";
 import { basisDerived, followTableRows, type GeneratedBasis, sourceCellsChanged, staleValuesNote, type BuilderMessage } from "./basisBuilder";

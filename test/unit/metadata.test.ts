@@ -11,7 +11,7 @@ import { generateCustomFunctionsMetadata } from "custom-functions-metadata";
 import * as functions from "../../src/functions/functions";
 import { CellFunctionFailure } from "../../src/functions/cellError";
 import { CELL_FUNCTIONS, evaluateCellFunction } from "../../src/functions/registry";
-import { formatMessage } from "../../src/engine/messages";
+import { formatMessage } from "../../src/shared/messages";
 
 const ROOT = path.resolve(__dirname, "../..");
 // eslint-disable-next-line @typescript-eslint/no-require-imports

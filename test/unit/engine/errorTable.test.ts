@@ -1,6 +1,6 @@
 import { readFileSync } from "fs";
 import { join } from "path";
-import { MESSAGES } from "../../../src/engine/messages";
+import { MESSAGES } from "../../../src/shared/messages";
 import { ERROR_TABLE_PATH, renderErrorTable } from "../../../scripts/write-error-table";
 
 describe("docs/errors.md", () => {

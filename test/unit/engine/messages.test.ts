@@ -1,6 +1,6 @@
-import { exampleRows, formatMessage, listNames, MESSAGES, OddsmithError, problem } from "../../../src/engine/messages";
+import { ENGINE_MESSAGES, exampleRows, fillTemplate, formatMessage, listNames, OddsmithError, problem } from "../../../src/engine/messages";
 
-describe("message catalogue", () => {
+describe("the engine's message catalogue", () => {
   test("fills every placeholder it is given and marks missing ones with ?", () => {
     expect(formatMessage("EMPTY_RANGE", { argument: "labels" })).toBe(
       "The labels range has no data. Select a range that holds at least one row of values.",
@@ -16,11 +16,17 @@ describe("message catalogue", () => {
     expect(e.message).toBe("Only 2 usable rows for 3 parameters. Add rows, remove predictors, or set a penalty.");
   });
 
-  test("every entry says what to do or names what was found", () => {
-    for (const [code, entry] of Object.entries(MESSAGES)) {
+  test("every engine entry says what to do or names what was found", () => {
+    for (const [code, entry] of Object.entries(ENGINE_MESSAGES)) {
       expect([code, entry.template.length > 30]).toEqual([code, true]);
       expect(["#VALUE!", "#N/A"]).toContain(entry.cellError);
     }
+  });
+
+  test("fillTemplate picks the word of {name|one|other} by the count: one for 1, other otherwise", () => {
+    expect(fillTemplate("{n} {n|row was|rows were} skipped", { n: 1 })).toBe("1 row was skipped");
+    expect(fillTemplate("{n} {n|row was|rows were} skipped", { n: 0 })).toBe("0 rows were skipped");
+    expect(fillTemplate("{n} {n|row was|rows were} skipped", { n: 3 })).toBe("3 rows were skipped");
   });
 
   test("listNames quotes, joins with 'and', and shortens long lists", () => {

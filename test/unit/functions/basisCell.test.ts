@@ -1,5 +1,5 @@
 import { basisCell, recipeText } from "../../../src/functions/basisCell";
-import { OddsmithError } from "../../../src/engine/messages";
+import { OddsmithError } from "../../../src/shared/messages";
 import type { CellValue } from "../../../src/engine/types";
 
 const data: CellValue[][] = [

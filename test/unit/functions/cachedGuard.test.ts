@@ -2,7 +2,7 @@
  * The payload guard with the fit cache: a cached model's inputs keep their size estimate, and a
  * cached fit never lets an oversized call through.
  */
-import { OddsmithError } from "../../../src/engine/messages";
+import { OddsmithError } from "../../../src/shared/messages";
 import { fitCell } from "../../../src/functions/fitCell";
 import { modelCache } from "../../../src/functions/modelCell";
 import { PAYLOAD_LIMIT_BYTES, checkPayload, estimateBytes } from "../../../src/functions/payload";

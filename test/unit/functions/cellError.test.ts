@@ -3,7 +3,7 @@
  * becomes the INTERNAL message (never the raw text); inside Office the result is a
  * CustomFunctions.Error with the matching error code.
  */
-import { formatMessage, problem } from "../../../src/engine/messages";
+import { formatMessage, problem } from "../../../src/shared/messages";
 import { CellFunctionFailure, describeFailure, runCell, toCellError } from "../../../src/functions/cellError";
 
 describe("cell errors outside Office (CustomFunctions undefined)", () => {

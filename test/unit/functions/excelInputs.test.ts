@@ -7,7 +7,7 @@
  */
 import * as glm from "../../fixtures/binary/glm-references.json";
 import * as spector from "../../fixtures/binary/spector.json";
-import { formatMessage } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
 import { basis, fit, prob } from "../../../src/functions/functions";
 import { basisCell } from "../../../src/functions/basisCell";
 import { sharedFitCache } from "../../../src/shared/fitCache";

@@ -11,7 +11,7 @@ import * as glm from "../../fixtures/binary/glm-references.json";
 import * as spector from "../../fixtures/binary/spector.json";
 import * as anes from "../../fixtures/multiclass/anes96.json";
 import * as ridge from "../../fixtures/binary/ridge.json";
-import { formatMessage } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
 import { fit } from "../../../src/functions/functions";
 import { sharedFitCache } from "../../../src/shared/fitCache";
 import { OMITTED, column, expectClose, expectCleanCells, failure, table, type Range } from "./excel";

@@ -11,7 +11,7 @@ import * as sklearn from "../../fixtures/metrics/sklearn-metrics.json";
 import * as asah from "../../fixtures/metrics/roc-asah.json";
 import * as calib from "../../fixtures/metrics/calibration.json";
 import { auc, calibration, confusion, logLoss } from "../../../src/functions/functions";
-import { formatMessage } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
 import { OMITTED, column, expectClose, expectCleanCells, failure, lookup, table } from "./excel";
 
 /** Sums of up to 500 terms in a different order than the reference: a few ulps of the total. */

@@ -2,8 +2,8 @@
  * The payload guard: the estimate rule (JSON text size) and RANGE_TOO_LARGE above ~5 MB, naming the
  * largest argument and pointing to the task pane.
  */
-import { formatMessage } from "../../../src/engine/messages";
-import { OddsmithError } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
+import { OddsmithError } from "../../../src/shared/messages";
 import fc from "fast-check";
 import { PAYLOAD_LIMIT_BYTES, PAYLOAD_SIZER, checkPayload, estimateBytes } from "../../../src/functions/payload";
 import { contentKeyAndSizes } from "../../../src/shared/fitCache";

@@ -7,7 +7,7 @@
 import * as glm from "../../fixtures/binary/glm-references.json";
 import * as spector from "../../fixtures/binary/spector.json";
 import * as anes from "../../fixtures/multiclass/anes96.json";
-import { formatMessage } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
 import { margin, predictClass, prob } from "../../../src/functions/functions";
 import { sharedFitCache } from "../../../src/shared/fitCache";
 import { OMITTED, column, expectClose, expectCleanCells, failure, table } from "./excel";

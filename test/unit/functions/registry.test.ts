@@ -7,7 +7,7 @@ import * as spector from "../../fixtures/binary/spector.json";
 import { fit } from "../../../src/functions/functions";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import { CELL_FUNCTIONS, NAMESPACE, evaluateCellFunction, findCellFunction } from "../../../src/functions/registry";
-import { formatMessage } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
 import { OMITTED, column, table } from "./excel";
 
 const d = spector.data;

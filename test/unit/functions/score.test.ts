@@ -5,7 +5,7 @@
  */
 import * as spector from "../../fixtures/binary/spector.json";
 import * as anes from "../../fixtures/multiclass/anes96.json";
-import { formatMessage } from "../../../src/engine/messages";
+import { formatMessage } from "../../../src/shared/messages";
 import { fit, prob, score } from "../../../src/functions/functions";
 import { sharedFitCache } from "../../../src/shared/fitCache";
 import { OMITTED, column, expectClose, expectCleanCells, failure, table, type Range } from "./excel";

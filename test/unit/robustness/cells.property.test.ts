@@ -8,7 +8,7 @@ import fc from "fast-check";
 import * as ODDS from "../../../src/functions/functions";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 import type { CellValue } from "../../../src/engine/types";
-import { MESSAGES, type MessageCode } from "../../../src/engine/messages";
+import { MESSAGES, type MessageCode } from "../../../src/shared/messages";
 import { anyCell, blankCell, EXTREME_NUMBERS, expectCatalogueError, expectCleanSpill, grid, hostileText, labelColumn, raggedGrid, RUNS, SEED, templatePattern, trainingRanges, fittableRanges, type Range } from "./support";
 
 /** Call a cell function; check the spill or the failure; return the spill or the failure code. */

@@ -12,7 +12,7 @@
  *   prints the seed and the shrunk counterexample when a case fails.
  */
 import fc from "fast-check";
-import { MESSAGES, OddsmithError, type MessageCode } from "../../../src/engine/messages";
+import { MESSAGES, OddsmithError, isMessageCode, type MessageCode } from "../../../src/shared/messages";
 import type { CellValue } from "../../../src/engine/types";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
 
@@ -216,7 +216,7 @@ export function templatePattern(code: MessageCode): RegExp {
 export function expectCatalogueError(error: unknown, context: string): asserts error is OddsmithError | CellFunctionFailure {
   if (error instanceof OddsmithError || error instanceof CellFunctionFailure) {
     const code = error.code;
-    if (!(code in MESSAGES)) throw new Error(`${context}: code ${code} is not in the catalogue`);
+    if (!isMessageCode(code)) throw new Error(`${context}: code ${code} is not in the catalogue`);
     if (code === "INTERNAL") throw new Error(`${context}: an unexpected exception escaped (shown as INTERNAL): ${error.message}`);
     if (!templatePattern(code).test(error.message)) {
       throw new Error(`${context}: message of ${code} does not follow its template: ${JSON.stringify(error.message)}`);

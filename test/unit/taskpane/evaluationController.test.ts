@@ -23,7 +23,7 @@ import { scoreRows, trainModel } from "../../../src/engine/model";
 import { rocAuc } from "../../../src/engine/metrics/rocAuc";
 import { confusionCounts } from "../../../src/engine/metrics/confusionCounts";
 import { calibrationTable } from "../../../src/engine/metrics/calibrationTable";
-import { problem } from "../../../src/engine/messages";
+import { problem } from "../../../src/shared/messages";
 import { chooseThreshold } from "../../../src/engine/evaluation/chooseThreshold";
 import { thresholdChooser } from "../../../src/taskpane/evaluationCompute";
 import { readModelOptions } from "../../../src/functions/modelCell";
