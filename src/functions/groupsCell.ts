@@ -17,9 +17,7 @@
  */
 import {
   compareGroups,
-  formatMessage,
   groupsOf,
-  problem,
   readTable,
   scoreRows,
   type CellValue,
@@ -28,6 +26,7 @@ import {
   type GroupRatios,
   type Table,
 } from "../engine";
+import { formatMessage, problem } from "../shared/messages";
 import { spill } from "./cellOutput";
 import { readMetricInputs } from "./metricInputs";
 import { GROUPS_OPTIONS, GROUPS_PROBABILITY_MODE_OPTIONS } from "./metricOptions";
