@@ -65,3 +65,5 @@ export type { ExportNote, PlanColumn, ScoringPlan } from "./export/scoringPlan";
 export { describeModel } from "./portable/describeModel";
 export { checkBasisAgreement } from "./portable/basisAgreement";
 export type { ModelDescription } from "./portable/modelDescription";
+export { MAX_GROUPS, compareGroups, groupsOf } from "./evaluation/groupComparison";
+export type { GroupComparison, GroupComparisonOptions, GroupFigures, GroupRatios } from "./evaluation/groupComparison";

@@ -570,6 +570,36 @@ export const ENGINE_MESSAGES = {
     title: "No room for the formulas",
     template: "The formulas cannot be placed at {at}: {reason}. {hint}",
   },
+  // ---- group comparison ------------------------------------------------------------------------
+  GROUPS_TOO_MANY: {
+    cellError: "#VALUE!",
+    title: "Too many groups",
+    template:
+      "The group column has more than {limit} different values across {rows} rows (for example {examples}), which looks like an identifier or a measurement rather than groups. Point the group argument at a column of groups, or group the values into at most {limit} first.",
+  },
+  GROUP_NOT_FOUND: {
+    cellError: "#VALUE!",
+    title: "Reference group not found",
+    template: "The group \"{group}\" given as versus does not occur in the group column among the rows used. Groups found: {groups}.",
+  },
+  GROUP_RATE_UNDEFINED: {
+    cellError: "#N/A",
+    title: "Rate undefined in some groups",
+    template:
+      "{count} {count|group has|groups have} no {kind} rows ({groups}), so {count|its|their} {measure} is undefined and left empty, as are ratios of it.",
+  },
+  SMALL_GROUPS: {
+    cellError: "#N/A",
+    title: "Small groups",
+    template:
+      "{count} {count|group has|groups have} fewer than {minimum} rows ({groups}): {count|its|their} rates and ratios can differ from the others by chance alone. Judge them with care, or pool small groups.",
+  },
+  GROUPS_NOT_CAUSAL: {
+    cellError: "#N/A",
+    title: "What a group comparison cannot show",
+    template:
+      "These figures show statistical associations between the groups and the model's predictions and errors, not causes, and they describe these rows only (judge a model on held-out rows). Decisions about people must follow local law and professional standards, with a qualified person accountable for each decision.",
+  },
   // ---- catch-all (#VALUE!) ---------------------------------------------------------------------
   INTERNAL: {
     cellError: "#VALUE!",

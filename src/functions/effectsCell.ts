@@ -10,7 +10,8 @@
  * - Blank cells: numbers that do not exist (aliased terms; SE, z, p and intervals of penalized fits).
  * - Below the table, after one blank row: what the effects cannot show (EFFECTS_NOT_CAUSAL), then
  *   the effects' and the fit's warnings and notes, in words.
- * - Same options as ODDS.FIT (the same cached fit) without the threshold, plus `indicators`.
+ * - Same options as ODDS.FIT (the same cached fit; the threshold is accepted and changes nothing),
+ *   plus `indicators`.
  * - A fit without usable estimates is #N/A with the reason; several classes are refused.
  */
 import { averageMarginalEffects, type CellValue, type MarginalEffect } from "../engine";

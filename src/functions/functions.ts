@@ -218,3 +218,19 @@ export function formulas(labels: any[][], predictors: any[][], options?: any[][]
 export function folds(labels: any[][], predictors: any[][], options?: any[][]): any[][] {
   return runCell(F.FOLDS.doing, () => F.FOLDS.adapter(labels, predictors, options ?? null));
 }
+
+// ---- Group comparison (issue 13) ----
+
+/**
+ * Compares a two-class classifier across groups of rows (any column): per group the rows, observed rate, mean predicted probability, calibration-in-the-large, sensitivity, specificity and positive rate at the threshold, borderline rows, and ratios against a reference group.
+ * @customfunction GROUPS GROUPS
+ * @helpurl https://localhost:3000/help.html#groups
+ * @param labels Actual classes (two), one per row.
+ * @param probabilities_or_predictors Predicted probability of the positive class per row (as ODDS.PROB writes it); with the option fit=true, the predictor columns instead.
+ * @param group The column that defines the groups, one value per row; it may or may not be a predictor.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "threshold=0.3; versus=North" or "fit=true".
+ * @returns One row per group with its figures and ratios, then the settings and notes.
+ */
+export function groups(labels: any[][], probabilities_or_predictors: any[][], group: any[][], options?: any[][]): any[][] {
+  return runCell(F.GROUPS.doing, () => F.GROUPS.adapter(labels, probabilities_or_predictors, group, options ?? null));
+}

@@ -48,6 +48,10 @@ export interface MetricInputs {
   rowsSkipped: number;
   /** 1-based row of the labels range (as selected) of each used row. */
   sheetRows: Int32Array;
+  /** True when the ranges' first row was read as names (one decision for both). */
+  header: boolean;
+  /** Data rows of the labels range as selected (trailing blank rows included). */
+  dataRows: number;
 }
 
 /** Why a metric refuses an error cell (ERROR_VALUE_CELL). */
@@ -230,6 +234,8 @@ export function readMetricInputs(
     rowsUsed: m,
     rowsSkipped: n - m,
     sheetRows,
+    header: labelTable.header,
+    dataRows: n,
   };
 }
 

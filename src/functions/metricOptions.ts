@@ -3,7 +3,7 @@
  * (the one parser). Only the options a metric really uses are accepted: anything else is reported as
  * an unknown option rather than silently ignored.
  */
-import { FIT_OPTIONS, OPT_HEADERS, OPT_LEVEL, OPT_POSITIVE, OPT_THRESHOLD, type ChoiceSpec, type NumberSpec } from "./options";
+import { FIT_OPTIONS, OPT_HEADERS, OPT_LEVEL, OPT_POSITIVE, OPT_THRESHOLD, type BooleanSpec, type ChoiceSpec, type NumberSpec, type TextSpec } from "./options";
 
 /** Number of calibration groups (the Hosmer-Lemeshow "deciles of risk" by default). */
 export const OPT_GROUPS = {
@@ -72,3 +72,35 @@ export const OPT_INDICATORS = {
  * serve both; the threshold is accepted as FIT accepts it and changes nothing), plus `indicators`.
  */
 export const EFFECTS_OPTIONS = [...FIT_OPTIONS, OPT_INDICATORS] as const;
+
+/** ODDS.GROUPS: half-width of the borderline band, as the pane's review (DEFAULT_REVIEW.band). */
+export const OPT_BAND = {
+  name: "band",
+  type: "number",
+  min: 0,
+  max: 1,
+  default: 0.1,
+  help: "Half-width of the borderline band: a row is borderline when its probability is within this of the threshold.",
+} as const satisfies NumberSpec;
+
+/** ODDS.GROUPS: the group the others are compared with. */
+export const OPT_VERSUS = {
+  name: "versus",
+  type: "text",
+  default: null,
+  help: "The group the ratios compare every group with (default: the group with the most rows).",
+} as const satisfies TextSpec;
+
+/** ODDS.GROUPS: the second range holds predictors, and the model is fitted. */
+export const OPT_FIT_MODE = {
+  name: "fit",
+  type: "boolean",
+  default: false,
+  help: "TRUE: the second range holds the predictor columns; the model is fitted as ODDS.FIT fits it (its options apply) and borderline rows also include rows whose probability interval holds the threshold.",
+} as const satisfies BooleanSpec;
+
+/** The options ODDS.GROUPS takes without fit=true. */
+export const GROUPS_PROBABILITY_MODE_OPTIONS = [OPT_POSITIVE, OPT_THRESHOLD, OPT_HEADERS, OPT_BAND, OPT_VERSUS, OPT_FIT_MODE] as const;
+
+/** Every option of ODDS.GROUPS: FIT's (used with fit=true only, else refused) and its own. */
+export const GROUPS_OPTIONS = [...FIT_OPTIONS, OPT_BAND, OPT_VERSUS, OPT_FIT_MODE] as const;

@@ -20,6 +20,7 @@ import { aucCell } from "./aucCell";
 import { cutoffCell } from "./cutoffCell";
 import { foldsCell } from "./foldsCell";
 import { effectsCell } from "./effectsCell";
+import { groupsCell } from "./groupsCell";
 import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
@@ -103,6 +104,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("FOLDS", "cross-validating the model", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
     foldsCell(l, p, o ?? null),
+  ),
+  spec("GROUPS", "comparing groups", [req("labels"), req("probabilities_or_predictors"), req("group"), opt("options")], (l, p, g, o) =>
+    groupsCell(l, p, g, o ?? null),
   ),
 ];
 
