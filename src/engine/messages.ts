@@ -435,6 +435,104 @@ export const ENGINE_MESSAGES = {
     template:
       "Bias reduction (firth=true) on {rows} rows x {terms} terms would take too long in one call: its work grows with rows x terms x terms ({work} here, the limit is {limit}; for example {example}). Use fewer terms or rows, or a penalty (e.g. penalty=0.1) instead of firth=true.",
   },
+  // ---- cross-validation and held-out checks -----------------------------------------------------
+  CV_CLASS_TOO_SMALL: {
+    cellError: "#VALUE!",
+    title: "Class too small for the folds",
+    template:
+      "The class \"{label}\" has {count} {count|row|rows} in the fit, fewer than the {folds} folds asked for: every fold must hold each class. Use at most {count} folds (folds={count}), or gather more rows of that class.",
+  },
+  CV_BAD_ASSIGNMENT: {
+    cellError: "#VALUE!",
+    title: "Invalid fold assignment",
+    template: "The fold assignment cannot be used: {detail}. Number the folds 1, 2, ... and give every fold's training rows each class.",
+  },
+  CV_GROUPED_COUNTS: {
+    cellError: "#VALUE!",
+    title: "Grouped counts cannot be split into folds",
+    template:
+      "Cross-validation and held-out checks hold out whole rows of single cases; with grouped counts (trials) a row holds many cases. Give one row per case (a label per row) instead.",
+  },
+  CV_TOO_COSTLY: {
+    cellError: "#VALUE!",
+    title: "Cross-validation too large",
+    template:
+      "This cross-validation needs {fits} fits of {rows} rows x {parameters} coefficients (about {work} work units), more than {limit} {where}. Use fewer folds or penalties, fewer rows or predictor columns{hint}.",
+  },
+  CV_FOLD_FAILED: {
+    cellError: "#N/A",
+    title: "A fold gave no usable fit",
+    template: "Fold {fold} of {folds}{penalty} gave no usable fit: {reason}",
+  },
+  CV_FOLD_UNSCORED: {
+    cellError: "#N/A",
+    title: "No held-out row of a fold could be scored",
+    template:
+      "No held-out row of fold {fold} of {folds} could be scored by the fit on the other folds (row {row}: {reason}). Use fewer folds, or pool rare categories (pool=...).",
+  },
+  CV_ROWS_UNSCORED: {
+    cellError: "#N/A",
+    title: "Held-out rows without a probability",
+    template:
+      "{count} held-out {count|row|rows} got no probability from the fit on the other rows and {count|is|are} left out of the held-out metrics (for example row {row}: {reason}).",
+  },
+  CV_PENALTY_FAILED: {
+    cellError: "#N/A",
+    title: "Penalties left out of the path",
+    template: "{count} {count|penalty|penalties} of the path gave no usable fit in some fold and {count|is|are} left out of the choice (penalty {penalty}: {reason})",
+  },
+  CV_NOT_CONVERGED: {
+    cellError: "#N/A",
+    title: "Some fold fits did not converge",
+    template: "{count} of {fits} fold {fits|fit|fits} did not converge (for example fold {fold}{penalty}); their held-out values are less reliable. A penalty usually helps.",
+  },
+  HOLDOUT_BAD_MARK: {
+    cellError: "#VALUE!",
+    title: "Unreadable training mark",
+    template:
+      "The {argument} value in row {row} (\"{value}\") is not a training mark. Use TRUE or 1 for a training row and FALSE or 0 for a held-out row; leave the cell blank to leave the row out.",
+  },
+  HOLDOUT_EMPTY_SIDE: {
+    cellError: "#VALUE!",
+    title: "No training or no held-out rows",
+    template: "{side} {note}Mark some rows for training and some as held out, or use a seeded split (holdout=0.3).",
+  },
+  HOLDOUT_CLASS_UNTRAINED: {
+    cellError: "#VALUE!",
+    title: "Held-out class absent from training",
+    template:
+      "The class \"{label}\" occurs in {count} held-out {count|row|rows} (for example row {row}) but in no training row, so the model cannot give it a probability. Move some of its rows into training.",
+  },
+  HOLDOUT_BOTH_SPLITS: {
+    cellError: "#VALUE!",
+    title: "Two ways of splitting",
+    template: "Both a split column and the holdout option ({value}) are given. Use one: the column marks the training rows, or holdout=share asks for a seeded split.",
+  },
+  // ---- marginal effects ------------------------------------------------------------------------
+  EFFECTS_TWO_CLASSES_ONLY: {
+    cellError: "#VALUE!",
+    title: "Marginal effects need two classes",
+    template:
+      "Marginal effects are computed for two-class models only, and the labels hold {count} classes. Turn the labels into two classes (e.g. one class against the rest) to see effects on that class's probability.",
+  },
+  EFFECTS_TOO_COSTLY: {
+    cellError: "#VALUE!",
+    title: "Marginal effects too costly here",
+    template:
+      "Marginal effects on {rows} rows x {terms} terms with {changes} discrete changes would take too long in one call: the work grows with rows x terms x changes ({work} here, the limit is {limit}). Use fewer rows or fewer text levels, or indicators=slope.",
+  },
+  EFFECTS_NO_STANDARD_ERRORS: {
+    cellError: "#N/A",
+    title: "Marginal effects without standard errors",
+    template:
+      "The fit has no covariance of its coefficients (a penalized fit), so the marginal effects are shown without standard errors, z, p or intervals.",
+  },
+  EFFECTS_NOT_CAUSAL: {
+    cellError: "#N/A",
+    title: "What marginal effects cannot show",
+    template:
+      "These are average changes in the fitted probability of {positive} over the {rows} {rows|row|rows} used: statistical associations of the model, not causes. They do not tell what would happen if a column were changed.",
+  },
   // ---- catch-all (#VALUE!) ---------------------------------------------------------------------
   INTERNAL: {
     cellError: "#VALUE!",

@@ -173,3 +173,16 @@ export function basis(data: any[][], recipe: any[][], training_data?: any[][]): 
 export function cutoff(labels: any[][], probabilities: any[][], options?: any[][]): any[][] {
   return runCell(F.CUTOFF.doing, () => F.CUTOFF.adapter(labels, probabilities, options ?? null));
 }
+
+/**
+ * Average marginal effects of a two-class fit on the positive-class probability: the slope dP/dx for number columns, the change from 0 to 1 for 0/1 columns and from the reference level for text levels, with delta-method standard errors, z, p and interval.
+ * @customfunction EFFECTS EFFECTS
+ * @helpurl https://localhost:3000/help.html#effects
+ * @param labels Label column (two classes): one class per row, with or without a header.
+ * @param predictors Predictor columns, one row per label; a header row names the terms. Text columns become indicator terms.
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "positive=yes; indicators=slope".
+ * @returns One row per term with the effect, standard error, z, p and interval, then notes.
+ */
+export function effects(labels: any[][], predictors: any[][], options?: any[][]): any[][] {
+  return runCell(F.EFFECTS.doing, () => F.EFFECTS.adapter(labels, predictors, options ?? null));
+}

@@ -3,7 +3,7 @@
  * (the one parser). Only the options a metric really uses are accepted: anything else is reported as
  * an unknown option rather than silently ignored.
  */
-import { OPT_HEADERS, OPT_LEVEL, OPT_POSITIVE, OPT_THRESHOLD, type ChoiceSpec, type NumberSpec } from "../shared/options";
+import { FIT_OPTIONS, OPT_HEADERS, OPT_LEVEL, OPT_POSITIVE, OPT_THRESHOLD, type ChoiceSpec, type NumberSpec } from "../shared/options";
 
 /** Number of calibration groups (the Hosmer-Lemeshow "deciles of risk" by default). */
 export const OPT_GROUPS = {
@@ -57,3 +57,18 @@ export const OPT_BUDGET = {
   help: "Review budget: the lowest threshold that flags at most this many rows (tied rows stay together).",
 } as const satisfies NumberSpec;
 export const CUTOFF_OPTIONS = [OPT_POSITIVE, OPT_COST, OPT_SENSITIVITY, OPT_BUDGET, OPT_HEADERS] as const;
+
+/** ODDS.EFFECTS: how 0/1 columns and the indicator columns of text predictors are treated. */
+export const OPT_INDICATORS = {
+  name: "indicators",
+  type: "choice",
+  choices: ["change", "slope"],
+  default: "change",
+  help: "change: 0/1 columns and text levels show the change in probability from 0 to 1 (from the reference level); slope: the derivative, as for any number column.",
+} as const satisfies ChoiceSpec;
+
+/**
+ * ODDS.EFFECTS takes the fit options (so it shares ODDS.FIT's cached fit, and one options cell can
+ * serve both; the threshold is accepted as FIT accepts it and changes nothing), plus `indicators`.
+ */
+export const EFFECTS_OPTIONS = [...FIT_OPTIONS, OPT_INDICATORS] as const;

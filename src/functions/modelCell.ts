@@ -17,7 +17,7 @@ import { required } from "./required";
 export function fittedModel(
   labels: CellValue[][] | null,
   predictors: CellValue[][] | null,
-  options: ModelCallOptions,
+  options: Pick<ModelCallOptions, "model">,
   extraOutputCells: number,
   extraInputs: { argument: string; cells: unknown }[] = [],
 ): TrainedModel {

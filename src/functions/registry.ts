@@ -18,6 +18,7 @@ import { reportCell } from "./reportCell";
 import { logLossCell } from "./logLossCell";
 import { aucCell } from "./aucCell";
 import { cutoffCell } from "./cutoffCell";
+import { effectsCell } from "./effectsCell";
 import { confusionCell } from "./confusionCell";
 import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
@@ -91,6 +92,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("CUTOFF", "choosing the threshold", [req("labels"), req("probabilities"), opt("options")], (l, p, o) =>
     cutoffCell(l, p, o ?? null),
+  ),
+  spec("EFFECTS", "computing marginal effects", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
+    effectsCell(l, p, o ?? null),
   ),
 ];
 

@@ -19,18 +19,12 @@
  *   code and cell error), with the row counted as in the range (header = row 1).
  */
 import { checkOutputSize, SHEET_COLUMNS } from "./sheetLimits";
-import { errorLiteral, estimateRecipeColumns, applyRecipe, fitRecipe, parseRecipe, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
+import { errorLiteral, estimateRecipeColumns, tableBasisColumns, applyRecipe, fitRecipe, parseRecipe, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
 import { problem } from "./messages";
 import { spill } from "./cellOutput";
 
-/** The columns of a parsed table in the form the basis transforms read (blank = null). */
-export function tableToBasisColumns(table: Table): BasisColumn[] {
-  return table.columns.map((c) => {
-    const values: (number | string | null)[] = new Array(table.rows);
-    for (let i = 0; i < table.rows; i++) values[i] = c.missing[i] ? null : c.values[i];
-    return { name: c.name, values };
-  });
-}
+/** The columns of a parsed table in the form the basis transforms read (blank = null): the engine's. */
+export const tableToBasisColumns = tableBasisColumns;
 
 /** The recipe text from a cell value or a range of cells (non-blank cells joined with "; "). */
 export function recipeText(recipe: string | CellValue | CellValue[][]): string {

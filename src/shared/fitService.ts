@@ -27,21 +27,19 @@ export interface ModelCallOptions {
   parsed: FitCellOptions;
 }
 
-/** What a fit is made from: the labels and predictors cells (header rows included) and the options. */
+/** What a fit is made from: the labels and predictors cells (header rows included) and the fit options. */
 export interface FitRequest {
   labels: CellValue[][];
   predictors: CellValue[][];
-  options: ModelCallOptions;
+  options: Pick<ModelCallOptions, "model">;
 }
 
 /**
- * Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"; the
- * pane passes its own name). The pane writes the same options text into its formulas, so both parse
- * to the same fit options and the same cache key.
+ * The fit options of parsed fitting-function options: one builder, so every function over the same
+ * ranges and settings computes the same cache key (ODDS.EFFECTS parses a schema of its own).
  */
-export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
-  const o = parseOptions(fn, FIT_OPTIONS, options);
-  const model: ModelOptions = {
+export function modelOptionsOf(o: Omit<FitCellOptions, "threshold">): ModelOptions {
+  return {
     headers: o.headers,
     positive: o.positive,
     reference: o.reference,
@@ -55,7 +53,16 @@ export function readModelOptions(fn: string, options: CellValue[][] | null): Mod
     minLevelCount: o.pool,
     form: o.form,
   };
-  return { model, threshold: o.threshold, headers: o.headers, parsed: o };
+}
+
+/**
+ * Parse the options argument of a fitting function (`fn` as the user sees it, e.g. "ODDS.FIT"; the
+ * pane passes its own name). The pane writes the same options text into its formulas, so both parse
+ * to the same fit options and the same cache key.
+ */
+export function readModelOptions(fn: string, options: CellValue[][] | null): ModelCallOptions {
+  const o = parseOptions(fn, FIT_OPTIONS, options);
+  return { model: modelOptionsOf(o), threshold: o.threshold, headers: o.headers, parsed: o };
 }
 
 /** The cache shared by every fitting function and the task pane. */

@@ -19,11 +19,11 @@
  */
 import { readAlignedRanges, type RangeArg } from "../data/alignRanges";
 import { buildDesign, encodeRows } from "../data/design";
-import { validateColumns } from "../data/validate";
+import { validateColumns, type ValidColumns } from "../data/validate";
 import { predictBinary } from "../predictBinary";
 import { predictMulticlass } from "../predictMulticlass";
 import type { CellValue, DesignMatrix } from "../types";
-import { fitClasses, fitOptions } from "./fitClasses";
+import { fitClasses, fitOptions, gather } from "./fitClasses";
 import { affordableIntervals, completeDiagnostics } from "./fitNotes";
 import { expand, scoringOffsets } from "./scoring";
 import { encodeTrainingRows } from "./trainingRows";
@@ -44,6 +44,17 @@ function fitRanges(labels: CellValue[][], predictors: CellValue[][], options: Mo
   const extras = EXTRA_RANGES.filter((key) => options[key] != null);
   for (const key of extras) ranges.push({ argument: key, cells: options[key] as CellValue[][] });
   return { ranges, extras };
+}
+
+/** Per design row: case weight x trials, or null when neither is given (see TrainedModel). */
+function observationWeights(columns: ValidColumns, inputRows: Int32Array): Float64Array | null {
+  if (!columns.weights && !columns.trials) return null;
+  const w = columns.weights ? gather(columns.weights.values, inputRows) : new Float64Array(inputRows.length).fill(1);
+  if (columns.trials) {
+    const t = gather(columns.trials.values, inputRows);
+    for (let r = 0; r < w.length; r++) w[r] *= t[r];
+  }
+  return w;
 }
 
 /**
@@ -91,6 +102,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
     design: built.design,
     trainingRows: encodeTrainingRows(built.encoding, built.design, predTable, read.ownRows[1], predictors, read.rows),
     trainingOffset: columns.offset ? columns.offset.values : null,
+    observationWeights: observationWeights(columns, built.inputRows),
     usesOffset: columns.offset !== null,
     threshold: options.threshold ?? 0.5,
   };

@@ -82,6 +82,12 @@ export interface TrainedModel {
   trainingRows: EncodedRows;
   /** Offset per training data row (NaN where missing), or null without an offset. */
   trainingOffset: Float64Array | null;
+  /**
+   * Per fitted design row: the observations it stands for (case weight, times trials for grouped
+   * counts), or null when every row is one observation. Averages over the fitted rows (marginal
+   * effects) weight by it.
+   */
+  observationWeights: Float64Array | null;
   /** True when the model was fitted with an offset (scoring new rows then needs one). */
   usesOffset: boolean;
   /** Default threshold for scoring. */

@@ -22,9 +22,9 @@ describe("cell-function registry", () => {
     expect(findCellFunction("SUM")).toBeUndefined();
   });
 
-  test("lists twelve functions, each with its required parameters before its optional ones", () => {
+  test("lists thirteen functions, each with its required parameters before its optional ones", () => {
     expect(CELL_FUNCTIONS.map((f) => f.name)).toEqual([
-      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF",
+      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS",
     ]);
     for (const f of CELL_FUNCTIONS) {
       const firstOptional = f.parameters.findIndex((p) => p.optional);
