@@ -16,7 +16,7 @@
 import { performance } from "perf_hooks";
 import { FIRTH_WORK_LIMIT } from "../src/engine/data/fitWork";
 import { evaluateCellFunction } from "../src/functions/registry";
-import { modelCache } from "../src/functions/modelCell";
+import { modelCache } from "../src/shared/fitService";
 import type { CellValue } from "../src/engine/types";
 
 export interface FirthLimitInfo {

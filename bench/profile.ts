@@ -44,7 +44,7 @@ function workload(name: string): () => unknown {
     const labels: CellValue[][] = [["y"], ...Array.from(ds.y!, (v) => [v])];
     const predictors: CellValue[][] = [ds.meta.names, ...Array.from({ length: ds.meta.rows }, (_, i) => ds.columns.map((c) => c[i]))];
     const reg = require(path.join(ROOT, "src/functions/registry")) as { CELL_FUNCTIONS: { name: string; adapter: (...a: unknown[]) => unknown }[] };
-    const mc = require(path.join(ROOT, "src/functions/modelCell")) as { modelCache: () => { clear(): void } };
+    const mc = require(path.join(ROOT, "src/shared/fitService")) as { modelCache: () => { clear(): void } };
     const fit = reg.CELL_FUNCTIONS.find((f) => f.name === "FIT")!.adapter;
     return () => {
       mc.modelCache().clear();

@@ -488,7 +488,7 @@ function cellCase(ds: LoadedDataSet, p: RunPolicy): CellResultInfo {
   let clearCache: () => void = () => undefined;
   try {
     // eslint-disable-next-line @typescript-eslint/no-require-imports
-    const mc = require(path.join(ROOT, "src/functions/modelCell")) as { modelCache?: () => { clear(): void } };
+    const mc = require(path.join(ROOT, "src/shared/fitService")) as { modelCache?: () => { clear(): void } };
     if (mc.modelCache) clearCache = () => mc.modelCache!().clear();
   } catch {
     /* no cache module: nothing to clear */

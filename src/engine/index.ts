@@ -24,7 +24,7 @@ export { accuracy } from "./metrics/accuracy";
 export { brierScore } from "./metrics/brierScore";
 export { calibrationSlope } from "./metrics/calibrationSlope";
 export type { CalibrationSlopeResult } from "./metrics/calibrationSlope";
-export { calibrationTable } from "./metrics/calibrationTable";
+export { CALIBRATION_GROUPING_RULE, calibrationTable } from "./metrics/calibrationTable";
 export type { CalibrationTable } from "./metrics/calibrationTable";
 export { confusionCounts } from "./metrics/confusionCounts";
 export type { ConfusionCounts } from "./metrics/confusionCounts";

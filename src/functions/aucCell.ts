@@ -4,11 +4,11 @@
  * rocAuc). Two classes only.
  */
 import { rocAuc, type CellValue } from "../engine";
-import { levelLabel, spill } from "./cellOutput";
+import { levelLabel, spill } from "../shared/cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { AUC_OPTIONS } from "./metricOptions";
-import { parseOptions } from "./options";
-import { checkPayload } from "./payload";
+import { parseOptions } from "../shared/options";
+import { checkPayload } from "../shared/payload";
 import { required } from "./required";
 
 /**

@@ -1,10 +1,10 @@
 /**
- * Registry entry of ODDS.BASIS: the payload guard, then src/functions/basisCell.ts (the basis
- * engineer's adapter, which owns the recipe handling).
+ * Registry entry of ODDS.BASIS: the payload guard, then src/shared/basisColumns.ts (the recipe
+ * handling, shared with the task pane's basis builder).
  */
 import type { CellValue } from "../engine";
-import { basisCell } from "./basisCell";
-import { checkPayload } from "./payload";
+import { buildBasisColumns } from "../shared/basisColumns";
+import { checkPayload } from "../shared/payload";
 import { required } from "./required";
 
 /** Output cells of a basis call, roughly: each data row gets a handful of new columns. */
@@ -22,5 +22,5 @@ export function basisCellGuarded(data: CellValue[][] | null, recipe: CellValue[]
     ],
     d.length * BASIS_COLUMNS_ESTIMATE,
   );
-  return basisCell(d, r, training);
+  return buildBasisColumns(d, r, training);
 }

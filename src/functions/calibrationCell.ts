@@ -6,11 +6,11 @@
  */
 import { calibrationTable, hosmerLemeshow, type HosmerLemeshowResult, type CellValue } from "../engine";
 import { OddsmithError } from "../shared/messages";
-import { spill } from "./cellOutput";
+import { spill } from "../shared/cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CALIBRATION_OPTIONS } from "./metricOptions";
-import { parseOptions } from "./options";
-import { checkPayload } from "./payload";
+import { parseOptions } from "../shared/options";
+import { checkPayload } from "../shared/payload";
 import { required } from "./required";
 
 /** The ODDS.CALIBRATION adapter. */

@@ -7,11 +7,11 @@
  */
 import { confusionCounts, confusionMatrix, type CellValue } from "../engine";
 import { problem } from "../shared/messages";
-import { spill } from "./cellOutput";
+import { spill } from "../shared/cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CONFUSION_OPTIONS } from "./metricOptions";
-import { OPT_THRESHOLD, parseOptions } from "./options";
-import { checkPayload } from "./payload";
+import { OPT_THRESHOLD, parseOptions } from "../shared/options";
+import { checkPayload } from "../shared/payload";
 import { required } from "./required";
 
 const CORNER = "actual \\ predicted";

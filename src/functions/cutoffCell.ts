@@ -6,11 +6,11 @@
  */
 import { chooseThreshold, type CellValue, type ThresholdRule } from "../engine";
 import { problem } from "../shared/messages";
-import { spill } from "./cellOutput";
+import { spill } from "../shared/cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { CUTOFF_OPTIONS } from "./metricOptions";
-import { parseOptions } from "./options";
-import { checkPayload } from "./payload";
+import { parseOptions } from "../shared/options";
+import { checkPayload } from "../shared/payload";
 import { required } from "./required";
 
 /** The one rule the options ask for; two rules at once are refused. */

@@ -16,10 +16,11 @@
  */
 import { averageMarginalEffects, type CellValue, type MarginalEffect } from "../engine";
 import { formatMessage, problem } from "../shared/messages";
-import { levelLabel, spill } from "./cellOutput";
+import { levelLabel, spill } from "../shared/cellOutput";
 import { EFFECTS_OPTIONS } from "./metricOptions";
-import { fittedModel, modelOptionsOf, requireUsableFit } from "./modelCell";
-import { parseOptions } from "./options";
+import { modelOptionsOf } from "../shared/fitService";
+import { parseOptions } from "../shared/options";
+import { fittedModel, requireUsableFit } from "./modelCell";
 
 /** How a term's effect reads, for the "effect" column. */
 function effectLabel(e: MarginalEffect): string {

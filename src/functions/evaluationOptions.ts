@@ -30,7 +30,7 @@ import {
   type ChoiceSpec,
   type NumberSpec,
   type TextSpec,
-} from "./options";
+} from "../shared/options";
 
 /** The model options of the evaluation functions (ODDS.FIT's, without the interval options). */
 const MODEL_OPTIONS = [OPT_PENALTY, OPT_SCALE, OPT_FIRTH, OPT_POSITIVE, OPT_REFERENCE, OPT_THRESHOLD, OPT_INTERCEPT, OPT_HEADERS, OPT_BASELINE, OPT_POOL, OPT_FORM] as const;

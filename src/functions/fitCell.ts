@@ -14,8 +14,9 @@
  * - A fit without usable estimates (separation without a remedy, divergence) is #N/A with the reason.
  */
 import type { CoefficientRow, ModelFit, CellValue } from "../engine";
-import { levelLabel, spill } from "./cellOutput";
-import { fittedModel, readModelOptions, requireUsableFit } from "./modelCell";
+import { levelLabel, spill } from "../shared/cellOutput";
+import { readModelOptions } from "../shared/fitService";
+import { fittedModel, requireUsableFit } from "./modelCell";
 
 /** Header row of the coefficient table of `fit`. */
 export function coefficientHeader(fit: ModelFit): string[] {

@@ -17,15 +17,15 @@
  */
 import { CELL_BUDGET, crossValidate, type CellValue, type CrossValidationResult, type PenaltyScores } from "../engine";
 import { formatMessage, problem } from "../shared/messages";
-import { spill } from "./cellOutput";
+import { spill } from "../shared/cellOutput";
 import { FOLDS_OPTIONS, readPenalties } from "./evaluationOptions";
 import { scoreLabels } from "./scoreLabels";
-import { modelOptionsOf } from "./modelCell";
-import { parseOptions, type ParsedOptions } from "./options";
-import { checkPayload } from "./payload";
+import { modelOptionsOf } from "../shared/fitService";
+import { parseOptions, type ParsedOptions } from "../shared/options";
+import { checkPayload } from "../shared/payload";
 import { distinctLabels } from "./predictCells";
 import { required } from "./required";
-import { checkOutputSize } from "./sheetLimits";
+import { checkOutputSize } from "../shared/sheetLimits";
 
 type FoldsOptions = ParsedOptions<typeof FOLDS_OPTIONS>;
 

@@ -36,11 +36,12 @@ import {
 } from "../engine";
 import { problem } from "../shared/messages";
 import { ADDIN_VERSION } from "../shared/addinVersion";
-import { recipeText, tableToBasisColumns } from "./basisCell";
-import { spill } from "./cellOutput";
-import { fittedModel, modelCallOptions, requireUsableFit } from "./modelCell";
-import { FIT_OPTIONS, parseOptions, type TextSpec } from "./options";
-import { checkOutputSize } from "./sheetLimits";
+import { recipeText, tableToBasisColumns } from "../shared/basisColumns";
+import { spill } from "../shared/cellOutput";
+import { modelCallOptions } from "../shared/fitService";
+import { fittedModel, requireUsableFit } from "./modelCell";
+import { FIT_OPTIONS, parseOptions, type TextSpec } from "../shared/options";
+import { checkOutputSize } from "../shared/sheetLimits";
 
 function placeOption<const N extends string>(name: N, help: string): { name: N; type: "text"; default: null; help: string } {
   return { name, type: "text", default: null, help } satisfies TextSpec;

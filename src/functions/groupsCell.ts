@@ -27,12 +27,13 @@ import {
   type Table,
 } from "../engine";
 import { formatMessage, problem } from "../shared/messages";
-import { spill } from "./cellOutput";
+import { spill } from "../shared/cellOutput";
 import { readMetricInputs } from "./metricInputs";
 import { GROUPS_OPTIONS, GROUPS_PROBABILITY_MODE_OPTIONS } from "./metricOptions";
-import { fittedModel, modelOptionsOf, requireUsableFit } from "./modelCell";
-import { FIT_OPTIONS, parseOptions, type ParsedOptions } from "./options";
-import { checkPayload } from "./payload";
+import { modelOptionsOf } from "../shared/fitService";
+import { fittedModel, requireUsableFit } from "./modelCell";
+import { FIT_OPTIONS, parseOptions, type ParsedOptions } from "../shared/options";
+import { checkPayload } from "../shared/payload";
 import { required } from "./required";
 
 type GroupsOptions = ParsedOptions<typeof GROUPS_OPTIONS>;

@@ -5,11 +5,11 @@
  * [1e-15, 1 - 1e-15] by the engine so one overconfident row gives a large finite loss, not Infinity.
  */
 import { logLoss, multiclassLogLoss, type CellValue } from "../engine";
-import { spill } from "./cellOutput";
+import { spill } from "../shared/cellOutput";
 import { readMetricInputs, withSheetRows } from "./metricInputs";
 import { LOGLOSS_OPTIONS } from "./metricOptions";
-import { parseOptions } from "./options";
-import { checkPayload } from "./payload";
+import { parseOptions } from "../shared/options";
+import { checkPayload } from "../shared/payload";
 import { required } from "./required";
 
 /**

@@ -3,7 +3,7 @@
  * (the one parser). Only the options a metric really uses are accepted: anything else is reported as
  * an unknown option rather than silently ignored.
  */
-import { FIT_OPTIONS, OPT_HEADERS, OPT_LEVEL, OPT_POSITIVE, OPT_THRESHOLD, type BooleanSpec, type ChoiceSpec, type NumberSpec, type TextSpec } from "./options";
+import { FIT_OPTIONS, OPT_HEADERS, OPT_LEVEL, OPT_POSITIVE, OPT_THRESHOLD, type BooleanSpec, type ChoiceSpec, type NumberSpec, type TextSpec } from "../shared/options";
 
 /** Number of calibration groups (the Hosmer-Lemeshow "deciles of risk" by default). */
 export const OPT_GROUPS = {

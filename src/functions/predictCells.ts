@@ -15,10 +15,11 @@
  * - threshold (option) sets the two-class decision for CLASS and MARGIN; it never refits.
  */
 import { isBlankCell, MAX_CLASSES, scoreRows, type RowScores, type CellValue } from "../engine";
-import { checkOutputSize } from "./sheetLimits";
-import { spill } from "./cellOutput";
-import { fittedModel, readModelOptions, refuseThresholdForSeveralClasses, requireUsableFit } from "./modelCell";
-import { checkPayload } from "./payload";
+import { checkOutputSize } from "../shared/sheetLimits";
+import { spill } from "../shared/cellOutput";
+import { readModelOptions } from "../shared/fitService";
+import { fittedModel, refuseThresholdForSeveralClasses, requireUsableFit } from "./modelCell";
+import { checkPayload } from "../shared/payload";
 
 type Output = "prob" | "class" | "margin";
 

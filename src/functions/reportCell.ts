@@ -14,8 +14,9 @@
  * - Diagnostics are listed last, one row each: "problem" (no estimate), "warning" or "note".
  */
 import { brierScore, accuracy, logLoss, multiclassAccuracy, multiclassBrierScore, multiclassLogLoss, rocAuc, scoreRows, type TrainedModel, type CellValue } from "../engine";
-import { spill } from "./cellOutput";
-import { fitFailure, fittedModel, readModelOptions, refuseThresholdForSeveralClasses } from "./modelCell";
+import { spill } from "../shared/cellOutput";
+import { fitFailure, readModelOptions } from "../shared/fitService";
+import { fittedModel, refuseThresholdForSeveralClasses } from "./modelCell";
 
 const SEVERITY_WORD = { error: "problem", warning: "warning", note: "note" } as const;
 

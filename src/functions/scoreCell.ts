@@ -20,9 +20,9 @@
  */
 import { errorLiteral, INTERCEPT_TERM, sigmoid, isBlankCell, parseNumericText, readTable, type TableColumn, type CellValue } from "../engine";
 import { listNames, problem } from "../shared/messages";
-import { spill } from "./cellOutput";
-import { checkPayload } from "./payload";
-import { checkOutputSize } from "./sheetLimits";
+import { spill } from "../shared/cellOutput";
+import { checkPayload } from "../shared/payload";
+import { checkOutputSize } from "../shared/sheetLimits";
 
 /** A model read back from a coefficient table. */
 export interface SheetModel {

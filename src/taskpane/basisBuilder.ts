@@ -11,7 +11,7 @@
  * - On a new sheet = column A of a new sheet, on the same row as the block's header, for the same reason.
  * - Never overwrite: the whole target rectangle must be empty (port.isEmpty) unless the caller
  *   confirms; a formula's spill area counts as the target.
- * - Values mode writes what ODDS.BASIS would return (the same adapter computes both).
+ * - Values mode writes what ODDS.BASIS would return (src/shared/basisColumns.ts computes both).
  * - Warning rule: fewer than 10 data rows per generated column (MIN_ROWS_PER_COLUMN).
  * - Undo = clear the written rectangle; a sheet the builder added is named so the user can delete it.
  * - Following the table (followTableRows): when the table's rows change, a generated formula is
@@ -22,7 +22,7 @@
  */
 import { applyRecipe, fitRecipe, parseRecipe, TRANSFORM_NAMES, readTable, sourcesOf, type RecipeState, type BasisColumn, type Table, type CellValue } from "../engine";
 import { codeOf, formatMessage, listNames, OddsmithError, problem, type MessageCode } from "../shared/messages";
-import { basisCell, tableToBasisColumns } from "../functions/basisCell";
+import { buildBasisColumns, tableToBasisColumns } from "../shared/basisColumns";
 import { absoluteReference, cellAddress, parseAddress, rectAddress, type CellRect } from "./a1";
 import type { DerivedColumns } from "./plotGeometry";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "./port";
@@ -344,7 +344,7 @@ export function planWrite(source: BasisSource, recipe: string, options: WriteOpt
   const rect: CellRect = { top, left, bottom: top + height - 1, right: left + width - 1 };
   const formula = options.mode === "formula" ? basisFormula(source, recipe) : null;
   const values: CellValue[][] =
-    formula !== null ? [[formula]] : basisCell(blockRows(source), recipe, null);
+    formula !== null ? [[formula]] : buildBasisColumns(blockRows(source), recipe, null);
   return {
     sheet: options.place === "beside" ? source.block.sheet : options.sheetName ?? BASIS_SHEET,
     newSheet: options.place === "newSheet",
@@ -453,7 +453,7 @@ export function basisDerived(recipe: string, training: CellValue[][]): DerivedCo
   return {
     outputs: fitRecipe(parseRecipe(recipe), columns, "data").names,
     sources: recipeSources(recipe, columns),
-    compute: (rows) => basisCell(rows, recipe, training),
+    compute: (rows) => buildBasisColumns(rows, recipe, training),
   };
 }
 
@@ -540,7 +540,7 @@ export async function followTableRows(port: WorkbookPort, basis: GeneratedBasis,
   let result: (number | string)[][];
   try {
     // What the rewritten formula will return: its shape decides the cells it covers.
-    result = basisCell(grown.values, basis.recipe, null);
+    result = buildBasisColumns(grown.values, basis.recipe, null);
   } catch (e) {
     const reason = e instanceof OddsmithError ? e.message : formatMessage("INTERNAL", { doing: "computing the basis columns" });
     return { status: "failed", basis: { ...basis, note: note("BASIS_FOLLOW_FAILED", { ...where, reason }) } };

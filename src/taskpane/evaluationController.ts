@@ -11,7 +11,7 @@
  */
 import { calibrationSlope, calibrationTable, confusionCounts, readLabels, rocAuc, rocCurve, type CalibrationSlopeResult, type CalibrationTable, type ConfusionCounts, type RocAucResult, type RocCurve } from "../engine";
 import { OddsmithError, problem } from "../shared/messages";
-import { fitFailure } from "../functions/modelCell";
+import { fitFailure } from "../shared/fitService";
 import { modelInputs } from "./modelSetup";
 import type { PaneController } from "./paneController";
 import { CvCancelled, type CvJob, type CvOutcome, type CvProgress, type EvaluationRunner } from "./evaluationRunner";

@@ -4,7 +4,7 @@
  * cross-validation path. Plain DOM kept in step with an EvaluationController; every piece of
  * workbook text goes in with textContent. Mounted under the pane's other sections by pane.ts.
  */
-import { CALIBRATION_GROUPING_RULE } from "../engine/metrics/calibrationTable";
+import { CALIBRATION_GROUPING_RULE } from "../engine";
 import { renderCalibrationChart, renderPathChart, renderRocChart } from "./evaluationCharts";
 import {
   type EvaluationChange,

@@ -6,34 +6,31 @@
  * - WorkerFitRunner: the fit and the scoring run in a Web Worker (dist/fitworker.js). The pane stays
  *   responsive whatever the size, and Cancel ends the worker at once.
  * - InlineFitRunner: the fit runs on the pane's own thread after yielding to the page, through the
- *   fit cache shared with the cell functions (so the formulas the pane writes reuse the fit). Used for
- *   small tables, where a fit takes milliseconds, and where Web Workers are unavailable.
+ *   fit service shared with the cell functions (so the formulas the pane writes reuse the fit). Used
+ *   for small tables, where a fit takes milliseconds, and where Web Workers are unavailable.
  *
- * One fit for pane and cells: both runners leave the trained model in the shared fit cache
- * (sharedFitCache) under `modelCacheKey` of the job's cells and options, the key the ODDS formulas
- * the pane writes compute over the same ranges. The inline runner fits through the cache; the worker
- * (whose own globals are not the pane's) posts the model back, and the runner stores it. A trained
- * model is plain data (numbers, strings, typed arrays; no functions or class instances), so the
- * structured clone of postMessage carries it whole.
+ * One fit for pane and cells: both runners leave the trained model in the shared fit cache through
+ * the fit service (src/shared/fitService.ts) under the key the ODDS formulas the pane writes compute
+ * over the same ranges. The inline runner fits through the service (fitForPane); the worker (whose
+ * own globals are not the pane's) posts the model back, and the runner hands it to the service
+ * (shareFit). A trained model is plain data (numbers, strings, typed arrays; no functions or class
+ * instances), so the structured clone of postMessage carries it whole.
  * The pane's fits skip the cell functions' payload guard: the pane reads large tables in chunks.
  * `chooseRunner` picks the worker above INLINE_CELL_LIMIT input cells when workers exist.
  *
  * Both report progress in phases and honour an AbortSignal: a cancelled run rejects with FitCancelled
  * and its result is never used.
  */
-import { scoreRows, trainModel, type RowScores, type TrainedModel, type CellValue } from "../engine";
+import { scoreRows, trainModel, type RowScores, type TrainedModel } from "../engine";
 import { OddsmithError } from "../shared/messages";
-import { modelCache, modelCacheKey, type ModelCallOptions } from "../functions/modelCell";
-import { cellCount } from "../shared/fitCache";
+import { fitForPane, shareFit, type FitRequest } from "../shared/fitService";
 import { callWorker } from "./workerCall";
 
 /** Above this many input cells the pane fits in a worker (when the page can start one). */
 export const INLINE_CELL_LIMIT = 50_000;
 
-export interface FitJob {
-  labels: CellValue[][];
-  predictors: CellValue[][];
-  options: ModelCallOptions;
+/** A fit the pane runs: the fit service's request, and the threshold its rows are scored at. */
+export interface FitJob extends FitRequest {
   threshold: number;
 }
 
@@ -70,23 +67,6 @@ function checkAbort(signal: AbortSignal): void {
   if (signal.aborted) throw new FitCancelled();
 }
 
-/** The shared-cache key of a job's model: the key the pane's formulas compute over the same ranges. */
-export function jobCacheKey(job: FitJob): string {
-  return modelCacheKey(job.labels, job.predictors, job.options.model);
-}
-
-/** Train the job's model, or take it from the shared cache where a formula or an earlier fit left it. */
-export function fitThroughSharedCache(job: FitJob): TrainedModel {
-  return modelCache().getOrCreate(jobCacheKey(job), cellCount(job.labels, job.predictors), () =>
-    trainModel(job.labels, job.predictors, job.options.model),
-  );
-}
-
-/** Store a model trained elsewhere (in the worker) in the shared cache under the job's key. */
-export function shareModel(job: FitJob, model: TrainedModel): void {
-  modelCache().set(jobCacheKey(job), model, cellCount(job.labels, job.predictors));
-}
-
 /** Fits on the page's thread between yields, through the shared fit cache. */
 export class InlineFitRunner implements FitRunner {
   readonly kind = "inline" as const;
@@ -96,7 +76,7 @@ export class InlineFitRunner implements FitRunner {
     onPhase("fitting");
     await yieldToPage();
     checkAbort(signal);
-    const model = fitThroughSharedCache(job);
+    const model = fitForPane(job);
     onPhase("scoring");
     await yieldToPage();
     checkAbort(signal);
@@ -161,7 +141,7 @@ export class WorkerFitRunner implements FitRunner {
       }
       if ("outcome" in reply) {
         // The formulas the pane writes next compute this same key: they find the model, not refit.
-        shareModel(job, reply.outcome.model);
+        shareFit(job, reply.outcome.model);
         return { done: { ...reply.outcome, runner: "worker" as const } };
       }
       return { failed: new FitFailed(reply.failure.message, reply.failure.code) };

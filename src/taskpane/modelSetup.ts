@@ -3,12 +3,13 @@
  * options) turned into (1) the cells and options the pane fits with and (2) the ODDS formulas the
  * pane writes onto a results sheet, so the results in the workbook stay live.
  *
- * One options text serves both: the pane parses it with the same reader the cell functions use
- * (readModelOptions), so the pane's fit and the formulas' fit are the same fit.
+ * One options text serves both: the pane parses it with the fit service's reader, as the cell
+ * functions do (readModelOptions, src/shared/fitService.ts), so the pane's fit and the formulas' fit
+ * are the same fit.
  */
 import { type CellValue } from "../engine";
 import { problem } from "../shared/messages";
-import { readModelOptions, type ModelCallOptions } from "../functions/modelCell";
+import { readModelOptions, type ModelCallOptions } from "../shared/fitService";
 import { type CellRect, absoluteReference, cellAddress, quoteSheet } from "./a1";
 import { type DataTable, columnRect, pickColumns, tableReference } from "./dataTable";
 import type { WriteRequest } from "./port";

@@ -9,7 +9,7 @@
  */
 import { readLabels, scoreRows, type RowScores, type CellValue, type Diagnostic } from "../engine";
 import { OddsmithError, problem } from "../shared/messages";
-import { fitFailure } from "../functions/modelCell";
+import { fitFailure } from "../shared/fitService";
 import { rectAddress } from "./a1";
 import { basisDerived, followTableRows, type GeneratedBasis, sourceCellsChanged, staleValuesNote, type BuilderMessage } from "./basisBuilder";
 import { type DataTable, describeBlock, keyColumn, tableReference } from "./dataTable";

@@ -7,22 +7,10 @@
  * 4 Boundary plot.
  */
 import type { CellValue } from "../engine";
-import { parseAddress, rectAddress } from "./a1";
-import {
-  basisDerived,
-  type BasisSource,
-  executeWrite,
-  generatedBasis,
-  planWrite,
-  previewBasis,
-  readBasisSource,
-  undoWrite,
-  type UndoPlan,
-} from "./basisBuilder";
+import type { BasisChange, BasisController, ColumnPick } from "./basisController";
 import { CAUTIONS, CAUTIONS_TITLE } from "./cautions";
 import type { PaneController, PaneChange } from "./paneController";
 import { renderPlot } from "./plot";
-import type { WorkbookPort } from "./port";
 import { h, numberInput } from "./dom";
 
 function fmtNumber(v: number, digits = 3): string {
@@ -38,7 +26,7 @@ function cellText(v: CellValue): string {
 }
 
 /** Per-column transforms offered by the basis section, with their main setting. */
-const BASIS_CHOICES: { value: string; label: string; setting: string | null; initial: number }[] = [
+const BASIS_CHOICES: { value: ColumnPick["transform"]; label: string; setting: string | null; initial: number }[] = [
   { value: "", label: "as is", setting: null, initial: 0 },
   { value: "ns", label: "natural spline", setting: "df", initial: 3 },
   { value: "poly", label: "polynomial", setting: "degree", initial: 2 },
@@ -51,18 +39,17 @@ export class PaneView {
   readonly root: HTMLElement;
   private readonly el: Record<string, HTMLElement> = {};
   private plotAxes: { x: number; y: number } | null = null;
-  private basisSource: BasisSource | null = null;
-  private basisUndo: UndoPlan | null = null;
 
   constructor(
     container: HTMLElement,
     private readonly controller: PaneController,
-    private readonly port: WorkbookPort,
+    private readonly basis: BasisController,
   ) {
     this.root = h("div", { class: "osm-pane" });
     this.root.append(this.header(), this.cautions(), this.setupSection(), this.basisSection(), this.reviewSection(), this.plotSection());
     container.append(this.root);
     controller.subscribe((change) => this.update(change));
+    basis.subscribe((change) => this.updateBasis(change));
     this.renderStatus();
   }
 
@@ -152,12 +139,15 @@ export class PaneView {
   private basisSection(): HTMLElement {
     const columns = this.keep("basisColumns", h("div", { id: "osm-basis-columns", class: "osm-basis-columns" }));
     const recipe = this.keep("recipe", h("input", { id: "osm-recipe", type: "text", spellcheck: "false", placeholder: "firmness: ns(3)" }));
-    recipe.addEventListener("input", () => this.previewRecipe());
+    recipe.addEventListener("input", () => this.basis.preview((recipe as HTMLInputElement).value));
     const preview = this.keep("basisPreview", h("p", { id: "osm-basis-preview", class: "osm-note" }));
     const write = this.keep("basisWrite", h("button", { id: "osm-basis-write", type: "button" }, "Add beside the data"));
-    write.addEventListener("click", () => void this.writeBasis());
+    write.addEventListener("click", () => {
+      const mode = (this.byId("basisValues") as HTMLInputElement).checked ? "values" : "formula";
+      void this.basis.write((this.byId("recipe") as HTMLInputElement).value, mode);
+    });
     const undo = this.keep("basisUndo", h("button", { id: "osm-basis-undo", type: "button" }, "Remove generated columns"));
-    undo.addEventListener("click", () => void this.undoBasis());
+    undo.addEventListener("click", () => void this.basis.remove());
     const asValues = this.keep("basisValues", h("input", { id: "osm-basis-values", type: "checkbox" }));
     const notes = this.keep("basisNotes", h("ul", { id: "osm-basis-notes", class: "osm-basis-notes" }));
     return this.section(
@@ -257,7 +247,6 @@ export class PaneView {
         break;
       case "data":
         this.renderTableInfo();
-        void this.loadBasisSource();
         break;
       case "choice":
         this.renderChoice();
@@ -477,30 +466,31 @@ export class PaneView {
 
   // ---- basis columns -----------------------------------------------------------------------
 
-  private async loadBasisSource(): Promise<void> {
-    const d = this.controller.data;
+  private updateBasis(change: BasisChange): void {
+    if (change === "source") this.renderBasisColumns();
+    else {
+      const out = this.byId("basisPreview");
+      out.textContent = this.basis.line.text;
+      out.className = this.basis.line.error ? "osm-note is-error" : "osm-note";
+    }
+  }
+
+  /** One row per number column of the table: a transform and its main setting. */
+  private renderBasisColumns(): void {
     const box = this.byId("basisColumns");
-    if (!d) return;
-    // The source is the original table: the columns left of any generated block we added.
-    try {
-      const rect = parseAddress(d.block.address)!;
-      const right = this.basisUndo ? Math.min(rect.right, parseAddress(this.basisUndo.address)!.left - 2) : rect.right;
-      this.basisSource = await readBasisSource(this.port, { sheet: d.sheet, address: rectAddress({ ...rect, right }) });
-    } catch (e) {
-      this.basisSource = null;
-      box.replaceChildren(h("p", { class: "osm-note" }, e instanceof Error ? e.message : "The table cannot be used for basis columns."));
+    if (this.basis.sourceProblem !== null) {
+      box.replaceChildren(h("p", { class: "osm-note" }, this.basis.sourceProblem));
       return;
     }
-    const numeric = this.basisSource.summaries.filter((s) => s.kind === "number");
     box.replaceChildren(
-      ...numeric.map((s) => {
+      ...this.basis.numericColumns().map((s) => {
         const select = h("select", { "data-column": s.name, "aria-label": `Transform of ${s.name}` });
         for (const c of BASIS_CHOICES) select.append(h("option", { value: c.value }, c.label));
         const setting = numberInput("", 3, { "data-setting-for": s.name, min: "1", max: "20", step: "1", "aria-label": `Setting for ${s.name}` });
         setting.removeAttribute("id");
         setting.hidden = true;
         select.addEventListener("change", () => {
-          const c = BASIS_CHOICES.find((b) => b.value === (select as HTMLSelectElement).value)!;
+          const c = BASIS_CHOICES.find((b) => b.value === select.value)!;
           setting.hidden = c.setting === null;
           setting.value = String(c.initial);
           this.composeRecipe();
@@ -511,97 +501,19 @@ export class PaneView {
     );
   }
 
+  /** The recipe of the picked transforms, into the recipe box (then previewed). */
   private composeRecipe(): void {
-    const parts: string[] = [];
+    const picks: ColumnPick[] = [];
     for (const row of this.byId("basisColumns").querySelectorAll(".osm-basis-row")) {
       const select = row.querySelector("select") as HTMLSelectElement;
       const input = row.querySelector("input") as HTMLInputElement;
       const choice = BASIS_CHOICES.find((b) => b.value === select.value);
-      if (!choice || choice.value === "") continue;
-      const name = select.dataset.column!;
-      const col = /^[A-Za-z_][A-Za-z0-9_ .]*$/.test(name) ? name : `"${name.replace(/"/g, '""')}"`;
-      parts.push(choice.setting ? `${col}: ${choice.value}(${choice.setting}=${Number(input.value)})` : `${col}: ${choice.value}`);
+      if (!choice) continue;
+      picks.push({ column: select.dataset.column!, transform: choice.value, setting: choice.setting, value: Number(input.value) });
     }
-    (this.byId("recipe") as HTMLInputElement).value = parts.join("; ");
-    this.previewRecipe();
-  }
-
-  private previewRecipe(): void {
-    const out = this.byId("basisPreview");
-    const recipe = (this.byId("recipe") as HTMLInputElement).value.trim();
-    if (!this.basisSource || recipe === "") {
-      out.textContent = "";
-      return;
-    }
-    const p = previewBasis(this.basisSource, recipe);
-    if (p.error) {
-      out.textContent = p.error.message;
-      out.className = "osm-note is-error";
-      return;
-    }
-    out.className = "osm-note";
-    out.textContent = [`New columns: ${p.names.join(", ")}.`, ...p.warnings.map((w) => w.message)].join(" ");
-  }
-
-  private async writeBasis(): Promise<void> {
-    const out = this.byId("basisPreview");
-    const recipe = (this.byId("recipe") as HTMLInputElement).value.trim();
-    const source = this.basisSource;
-    const d = this.controller.data;
-    if (!source || !d || recipe === "") {
-      out.textContent = "Choose a transform for a column (or type a recipe) first.";
-      return;
-    }
-    try {
-      if (this.basisUndo) await this.undoBasis();
-      const mode = (this.byId("basisValues") as HTMLInputElement).checked ? "values" : "formula";
-      const plan = planWrite(source, recipe, { place: "beside", mode });
-      const result = await executeWrite(this.port, plan);
-      if (result.status === "blocked") {
-        out.textContent = result.message.message;
-        return;
-      }
-      this.basisUndo = result.undo;
-      // Remember the columns (they follow the table's rows) and teach the plot how to recompute them.
-      const start = source.table.firstRow - 2;
-      const training = source.block.values.slice(start, start + source.table.rows + 1);
-      const derived = basisDerived(recipe, training);
-      const sources = derived.sources;
-      this.controller.trackBasis(generatedBasis(source, plan, result), derived);
-      // Widen the pane's table over the generated block and tick the new columns instead of their sources.
-      const tableRect = parseAddress(d.block.address)!;
-      const genRect = parseAddress(result.address)!;
-      const wide = { ...tableRect, right: Math.max(tableRect.right, genRect.right) };
-      await this.controller.useTable(d.sheet, rectAddress(wide), true);
-      const data = this.controller.data;
-      const choice = this.controller.choice;
-      if (data && choice) {
-        const generated = plan.names.map((n) => data.columns.findIndex((c) => c.name === n)).filter((i) => i >= 0);
-        const sourceIdx = new Set(sources.map((n) => data.columns.findIndex((c) => c.name === n)));
-        const keep = choice.predictors.filter((p) => !sourceIdx.has(p));
-        this.controller.setChoice({ predictors: [...new Set([...keep, ...generated])].sort((a, b) => a - b) });
-      }
-      out.textContent = `Added ${plan.names.length} columns at ${result.sheet}!${result.address}, ticked as predictors in place of ${sources.join(", ")}. Press Fit to refit.`;
-    } catch (e) {
-      out.textContent = e instanceof Error && "code" in e ? e.message : "The basis columns could not be written.";
-    }
-  }
-
-  private async undoBasis(): Promise<void> {
-    const written = this.basisUndo;
-    if (!written) return;
-    // The columns may have followed the table's rows since they were written: remove them as they stand.
-    const current = this.controller.untrackBasis(written.sheet, written.address);
-    const undo = current ? { ...written, address: rectAddress(current.rect) } : written;
-    await undoWrite(this.port, undo);
-    this.basisUndo = null;
-    const d = this.controller.data;
-    if (d) {
-      const rect = parseAddress(d.block.address)!;
-      const gen = parseAddress(undo.address)!;
-      if (rect.right >= gen.left) await this.controller.useTable(d.sheet, rectAddress({ ...rect, right: gen.left - 2 }), true);
-    }
-    this.byId("basisPreview").textContent = "Generated columns removed.";
+    const recipe = this.basis.recipeOf(picks);
+    (this.byId("recipe") as HTMLInputElement).value = recipe;
+    this.basis.preview(recipe);
   }
 
   /** What the pane has to say about generated columns after the table changed (followed, or not and why). */

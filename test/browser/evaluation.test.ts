@@ -11,7 +11,7 @@ import { rocAuc } from "../../src/engine/metrics/rocAuc";
 import { confusionCounts } from "../../src/engine/metrics/confusionCounts";
 import { chooseThreshold } from "../../src/engine/evaluation/chooseThreshold";
 import { scoreRows, trainModel } from "../../src/engine/model";
-import { readModelOptions } from "../../src/functions/modelCell";
+import { readModelOptions } from "../../src/shared/fitService";
 import { DEMO_SHEETS } from "../../src/preview/demo";
 import { EVALUATION_CAUTIONS } from "../../src/taskpane/cautions";
 import { saveArtifact, useBrowser } from "./harness";

@@ -9,8 +9,8 @@ import fs from "fs";
 import { nearBoundaryRows } from "../../src/engine/boundary";
 import { scoreRows, trainModel } from "../../src/engine/model";
 import type { CellValue } from "../../src/engine/types";
-import { readModelOptions } from "../../src/functions/modelCell";
-import { basisCell } from "../../src/functions/basisCell";
+import { readModelOptions } from "../../src/shared/fitService";
+import { buildBasisColumns } from "../../src/shared/basisColumns";
 import { DEMO_SHEETS } from "../../src/preview/demo";
 import { CAUTIONS, CAUTIONS_TITLE } from "../../src/taskpane/cautions";
 import { BUILD_TIMEOUT_MS, ensureBuild, launch, saveArtifact, startServer } from "./harness";
@@ -276,7 +276,7 @@ describe("preview workbench", () => {
     await page.waitForFunction(() => /^Fitted on/.test(document.querySelector("#osm-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
     // The engine on the same cells: the basis columns the formula spilled, beside the data.
     const values = DEMO_SHEETS[0].values;
-    const basis = basisCell(values, "firmness: ns(df=3)", null);
+    const basis = buildBasisColumns(values, "firmness: ns(df=3)", null);
     const predictors = values.map((r, i) => [r[2], r[4], r[5], ...basis[i]]);
     const options = readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]);
     const model = trainModel(values.map((r) => [r[6]]), predictors, options.model);
@@ -303,7 +303,7 @@ describe("preview workbench", () => {
       timeout: FIT_WAIT_MS,
     });
     const grown = [...values, added];
-    const grownBasis = basisCell(grown, "firmness: ns(df=3)", null);
+    const grownBasis = buildBasisColumns(grown, "firmness: ns(df=3)", null);
     for (let j = 0; j < 3; j++) {
       const shown = Number(await page.textContent(`.ledger-table td[data-row="242"][data-col="${10 + j}"]`));
       expect(shown).toBeCloseTo(grownBasis[241][j] as number, 3);

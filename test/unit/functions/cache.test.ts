@@ -7,7 +7,7 @@
 import * as spector from "../../fixtures/binary/spector.json";
 import * as model from "../../../src/engine/model";
 import { fit, margin, predictClass, prob, report } from "../../../src/functions/functions";
-import { modelCacheKey, readModelOptions } from "../../../src/functions/modelCell";
+import { modelCacheKey, readModelOptions } from "../../../src/shared/fitService";
 import { DEFAULT_MAX_ENTRIES, sharedFitCache } from "../../../src/shared/fitCache";
 import { OMITTED, column, failure, lookup, table, type Range } from "./excel";
 

@@ -4,8 +4,8 @@
  */
 import { OddsmithError } from "../../../src/shared/messages";
 import { fitCell } from "../../../src/functions/fitCell";
-import { modelCache } from "../../../src/functions/modelCell";
-import { PAYLOAD_LIMIT_BYTES, checkPayload, estimateBytes } from "../../../src/functions/payload";
+import { modelCache } from "../../../src/shared/fitService";
+import { PAYLOAD_LIMIT_BYTES, checkPayload, estimateBytes } from "../../../src/shared/payload";
 import { probCell } from "../../../src/functions/predictCells";
 
 const labels = [["y"], ...Array.from({ length: 40 }, (_, i) => [i % 3 === 0 ? "yes" : "no"])];

@@ -9,7 +9,7 @@ import * as glm from "../../fixtures/binary/glm-references.json";
 import * as spector from "../../fixtures/binary/spector.json";
 import { formatMessage } from "../../../src/shared/messages";
 import { basis, fit, prob } from "../../../src/functions/functions";
-import { basisCell } from "../../../src/functions/basisCell";
+import { buildBasisColumns } from "../../../src/shared/basisColumns";
 import { sharedFitCache } from "../../../src/shared/fitCache";
 import { OMITTED, column, expectClose, expectCleanCells, failure, table } from "./excel";
 
@@ -84,9 +84,9 @@ describe("values that do not exist show as empty cells", () => {
 });
 
 describe("ODDS.BASIS through the cell function", () => {
-  test("gives basisCell's result (the basis engineer's adapter) for a z-score recipe", () => {
+  test("gives buildBasisColumns's result (the basis engineer's adapter) for a z-score recipe", () => {
     const data = column("age", [30, 40, 50]);
-    expect(basis(data, [["age: z"]], OMITTED)).toEqual(basisCell(data, [["age: z"]], null));
+    expect(basis(data, [["age: z"]], OMITTED)).toEqual(buildBasisColumns(data, [["age: z"]], null));
     const out = basis(data, [["age: z"]], OMITTED);
     expectClose(out[1][0], -1, 1e-15, "z of 30");
   });

@@ -16,7 +16,7 @@
 import fc from "fast-check";
 import { CELL_FUNCTIONS, evaluateCellFunction, type CellArgument } from "../../../src/functions/registry";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
-import { MAX_CELL_TEXT, MAX_OUTPUT_CELLS, SHEET_COLUMNS, SHEET_ROWS } from "../../../src/functions/sheetLimits";
+import { MAX_CELL_TEXT, MAX_OUTPUT_CELLS, SHEET_COLUMNS, SHEET_ROWS } from "../../../src/shared/sheetLimits";
 import type { CellValue } from "../../../src/engine/types";
 import { anyCell, expectCatalogueError, grid, hostileText, SEED, type Range } from "./support";
 

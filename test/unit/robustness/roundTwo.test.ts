@@ -5,8 +5,8 @@
  */
 import { evaluateCellFunction as call } from "../../../src/functions/registry";
 import { CellFunctionFailure } from "../../../src/functions/cellError";
-import { fitCellText, levelLabel } from "../../../src/functions/cellOutput";
-import { MAX_CELL_TEXT } from "../../../src/functions/sheetLimits";
+import { fitCellText, levelLabel } from "../../../src/shared/cellOutput";
+import { MAX_CELL_TEXT } from "../../../src/shared/sheetLimits";
 import { checkFirthWork, FIRTH_WORK_LIMIT } from "../../../src/engine/data/fitWork";
 import { MAX_PARAM_CHARS } from "../../../src/engine/messages";
 import { formatMessage } from "../../../src/shared/messages";

@@ -13,7 +13,7 @@ import {
   undoWrite,
   type BasisSource,
 } from "../../../src/taskpane/basisBuilder";
-import { basisCell } from "../../../src/functions/basisCell";
+import { buildBasisColumns } from "../../../src/shared/basisColumns";
 import { cellAddress, parseAddress, rectAddress } from "../../../src/taskpane/a1";
 import type { SheetBlock, WorkbookPort, WriteRequest } from "../../../src/taskpane/port";
 import type { CellValue } from "../../../src/engine/types";
@@ -212,7 +212,7 @@ describe("basis builder: planning and writing", () => {
     const port = setup(1, 1);
     const s = await readBasisSource(port);
     const plan = planWrite(s, "days: sqrt + z", { place: "beside", mode: "values" });
-    expect(plan.values).toEqual(basisCell(crates, "days: sqrt + z", null));
+    expect(plan.values).toEqual(buildBasisColumns(crates, "days: sqrt + z", null));
     await executeWrite(port, plan);
     expect(port.get("Crates", 1, 5)).toBe("sqrt(days)");
     expect(port.get("Crates", 4, 5)).toBe(""); // the blank "days" row

@@ -4,7 +4,7 @@
  * live formula, the workbook evaluates it, a row is appended, the pane refreshes, the formula is
  * rewritten over the grown rows and the refit uses the new row.
  *
- * Reference for the numbers: the engine itself on the same cells (basisCell on the grown block, then
+ * Reference for the numbers: the engine itself on the same cells (buildBasisColumns on the grown block, then
  * trainModel), i.e. these tests check the wiring, not the spline: ns itself is checked against R's
  * splines::ns in test/unit/engine (test/fixtures/basis/generate-r-reference.R).
  */
@@ -22,8 +22,8 @@ import {
   undoWrite,
   type GeneratedBasis,
 } from "../../../src/taskpane/basisBuilder";
-import { basisCell } from "../../../src/functions/basisCell";
-import { readModelOptions } from "../../../src/functions/modelCell";
+import { buildBasisColumns } from "../../../src/shared/basisColumns";
+import { readModelOptions } from "../../../src/shared/fitService";
 import { trainModel } from "../../../src/engine/model";
 import type { CellValue } from "../../../src/engine/types";
 import { rectAddress } from "../../../src/taskpane/a1";
@@ -78,7 +78,7 @@ async function paneWithBasis(mode: "formula" | "values", track = true) {
 
 /** The engine's fit of held ~ days_stored + brix + bruises + ns(firmness) on the given demo rows. */
 function referenceFit(values: CellValue[][]) {
-  const basis = basisCell(values, RECIPE, null);
+  const basis = buildBasisColumns(values, RECIPE, null);
   const predictors = values.map((r, i) => [r[2], r[4], r[5], ...basis[i]]);
   const options = readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]);
   return trainModel(values.map((r) => [r[6]]), predictors, options.model);
@@ -89,7 +89,7 @@ describe("generated basis formulas follow the table's rows (through the in-memor
     const { workbook, sheet, plan } = await paneWithBasis("formula");
     expect(plan.address).toBe("J1:L241");
     expect(workbook.input(sheet, 1, 10)).toBe('=ODDS.BASIS(Crates!$A$1:$H$241, "firmness: ns(df=3)")');
-    const expected = basisCell(DEMO_SHEETS[0].values, RECIPE, null);
+    const expected = buildBasisColumns(DEMO_SHEETS[0].values, RECIPE, null);
     expect(workbook.read(sheet, { top: 1, left: 10, bottom: 1, right: 12 })[0]).toEqual(["ns(firmness)1", "ns(firmness)2", "ns(firmness)3"]);
     for (const i of [1, 120, 240]) {
       for (let j = 0; j < 3; j++) expect(workbook.value(sheet, i + 1, 10 + j)).toBeCloseTo(expected[i][j] as number, SAME_VALUE_DIGITS);
@@ -113,7 +113,7 @@ describe("generated basis formulas follow the table's rows (through the in-memor
     await settle(controller);
     expect(workbook.input(sheet, 1, 10)).toBe('=ODDS.BASIS(Crates!$A$1:$H$242, "firmness: ns(df=3)")');
     const grown = [...DEMO_SHEETS[0].values, ADDED[0]];
-    const expected = basisCell(grown, RECIPE, null);
+    const expected = buildBasisColumns(grown, RECIPE, null);
     for (let j = 0; j < 3; j++) expect(workbook.value(sheet, 242, 10 + j)).toBeCloseTo(expected[241][j] as number, SAME_VALUE_DIGITS);
     expect(controller.data!.block.address).toBe("A1:L242");
     expect(controller.outcome!.model.fit.rowsUsed).toBe(241);
@@ -139,7 +139,7 @@ describe("generated basis formulas follow the table's rows (through the in-memor
     // A crate softer than any before (22 < 28.9) moves the lower boundary knot, so every row's spline values move.
     workbook.setValues(sheet, 242, 1, [ADDED[1]]);
     await settle(controller);
-    const expected = basisCell([...DEMO_SHEETS[0].values, ADDED[1]], RECIPE, null);
+    const expected = buildBasisColumns([...DEMO_SHEETS[0].values, ADDED[1]], RECIPE, null);
     const after = workbook.value(sheet, 2, 10) as number;
     expect(after).toBeCloseTo(expected[1][0] as number, SAME_VALUE_DIGITS);
     expect(after).not.toBeCloseTo(before, 6);
@@ -152,8 +152,8 @@ describe("generated basis formulas follow the table's rows (through the in-memor
     const derived = controller.derived.find((d) => d.outputs.includes("ns(firmness)1"))!;
     const probe: CellValue[][] = [["firmness"], [48]];
     const grown = [...DEMO_SHEETS[0].values, ADDED[1]];
-    expect(derived.compute(probe)).toEqual(basisCell(probe, RECIPE, grown));
-    expect(derived.compute(probe)).not.toEqual(basisCell(probe, RECIPE, DEMO_SHEETS[0].values));
+    expect(derived.compute(probe)).toEqual(buildBasisColumns(probe, RECIPE, grown));
+    expect(derived.compute(probe)).not.toEqual(buildBasisColumns(probe, RECIPE, DEMO_SHEETS[0].values));
   });
 
   test("several rows appended at once are all covered", async () => {

@@ -9,7 +9,7 @@ import { MemoryWorkbook } from "../../../src/taskpane/memoryPort";
 import { scoreRows, trainModel } from "../../../src/engine/model";
 import { rocAuc } from "../../../src/engine/metrics/rocAuc";
 import { confusionCounts } from "../../../src/engine/metrics/confusionCounts";
-import { readModelOptions } from "../../../src/functions/modelCell";
+import { readModelOptions } from "../../../src/shared/fitService";
 import { ERROR_VALUES } from "../../../src/preview/formulas";
 
 function checkSheet() {

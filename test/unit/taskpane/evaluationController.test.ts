@@ -26,7 +26,7 @@ import { calibrationTable } from "../../../src/engine/metrics/calibrationTable";
 import { problem } from "../../../src/shared/messages";
 import { chooseThreshold } from "../../../src/engine/evaluation/chooseThreshold";
 import { thresholdChooser } from "../../../src/taskpane/evaluationCompute";
-import { readModelOptions } from "../../../src/functions/modelCell";
+import { readModelOptions } from "../../../src/shared/fitService";
 
 /** A stepped computation for the runner tests: `steps` progress reports, then a fixed path. */
 function countingCompute(steps: number, seen: number[] = []): CvCompute {

@@ -2,7 +2,8 @@
  * Fit runners: which one is chosen, cancel semantics, and the worker message protocol (driven with a
  * stand-in Worker class here; the real worker runs in the browser tests).
  */
-import { fittedModel, readModelOptions } from "../../../src/functions/modelCell";
+import { readModelOptions } from "../../../src/shared/fitService";
+import { fittedModel } from "../../../src/functions/modelCell";
 import {
   chooseRunner,
   FitCancelled,

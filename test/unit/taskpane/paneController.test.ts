@@ -13,7 +13,7 @@ import { InlineFitRunner } from "../../../src/taskpane/fitRunner";
 import { nearBoundaryRows } from "../../../src/engine/boundary";
 import { scoreRows, trainModel } from "../../../src/engine/model";
 import type { CellValue } from "../../../src/engine/types";
-import { readModelOptions } from "../../../src/functions/modelCell";
+import { readModelOptions } from "../../../src/shared/fitService";
 import { DEMO_SHEETS } from "../../../src/preview/demo";
 
 /**

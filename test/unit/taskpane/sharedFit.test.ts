@@ -10,12 +10,12 @@
  */
 import * as engineModel from "../../../src/engine/model";
 import { fitCell } from "../../../src/functions/fitCell";
-import { modelCache, modelCacheKey, readModelOptions } from "../../../src/functions/modelCell";
+import { fitKey, modelCache, modelCacheKey, readModelOptions } from "../../../src/shared/fitService";
 import { probCell } from "../../../src/functions/predictCells";
 import { loadDemo } from "../../../src/preview/demo";
 import { evaluateFormula } from "../../../src/preview/formulas";
 import { parseAddress, splitSheet } from "../../../src/taskpane/a1";
-import { answerFitRequest, jobCacheKey, type FitJob, type WorkerReply, type WorkerRequest } from "../../../src/taskpane/fitRunner";
+import { answerFitRequest, type FitJob, type WorkerReply, type WorkerRequest } from "../../../src/taskpane/fitRunner";
 import { MemoryPort, MemoryWorkbook } from "../../../src/taskpane/memoryPort";
 import { modelInputs } from "../../../src/taskpane/modelSetup";
 import { PaneController } from "../../../src/taskpane/paneController";
@@ -120,7 +120,7 @@ describe.each(["inline", "worker"] as const)("a model fitted by the pane (%s) is
     const formulaOptions = readModelOptions("ODDS.PROB", [[ranges.options]]);
     const key = modelCacheKey(rangeValues(workbook, ranges.labels), rangeValues(workbook, ranges.predictors), formulaOptions.model);
     const inputs = modelInputs(controller.data!, controller.choice!, 2);
-    expect(jobCacheKey({ labels: inputs.labels, predictors: inputs.predictors, options: inputs.options, threshold: 0.5 })).toBe(key);
+    expect(fitKey({ labels: inputs.labels, predictors: inputs.predictors, options: inputs.options })).toBe(key);
     expect(modelCache().get(key)).toBe(controller.outcome!.model);
   });
 });
@@ -144,6 +144,6 @@ describe("the trained model crosses to and from the worker whole", () => {
     answerFitRequest({ id: 1, job }, (r) => replies.push(r));
     expect(replies).toHaveLength(1);
     expect("failure" in replies[0]).toBe(true);
-    expect(modelCache().get(jobCacheKey(job))).toBeUndefined();
+    expect(modelCache().get(fitKey(job))).toBeUndefined();
   });
 });

@@ -5,7 +5,7 @@
  * JavaScript engine running the tests implements it in String(x).
  */
 import fc from "fast-check";
-import { estimateBytes, numberTextLength } from "../../../src/functions/payload";
+import { estimateBytes, numberTextLength } from "../../../src/shared/payload";
 
 /** Many runs: the sizing must agree with the rule on every double, not only on most. */
 const RUNS = 20_000;

@@ -12,7 +12,7 @@
  * - A refusal is OUTPUT_TOO_LARGE: it names the function, the output's size and what it holds, and
  *   says what to do, never blaming an input that is within its own limits.
  */
-import { problem } from "../shared/messages";
+import { problem } from "./messages";
 import { OUTPUT_BYTES_PER_CELL, PAYLOAD_LIMIT_BYTES } from "./payload";
 
 /** Rows of a worksheet (Excel specifications and limits). */

@@ -11,7 +11,7 @@
  *   function estimates its output before computing (sheetLimits.ts); this is the last guard.
  */
 import { type CellValue } from "../engine";
-import { formatMessage } from "../shared/messages";
+import { formatMessage } from "./messages";
 import { checkOutputSize, MAX_CELL_TEXT } from "./sheetLimits";
 
 /** `text` cut so that it fits one cell, ending with the catalogue's note on what was cut. */

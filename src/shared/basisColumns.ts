@@ -1,6 +1,8 @@
 /**
- * Adapter behind ODDS.BASIS(data, recipe, [training_data]): builds basis columns from a range with a
- * header row, following a recipe (src/engine/basis/recipe.ts, docs/basis-recipes.md).
+ * Basis columns from a range with a header row, following a recipe (src/engine/basis/recipe.ts,
+ * docs/basis-recipes.md): what ODDS.BASIS(data, recipe, [training_data]) returns, and what the task
+ * pane's basis builder writes as values, follows the table with and draws in its plot, so both give
+ * the same columns.
  *
  * Policy (one line each):
  * - `data` must start with a header row: the recipe names columns by their headers (headers="yes").
@@ -18,7 +20,7 @@
  */
 import { checkOutputSize, SHEET_COLUMNS } from "./sheetLimits";
 import { errorLiteral, estimateRecipeColumns, tableBasisColumns, applyRecipe, fitRecipe, parseRecipe, rangeRow, readTable, type BasisColumn, type RowNote, type Table, type CellValue } from "../engine";
-import { problem } from "../shared/messages";
+import { problem } from "./messages";
 import { spill } from "./cellOutput";
 
 /** The columns of a parsed table in the form the basis transforms read (blank = null): the engine's. */
@@ -43,15 +45,15 @@ export function recipeText(recipe: string | CellValue | CellValue[][]): string {
 }
 
 /**
- * Build basis columns for ODDS.BASIS.
+ * Build basis columns as ODDS.BASIS returns them.
  * @param data - range with a header row; the rows to transform
  * @param recipe - recipe text (or a range holding it)
  * @param training - optional range with the same headers to fit the transforms on (null: fit on data)
  * @returns header row of generated names, then one row per data row ("" where a row had a problem)
  * @throws OddsmithError for a bad recipe, a missing column, or when no row can be computed
- * @example basisCell([["age"], [30], [40], [50]], "age: z", null) // [["z(age)"], [-1], [0], [1]]
+ * @example buildBasisColumns([["age"], [30], [40], [50]], "age: z", null) // [["z(age)"], [-1], [0], [1]]
  */
-export function basisCell(
+export function buildBasisColumns(
   data: CellValue[][],
   recipe: string | CellValue | CellValue[][],
   training: CellValue[][] | null,

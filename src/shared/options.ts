@@ -17,7 +17,7 @@
  * valid), DUPLICATE_OPTION.
  */
 import { errorLiteral, parseNumericText } from "../engine";
-import { problem } from "../shared/messages";
+import { problem } from "./messages";
 
 interface SpecBase {
   /** Lower-case name the user writes. */

@@ -11,7 +11,7 @@ import {
   OPT_POOL,
   parseBaselines,
   parseOptions,
-} from "../../../src/functions/options";
+} from "../../../src/shared/options";
 import { caught } from "../../support/caught";
 
 

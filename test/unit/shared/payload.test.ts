@@ -5,7 +5,7 @@
 import { formatMessage } from "../../../src/shared/messages";
 import { OddsmithError } from "../../../src/shared/messages";
 import fc from "fast-check";
-import { PAYLOAD_LIMIT_BYTES, PAYLOAD_SIZER, checkPayload, estimateBytes } from "../../../src/functions/payload";
+import { PAYLOAD_LIMIT_BYTES, PAYLOAD_SIZER, checkPayload, estimateBytes } from "../../../src/shared/payload";
 import { contentKeyAndSizes } from "../../../src/shared/fitCache";
 
 /** Excel's largest sheet: a whole-column reference carries this many rows. */

@@ -22,8 +22,8 @@
  * fitting functions size labels and predictors in the pass that hashes them for the fit cache
  * (PAYLOAD_SIZER) and hand the sizes in as PayloadPart.bytes.
  */
-import { problem } from "../shared/messages";
-import type { CellSizer } from "../shared/fitCache";
+import { problem } from "./messages";
+import type { CellSizer } from "./fitCache";
 
 /** About 5 MB per call (Office custom-functions documentation, "payload limit"). */
 export const PAYLOAD_LIMIT_BYTES = 5_000_000;
