@@ -570,6 +570,48 @@ export const ENGINE_MESSAGES = {
     title: "No room for the formulas",
     template: "The formulas cannot be placed at {at}: {reason}. {hint}",
   },
+  DESCRIPTION_NOT_JSON: {
+    cellError: "#VALUE!",
+    title: "Model description is not JSON",
+    template:
+      "The {argument} is not a readable model description: {reason}. Give the whole text of a description that Oddsmith wrote (the pane's \"download the description\" file, or the kept model's cells), unchanged.",
+  },
+  DESCRIPTION_NOT_OURS: {
+    cellError: "#VALUE!",
+    title: "Not an Oddsmith model description",
+    template:
+      "The {argument} is JSON but not an Oddsmith model description: its \"format\" field is {got}, where \"oddsmith-model\" is expected. Give a description that Oddsmith wrote.",
+  },
+  DESCRIPTION_NEWER: {
+    cellError: "#VALUE!",
+    title: "Model description from a newer version",
+    template:
+      "This model description has format version {version} (written by Oddsmith {producer}); this Oddsmith reads format {supported} and older descriptions of major version {major} only, so it does not guess what a newer one means. Update the Oddsmith add-in to a version that reads format {version}, or fit the model again with this version.",
+  },
+  DESCRIPTION_FIELD: {
+    cellError: "#VALUE!",
+    title: "Model description field wrong",
+    template:
+      "The model description's field \"{field}\" should be {expected}, but it is {got}. The description was changed or damaged after Oddsmith wrote it: use an unchanged copy, or fit the model again.",
+  },
+  DESCRIPTION_INCONSISTENT: {
+    cellError: "#VALUE!",
+    title: "Model description contradicts itself",
+    template:
+      "The model description's field \"{field}\" does not agree with the rest of it: {reason}. The description was changed or damaged after Oddsmith wrote it: use an unchanged copy, or fit the model again.",
+  },
+  DESCRIPTION_NEEDS_ROWS: {
+    cellError: "#VALUE!",
+    title: "Rows to score needed",
+    template:
+      "A model read from its description holds no data rows, so there are no training rows to score. Give the rows to score in the {argument} argument.",
+  },
+  DESCRIPTION_COLUMN_MISSING: {
+    cellError: "#VALUE!",
+    title: "Column the model needs is missing",
+    template:
+      "The model reads the column \"{column}\", but the {argument} range has no column of that name (its header row holds {columns}). Give the rows with a header row naming the columns the model was fitted on.",
+  },
   // ---- group comparison ------------------------------------------------------------------------
   GROUPS_TOO_MANY: {
     cellError: "#VALUE!",

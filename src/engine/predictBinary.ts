@@ -15,7 +15,7 @@ import { criticalZ } from "./distributions";
 import { cholesky, subMatrix } from "./linalg";
 import { problem } from "./messages";
 import { logit, sigmoid } from "./numerics";
-import type { DesignMatrix, ModelFit, Prediction } from "./types";
+import type { DesignMatrix, Prediction, ScoringFit } from "./types";
 
 /** Options of {@link predictBinary}. */
 export interface PredictBinaryOptions {
@@ -31,7 +31,7 @@ export interface PredictBinaryOptions {
  * Score rows with a binary fit: class probabilities [1 - p, p], linear predictor and its standard
  * error, an interval for p computed on the logit scale, the predicted class at the threshold, and
  * the margins |p - threshold| and |eta - logit(threshold)|.
- * @param fit - a ModelFit with kind "binary"
+ * @param fit - a ModelFit (or a ScoringFit read from a description) with kind "binary"
  * @param X - rows to score, columns in the same order as at fit time (no intercept column)
  * @param options - threshold, offset and interval level
  * @throws OddsmithError COLUMN_COUNT_MISMATCH when X has a different number of columns than the
@@ -42,7 +42,7 @@ export interface PredictBinaryOptions {
  * pred.probabilities[1][0]; // P(positive class) for the first row
  * Reference: Agresti (2013), ch. 5; McCullagh & Nelder (1989), ch. 2.
  */
-export function predictBinary(fit: ModelFit, X: DesignMatrix, options: PredictBinaryOptions = {}): Prediction {
+export function predictBinary(fit: ScoringFit, X: DesignMatrix, options: PredictBinaryOptions = {}): Prediction {
   if (fit.kind !== "binary") {
     throw problem("BAD_OPTION_VALUE", { name: "model", value: fit.kind, expected: "predictBinary needs a binary model." });
   }

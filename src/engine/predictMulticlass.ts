@@ -12,13 +12,13 @@
 
 import { checkScoringDesign } from "./data/checkScoringDesign";
 import { problem } from "./messages";
-import type { DesignMatrix, ModelFit, Prediction } from "./types";
+import type { DesignMatrix, Prediction, ScoringFit } from "./types";
 
 /**
  * Score rows with a multi-class fit: the probability of every class, the predicted class (the most
  * probable; the first in class order on an exact tie) and the margin, the gap between the two
  * largest probabilities (0 = on a decision boundary).
- * @param fit - a ModelFit with kind "multiclass" (reference or symmetric form)
+ * @param fit - a ModelFit (or a ScoringFit read from a description) with kind "multiclass" (reference or symmetric form)
  * @param X - rows to score, columns in the same order as at fit time (no intercept column)
  * @returns probabilities[k][i] for class k in fit.classes order, predicted, margin
  * @throws OddsmithError BAD_OPTION_VALUE for a model of another kind; COLUMN_COUNT_MISMATCH when X
@@ -28,7 +28,7 @@ import type { DesignMatrix, ModelFit, Prediction } from "./types";
  * pred.probabilities[2][0]; // P(third class) for the first row
  * Reference: Agresti (2013) §8.1.
  */
-export function predictMulticlass(fit: ModelFit, X: DesignMatrix): Prediction {
+export function predictMulticlass(fit: ScoringFit, X: DesignMatrix): Prediction {
   if (fit.kind !== "multiclass") {
     throw problem("BAD_OPTION_VALUE", { name: "model", value: fit.kind, expected: "predictMulticlass needs a multi-class model." });
   }

@@ -168,6 +168,15 @@ export interface ModelFit {
   diagnostics: Diagnostic[];
 }
 
+/**
+ * The part of a fit that scoring reads: a full ModelFit has it, and so does a model read back from
+ * its description (src/engine/portable/), which has no coefficient table or fit statistics.
+ */
+export type ScoringFit = Pick<
+  ModelFit,
+  "kind" | "classes" | "positiveClass" | "referenceClass" | "form" | "terms" | "intercept" | "coefficients" | "equationClasses" | "covariance" | "aliased" | "level"
+>;
+
 /** Per-row predictions of a fitted model. Rows that could not be scored hold NaN. */
 export interface Prediction {
   /** Probability of each class, one array per class (classes in ModelFit order). */

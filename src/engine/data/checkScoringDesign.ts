@@ -3,7 +3,7 @@
  * per fitted predictor term (no intercept column), all of the same length.
  */
 import { problem } from "../messages";
-import type { DesignMatrix, ModelFit } from "../types";
+import type { DesignMatrix, ScoringFit } from "../types";
 
 /**
  * Check that `X` fits the model's predictor terms and return its number of rows.
@@ -12,7 +12,7 @@ import type { DesignMatrix, ModelFit } from "../types";
  * @example
  * const n = checkScoringDesign(fit, X); // X.rows, once the shape is known to be right
  */
-export function checkScoringDesign(fit: ModelFit, X: DesignMatrix): number {
+export function checkScoringDesign(fit: Pick<ScoringFit, "terms" | "intercept">, X: DesignMatrix): number {
   const predictors = fit.terms.slice(fit.intercept ? 1 : 0);
   if (X.columns.length !== predictors.length) {
     throw problem("COLUMN_COUNT_MISMATCH", {

@@ -18,7 +18,8 @@
  *   that cannot be scored keeps its place with NaN numbers and a per-row problem (model/scoring.ts).
  */
 import { readAlignedRanges, type RangeArg } from "../data/alignRanges";
-import { buildDesign, encodeRows } from "../data/design";
+import { buildDesign, encodeRows, type EncodedRows } from "../data/design";
+import { problem } from "../messages";
 import { validateColumns, type ValidColumns } from "../data/validate";
 import { predictBinary } from "../predictBinary";
 import { predictMulticlass } from "../predictMulticlass";
@@ -27,11 +28,11 @@ import { fitClasses, fitOptions, gather } from "./fitClasses";
 import { affordableIntervals, completeDiagnostics } from "./fitNotes";
 import { expand, scoringOffsets } from "./scoring";
 import { encodeTrainingRows } from "./trainingRows";
-import type { ModelOptions, RowScores, TrainedModel } from "./types";
+import type { ModelOptions, RowScores, ScoringModel, TrainedModel } from "./types";
 
 export { GROUPED_CLASSES, MAX_PARAMETERS } from "../data/validate";
 export { PROFILE_BUDGET } from "./fitNotes";
-export type { ModelLabels, ModelOptions, RowScores, TrainedModel } from "./types";
+export type { ModelLabels, ModelOptions, RowScores, ScoringModel, TrainedModel } from "./types";
 
 const EXTRA_RANGES = ["weights", "offset", "trials"] as const;
 
@@ -118,16 +119,19 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
  *
  * @param options.threshold decision threshold for binary models [the model's].
  * @param options.offset offset column for new rows of a model fitted with an offset.
- * @throws OddsmithError only for whole-range problems (EMPTY_RANGE, RAGGED_RANGE, COLUMN_COUNT_MISMATCH).
+ * @param model a TrainedModel, or a model read back from its description (then `predictors` is required).
+ * @throws OddsmithError only for whole-range problems (EMPTY_RANGE, RAGGED_RANGE, COLUMN_COUNT_MISMATCH,
+ *   DESCRIPTION_NEEDS_ROWS when a model without training rows is asked to score them).
  */
 export function scoreRows(
-  model: TrainedModel,
+  model: ScoringModel,
   predictors: CellValue[][] | null,
   options: { threshold?: number; offset?: CellValue[][] | null; headers?: "auto" | "yes" | "no" } = {},
 ): RowScores {
   const threshold = options.threshold ?? model.threshold;
   // Rows given here are the caller's new rows (ODDS.PROB's new_rows): messages name that argument.
-  const encoded = predictors === null ? model.trainingRows : encodeRows(model.encoding, predictors, { argument: "new_rows", headers: options.headers ?? "auto" });
+  if (predictors === null && model.trainingRows === null) throw problem("DESCRIPTION_NEEDS_ROWS", { argument: "new_rows" });
+  const encoded = predictors === null ? (model.trainingRows as EncodedRows) : encodeRows(model.encoding, predictors, { argument: "new_rows", headers: options.headers ?? "auto" });
   const n = encoded.design.rows;
   const ok = encoded.ok.slice();
   const problems = encoded.problems.slice();

@@ -3,7 +3,7 @@
  * needed to score new rows the same way) and the per-row scores of scoreRows.
  */
 import type { DesignEncoding, EncodedRows, RowProblem, SkippedRows } from "../data/design";
-import type { CellValue, DesignMatrix, ModelFit, Prediction } from "../types";
+import type { CellValue, DesignMatrix, ModelFit, Prediction, ScoringFit } from "../types";
 
 /** Everything trainModel accepts besides the two main ranges. Defaults in brackets. */
 export interface ModelOptions {
@@ -93,6 +93,22 @@ export interface TrainedModel {
   /** Header of the offset column (its name in the offset range), or null without an offset. */
   offsetColumn: string | null;
   /** Default threshold for scoring. */
+  threshold: number;
+}
+
+/**
+ * What scoreRows needs of a model: a TrainedModel has it all; a model read back from its
+ * description (src/engine/portable/restoreModel.ts) has no training rows, so it scores given rows only.
+ */
+export interface ScoringModel {
+  kind: "binary" | "multiclass";
+  fit: ScoringFit;
+  encoding: DesignEncoding;
+  /** Training predictors encoded for scoring, or null when the model holds no data rows. */
+  trainingRows: EncodedRows | null;
+  trainingOffset: Float64Array | null;
+  usesOffset: boolean;
+  offsetColumn: string | null;
   threshold: number;
 }
 
