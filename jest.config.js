@@ -1,4 +1,7 @@
-/** Two projects: fast unit tests (engine, functions, pane logic) and browser tests (headless Chromium). */
+/**
+ * Three projects: fast unit tests (engine, functions, pane logic), spreadsheet tests (exported
+ * formulas recalculated by LibreOffice headless) and browser tests (headless Chromium).
+ */
 const tsJest = ["ts-jest", { tsconfig: "tsconfig.json" }];
 module.exports = {
   projects: [
@@ -8,6 +11,12 @@ module.exports = {
       testMatch: ["<rootDir>/test/unit/**/*.test.ts"],
       transform: { "^.+\\.tsx?$": tsJest },
       moduleNameMapper: { "^office-addin-manifest$": "<rootDir>/test/support/office-addin-manifest-stub.js" },
+    },
+    {
+      displayName: "spreadsheet",
+      testEnvironment: "node",
+      testMatch: ["<rootDir>/test/spreadsheet/**/*.test.ts"],
+      transform: { "^.+\\.tsx?$": tsJest },
     },
     {
       displayName: "browser",
