@@ -2,7 +2,7 @@
  * Binary logistic regression: fitBinaryModel.
  *
  * Model: P(y = 1 | x) = sigmoid(offset + b0 + x'b), maximum likelihood by Newton-Raphson (IRLS)
- * with step halving (see logisticNewton.ts), optionally with an L2 penalty or Firth's bias
+ * with step halving (see glm/newton.ts), optionally with an L2 penalty or Firth's bias
  * reduction. Columns are centred (when there is an intercept) and scaled to unit population
  * standard deviation inside the fit; coefficients and covariance are mapped back exactly by the
  * linear map b = T g (b_j = g_j / s_j, b0 = g0 - sum_j g_j m_j / s_j) and V_b = T V_g T'.
@@ -59,12 +59,14 @@ import {
   type Interval,
 } from "./inference";
 import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, subsampleProvesFullRank, type RankRevealingResult } from "./linalg";
-import { fittingColumns, newtonLogistic, problemGram, withChanges, type BlockDesign, type NewtonProblem, type NewtonResult } from "./logisticNewton";
-import { exampleRows, formatMessage, listNames, problem, type MessageCode } from "./messages";
+import { fitBinomial, fittingColumns, type BinomialProblem } from "./glm/binomialFit";
+import { createKernel } from "./kernels";
+import type { KernelDesign } from "./kernels/types";
+import { exampleRows, fitDiagnostic, listNames, problem, type FitDiagnosticCode } from "./messages";
 import { logGamma } from "./numerics";
 import { firthProfileIntervals, PROFILE_SEARCH_LIMIT, profileIntervals } from "./profile";
 import { responseSides, separationFromIterates, univariateSeparation, type BinaryResponse, type SeparationFinding } from "./separation";
-import type { BinaryFitOptions, DesignMatrix, Diagnostic, ModelFit, Severity } from "./types";
+import type { BinaryFitOptions, DesignMatrix, Diagnostic, ModelFit } from "./types";
 
 /** Defaults of the fit options (see FitOptions in types.ts). */
 export const BINARY_DEFAULTS = {
@@ -126,9 +128,6 @@ function originalScaleStandardErrors(T: Float64Array, V: Float64Array, k: number
   return se;
 }
 
-function diag(code: MessageCode, severity: Severity, params: Record<string, unknown>, extra: Partial<Diagnostic> = {}): Diagnostic {
-  return { code, severity, message: formatMessage(code, params), params, ...extra };
-}
 
 /*
  * The helpers of screen are module functions rather than closures: optimized code that calls a
@@ -421,7 +420,7 @@ export function fitBinaryModel(
   const rowsToCaller = (rows: number[]): number[] => rows.map((r) => data.rowIndex[r]);
 
   if (data.skipped > 0) {
-    diagnostics.push(diag("ROWS_SKIPPED", "warning", { count: data.skipped, detail: data.skippedDetail }));
+    diagnostics.push(fitDiagnostic("ROWS_SKIPPED", { count: data.skipped, detail: data.skippedDetail }));
   }
   const { observations, totalSucc, totalTrials } = weightedTotals(data);
   const base = {
@@ -465,15 +464,15 @@ export function fitBinaryModel(
 
   if (data.rows === 0) {
     const missing = data.skippedDetail || "none (every row has zero weight or zero trials)";
-    diagnostics.push(diag("NO_USABLE_ROWS", "error", { missing }));
+    diagnostics.push(fitDiagnostic("NO_USABLE_ROWS", { missing }));
     return failed();
   }
   if (totalSucc === 0 || totalSucc === totalTrials) {
-    diagnostics.push(diag("ONE_CLASS_ONLY", "error", { label: totalSucc === 0 ? classes[0] : classes[1] }));
+    diagnostics.push(fitDiagnostic("ONE_CLASS_ONLY", { label: totalSucc === 0 ? classes[0] : classes[1] }));
     return failed();
   }
   if (!penalized && data.rows < p) {
-    diagnostics.push(diag("TOO_FEW_ROWS", "error", { rows: data.rows, parameters: p }));
+    diagnostics.push(fitDiagnostic("TOO_FEW_ROWS", { rows: data.rows, parameters: p }));
     return failed();
   }
 
@@ -515,7 +514,6 @@ export function fitBinaryModel(
   }
 
   // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
-  const sparseAll = sparseRowLists(raw, n, opt.intercept);
   // A ridge penalty makes collinear columns estimable, so it enters the rank decision; Firth's
   // penalty needs log det of the unpenalized information, so with bias reduction it does not.
   const rankPenalty = opt.biasReduction ? new Float64Array(p) : penaltyAll;
@@ -534,14 +532,12 @@ export function fitBinaryModel(
     const spread = opt.intercept ? sd[c] : scale[c];
     fullDiagonal[j] = spread > RANK_PROOF_MIN_SPREAD * big ? (big / scale[c]) ** 2 * (opt.intercept ? v : ms) + rankPenalty[j] : NaN;
   }
-  const provenFullRank = !opt.biasReduction && subsampleRankBound({ rows: n, columns: raw, centre: centreAll, scale: scaleAll, sparseRows: sparseAll }, a, rankPenalty, fullDiagonal);
-  let unitGram: Float64Array | null = null;
+  const provenFullRank = !opt.biasReduction && subsampleRankBound({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a, rankPenalty, fullDiagonal);
   let rr: RankRevealingResult;
   if (provenFullRank) {
     rr = { rank: p, independent: Array.from({ length: p }, (_, j) => j), dependent: [], residualShare: new Float64Array(p).fill(NaN) };
   } else {
-    unitGram = problemGram({ rows: n, columns: raw, centre: centreAll, scale: scaleAll, sparseRows: sparseAll }, a);
-    const gram = Float64Array.from(unitGram);
+    const gram = designGram({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a);
     for (let j = 0; j < p; j++) gram[j * p + j] += rankPenalty[j];
     rr = rankRevealingCholesky(gram, p, ALIAS_TOLERANCE);
   }
@@ -549,7 +545,7 @@ export function fitBinaryModel(
   for (const j of rr.dependent) aliased[j] = true;
   if (rr.dependent.length > 0) {
     diagnostics.push(
-      diag("ALIASED_COLUMNS", "warning", { columns: listNames(rr.dependent.map((j) => terms[j])) }, { columns: rr.dependent.map((j) => terms[j]) }),
+      fitDiagnostic("ALIASED_COLUMNS", { columns: listNames(rr.dependent.map((j) => terms[j])) }, { columns: rr.dependent.map((j) => terms[j]) }),
     );
   }
   const kept = rr.independent;
@@ -559,21 +555,16 @@ export function fitBinaryModel(
     columns: kept.map((j) => raw[j]),
     centre: Float64Array.from(kept, (j) => centreAll[j]),
     scale: Float64Array.from(kept, (j) => scaleAll[j]),
-    sparseRows: sparseAll ? kept.map((j) => sparseAll[j]) : null,
   };
-  // Firth's hat values need whole columns: form the scaled copy once for the fits below.
-  const firthColumns = opt.biasReduction ? fittingColumns(keptDesign) : null;
   const interceptIndex = opt.intercept && !aliased[0] ? 0 : -1;
   const response: BinaryResponse = { rows: n, successes: data.successes, trials: data.trials };
 
   // ---- main fit ----------------------------------------------------------------------------
-  // Written out field by field (no spread): see stableProblem in logisticNewton.ts.
-  const problemK: NewtonProblem = {
+  const problemK: BinomialProblem = {
     rows: n,
-    columns: firthColumns ?? keptDesign.columns,
-    centre: firthColumns ? null : keptDesign.centre,
-    scale: firthColumns ? null : keptDesign.scale,
-    sparseRows: firthColumns ? null : keptDesign.sparseRows,
+    columns: keptDesign.columns,
+    centre: keptDesign.centre,
+    scale: keptDesign.scale,
     successes: data.successes,
     trials: data.trials,
     weights: data.weights,
@@ -583,12 +574,11 @@ export function fitBinaryModel(
     maxIterations: opt.maxIterations,
     tolerance: opt.tolerance,
     keepHistory: !penalized && !opt.biasReduction,
-    unitGram: unitGram ? subMatrix(unitGram, p, kept) : null,
   };
   // Large data: start from a fit on a systematic subsample, with its information scaled up
-  // standing in for the full-data one at first (see NewtonProblem.startInformation).
+  // standing in for the full-data one at first (see the warm start in glm/newton.ts).
   const warm = opt.biasReduction ? null : subsampleWarmStart(problemK);
-  const fit = newtonLogistic(warm ? withChanges(problemK, { start: warm.start, startInformation: warm.information }) : problemK);
+  const fit = fitBinomial(warm ? { ...problemK, start: warm.start, startInformation: warm.information } : problemK);
   const { logBinom, saturated } = constantTerms(data);
 
   // ---- separation --------------------------------------------------------------------------
@@ -614,14 +604,14 @@ export function fitBinaryModel(
     const rows = rowsToCaller(separation.rows);
     const example = exampleRows(rows);
     if (!penalized && !opt.biasReduction) {
-      const code: MessageCode = separation.complete ? "SEPARATION_COMPLETE" : "SEPARATION_QUASI";
+      const code: FitDiagnosticCode = separation.complete ? "SEPARATION_COMPLETE" : "SEPARATION_QUASI";
       diagnostics.push(
-        diag(code, "error", { columns: listNames(colNames), count: rows.length, rows: example }, { columns: colNames, rows }),
+        fitDiagnostic(code, { columns: listNames(colNames), count: rows.length, rows: example }, { columns: colNames, rows }),
       );
     } else {
       const method = opt.biasReduction ? "bias reduction (Firth)" : "penalty";
       diagnostics.push(
-        diag("SEPARATION_HANDLED", "note", { columns: listNames(colNames), count: rows.length, rows: example, method }, { columns: colNames, rows }),
+        fitDiagnostic("SEPARATION_HANDLED", { columns: listNames(colNames), count: rows.length, rows: example, method }, { columns: colNames, rows }),
       );
     }
   }
@@ -629,7 +619,7 @@ export function fitBinaryModel(
 
   if (!fit.converged && !separatedUnusable) {
     const change = Number.isFinite(fit.lastChange) ? fit.lastChange.toPrecision(3) : "not available: the information matrix became singular";
-    diagnostics.push(diag("NOT_CONVERGED", "warning", { iterations: fit.iterations, change }));
+    diagnostics.push(fitDiagnostic("NOT_CONVERGED", { iterations: fit.iterations, change }));
   }
 
   // ---- back to the original scale ----------------------------------------------------------
@@ -663,7 +653,7 @@ export function fitBinaryModel(
     .filter((j, t) => (!Number.isFinite(coefK[t]) && !Number.isNaN(coefK[t])) || (covK !== null && covK[t * k + t] === Infinity))
     .map((j) => terms[j]);
   if (overflowTerms.length > 0) {
-    diagnostics.push(diag("COEFFICIENT_OVERFLOW", "error", { columns: listNames(overflowTerms) }, { columns: overflowTerms }));
+    diagnostics.push(fitDiagnostic("COEFFICIENT_OVERFLOW", { columns: listNames(overflowTerms) }, { columns: overflowTerms }));
   }
   const unusable = separatedUnusable || overflowTerms.length > 0;
   const coefficients = new Float64Array(p).fill(NaN);
@@ -681,7 +671,7 @@ export function fitBinaryModel(
   // ---- likelihood summaries ----------------------------------------------------------------
   const logLikelihood = fit.logLikelihood + logBinom;
   // An offset or value so extreme that an observed row gets probability 0 leaves no usable fit.
-  if (!Number.isFinite(logLikelihood) && !separatedUnusable) diagnostics.push(diag("LIKELIHOOD_NOT_FINITE", "error", {}));
+  if (!Number.isFinite(logLikelihood) && !separatedUnusable) diagnostics.push(fitDiagnostic("LIKELIHOOD_NOT_FINITE", {}));
   const nullFit = nullModel(data, opt.intercept, opt.maxIterations);
   const nullLogLikelihood = nullFit.logLikelihood + logBinom;
   const deviance = 2 * (saturated - fit.logLikelihood);
@@ -695,7 +685,7 @@ export function fitBinaryModel(
     // the Jacobian of the parametrization cancels and the statistic does not depend on units.
     const free = new Uint8Array(k);
     if (interceptIndex === 0) free[0] = 1;
-    const nullFirth = newtonLogistic(withChanges(problemK, { keepHistory: false, free, start: null }));
+    const nullFirth = fitBinomial({ ...problemK, keepHistory: false, free, start: null });
     const statistic = 2 * (nullFirth.objective - fit.objective);
     lrTest = { statistic, df, p: df > 0 ? chiSquareSurvival(Math.max(statistic, 0), df) : NaN };
   }
@@ -708,7 +698,7 @@ export function fitBinaryModel(
   let intervals: Interval[] | null = null;
   if (opt.intervalMethod === "profile" && !unusable) {
     if (penalized) {
-      diagnostics.push(diag("PROFILE_NOT_AVAILABLE", "note", { reason: "penalized (ridge) fits", shown: "no intervals" }));
+      diagnostics.push(fitDiagnostic("PROFILE_NOT_AVAILABLE", { reason: "penalized (ridge) fits", shown: "no intervals" }));
     } else if (covK) {
       const seK = new Float64Array(k);
       for (let t = 0; t < k; t++) seK[t] = Math.sqrt(covK[t * k + t]);
@@ -735,7 +725,7 @@ export function fitBinaryModel(
         intervals[kept[t]] = { lower: prof[t].lower, upper: prof[t].upper };
         for (const side of prof[t].open) {
           diagnostics.push(
-            diag("PROFILE_INTERVAL_OPEN", "warning", { term: terms[kept[t]], side, limit: `${PROFILE_SEARCH_LIMIT} Wald half-widths of the estimate` }, { columns: [terms[kept[t]]] }),
+            fitDiagnostic("PROFILE_INTERVAL_OPEN", { term: terms[kept[t]], side, limit: `${PROFILE_SEARCH_LIMIT} Wald half-widths of the estimate` }, { columns: [terms[kept[t]]] }),
           );
         }
       }
@@ -776,34 +766,13 @@ export function fitBinaryModel(
   };
 }
 
-/** Designs with at least this many rows look for mostly-zero columns (see sparseRowLists). */
-export const SPARSE_MIN_ROWS = 10000;
-/** A column counts as mostly zero when at most this share of its rows is non-zero. */
-export const SPARSE_MAX_SHARE = 0.1;
+/** Designs with at least this many rows look for mostly-zero columns (see kernels/sparse.ts). */
+export { SPARSE_MIN_ROWS } from "./kernels";
 
-/**
- * For each design column (intercept first when present, never sparse): the rows where it is
- * non-zero when that is at most SPARSE_MAX_SHARE of the rows, else null; null overall for small
- * designs or when no column qualifies. Indicator columns of a text predictor's levels are the
- * typical case: the information matrix then costs about (non-zero entries) x (columns) instead
- * of rows x columns^2 / 2 (see NewtonProblem.sparseRows).
- */
-function sparseRowLists(columns: readonly Float64Array[], n: number, intercept: boolean): (Int32Array | null)[] | null {
-  if (n < SPARSE_MIN_ROWS) return null;
-  const limit = Math.floor(SPARSE_MAX_SHARE * n);
-  let any = false;
-  const lists = columns.map((x, j) => {
-    if (intercept && j === 0) return null;
-    let count = 0;
-    for (let i = 0; i < n && count <= limit; i++) if (x[i] !== 0) count++;
-    if (count > limit) return null;
-    const rows = new Int32Array(count);
-    let r = 0;
-    for (let i = 0; i < n; i++) if (x[i] !== 0) rows[r++] = i;
-    any = true;
-    return rows;
-  });
-  return any ? lists : null;
+/** Z' diag(a) Z of a design, from its kernel. */
+function designGram(design: KernelDesign, a: Float64Array): Float64Array {
+  const p = design.columns.length;
+  return createKernel(design, 1).gram(a, new Float64Array(p * p));
 }
 
 /** Rows from which the fit starts from a subsample fit (below it a fit from the usual start is quick). */
@@ -845,7 +814,7 @@ function pickRows(src: Float64Array, stride: number): Float64Array {
  * with ALIAS_TOLERANCE) keeps every column (see subsampleProvesFullRank), so that large fits skip
  * that full pass; P enters with the subsample's share of it, which keeps the full matrix dominant.
  */
-function subsampleRankBound(design: BlockDesign, a: Float64Array, penalty: Float64Array, fullDiagonal: Float64Array): boolean {
+function subsampleRankBound(design: KernelDesign, a: Float64Array, penalty: Float64Array, fullDiagonal: Float64Array): boolean {
   const n = design.rows;
   const p = design.columns.length;
   const stride = subsampleStride(n, p);
@@ -854,8 +823,7 @@ function subsampleRankBound(design: BlockDesign, a: Float64Array, penalty: Float
   for (let j = 0; j < p; j++) columns.push(pickRows(design.columns[j], stride));
   const subA = pickRows(a, stride);
   const m = subA.length;
-  const sub: BlockDesign = { rows: m, columns, centre: design.centre, scale: design.scale, sparseRows: design.sparseRows ? sparseRowLists(columns, m, false) : null };
-  const gram = problemGram(sub, subA);
+  const gram = designGram({ rows: m, columns, centre: design.centre, scale: design.scale }, subA);
   for (let j = 0; j < p; j++) gram[j * p + j] += penalty[j] * (m / n);
   return subsampleProvesFullRank(gram, p, fullDiagonal, ALIAS_TOLERANCE);
 }
@@ -869,7 +837,7 @@ function subsampleRankBound(design: BlockDesign, a: Float64Array, penalty: Float
  * separation): the fit then starts as usual. The subsample fit only chooses where the full
  * Newton-Raphson iterations begin; the estimate and covariance are those of the full data.
  */
-function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; information: Float64Array } | null {
+function subsampleWarmStart(prob: BinomialProblem): { start: Float64Array; information: Float64Array } | null {
   const n = prob.rows;
   const stride = subsampleStride(n, prob.columns.length);
   if (stride === 0) return null;
@@ -889,7 +857,8 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
   const fraction = part / total;
   const columns: Float64Array[] = [];
   for (let j = 0; j < prob.columns.length; j++) columns.push(pickRows(prob.columns[j], stride));
-  const sub = newtonLogistic(withChanges(prob, {
+  const sub = fitBinomial({
+    ...prob,
     rows: m,
     columns,
     successes,
@@ -899,11 +868,9 @@ function subsampleWarmStart(prob: NewtonProblem): { start: Float64Array; informa
     penalty: scaledCopy(prob.penalty, fraction),
     tolerance: Math.max(prob.tolerance, WARM_START_TOLERANCE),
     keepHistory: false,
-    unitGram: null,
     start: null,
     startInformation: null,
-    sparseRows: prob.sparseRows ? sparseRowLists(columns, m, false) : null,
-  }));
+  });
   if (!sub.converged || sub.singular || !sub.coefficients.every(Number.isFinite)) return null;
   for (let r = 0; r < m; r++) if (Math.abs(sub.eta[r]) > WARM_START_MAX_ETA) return null;
   return { start: sub.coefficients, information: scaledCopy(sub.information, 1 / fraction) };
@@ -923,7 +890,7 @@ function scaledCopy(x: Float64Array, v: number): Float64Array {
 function nullModel(d: FitData, intercept: boolean, maxIterations: number): { logLikelihood: number } {
   const n = d.rows;
   if (!intercept) {
-    const r = newtonLogistic({
+    const r = fitBinomial({
       rows: n,
       columns: [],
       successes: d.successes,
@@ -951,7 +918,7 @@ function nullModel(d: FitData, intercept: boolean, maxIterations: number): { log
     const ll = (sy > 0 ? sy * Math.log(rate) : 0) + (st - sy > 0 ? (st - sy) * Math.log1p(-rate) : 0);
     return { logLikelihood: ll };
   }
-  const r: NewtonResult = newtonLogistic({
+  const r = fitBinomial({
     rows: n,
     columns: [new Float64Array(n).fill(1)],
     successes: d.successes,

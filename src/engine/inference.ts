@@ -10,7 +10,7 @@
  */
 
 import { chiSquareSurvival, criticalZ, twoSidedPFromZ } from "./distributions";
-import { formatMessage } from "./messages";
+import { fitDiagnostic } from "./messages";
 import type { CoefficientRow, Diagnostic, LikelihoodRatioTest } from "./types";
 
 /** Name of the intercept term in every table (a label, not a method). */
@@ -169,11 +169,7 @@ export function informationCriteria(logLikelihood: number, parameters: number, o
  * p-values (Hastie, Tibshirani & Friedman, The Elements of Statistical Learning, 2nd ed., ch. 3).
  */
 export function penalizedNote(penalty: number): Diagnostic {
-  return {
-    code: "PENALIZED_NO_P_VALUES",
-    severity: "note",
-    message: formatMessage("PENALIZED_NO_P_VALUES", { penalty }),
-  };
+  return fitDiagnostic("PENALIZED_NO_P_VALUES", { penalty });
 }
 
 /** Standard errors sqrt(diag V) of a row-major m*m covariance (NaN for negative variances); Agresti (2013), ch. 4. */

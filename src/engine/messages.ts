@@ -729,3 +729,46 @@ export function exampleRows(rows: readonly number[], show: (row: number) => numb
   const shown = rows.slice(0, EXAMPLE_ROWS).map(show).join(", ");
   return rows.length > EXAMPLE_ROWS ? `${shown}, ...` : shown;
 }
+
+/**
+ * The one severity policy of the fits' diagnostics (binary and multi-class alike): "error" when
+ * no usable estimate is left (the numbers are NaN), "warning" when an estimate is given but
+ * qualified, "note" for information about how it was made. A fit that stops at the iteration cap
+ * keeps its last estimate with a NOT_CONVERGED warning (as R's glm does), and rows skipped for a
+ * missing value are a ROWS_SKIPPED warning in every fit.
+ * Common practice (R's glm warns and keeps the estimate when it does not converge).
+ */
+export const DIAGNOSTIC_SEVERITY = {
+  NO_USABLE_ROWS: "error",
+  ONE_CLASS_ONLY: "error",
+  EMPTY_CLASS: "error",
+  TOO_FEW_ROWS: "error",
+  SEPARATION_COMPLETE: "error",
+  SEPARATION_QUASI: "error",
+  CLASSES_SEPARATED: "error",
+  COEFFICIENT_OVERFLOW: "error",
+  LIKELIHOOD_NOT_FINITE: "error",
+  NOT_CONVERGED: "warning",
+  ROWS_SKIPPED: "warning",
+  ALIASED_COLUMNS: "warning",
+  PROFILE_INTERVAL_OPEN: "warning",
+  SEPARATION_HANDLED: "note",
+  PENALIZED_NO_P_VALUES: "note",
+  PROFILE_NOT_AVAILABLE: "note",
+} as const satisfies Partial<Record<MessageCode, "error" | "warning" | "note">>;
+
+/** A code that a fit reports as a diagnostic (see DIAGNOSTIC_SEVERITY). */
+export type FitDiagnosticCode = keyof typeof DIAGNOSTIC_SEVERITY;
+
+/**
+ * A fit's diagnostic: the code, its severity from DIAGNOSTIC_SEVERITY, the filled message and
+ * its parameters, plus `extra` (columns, rows).
+ * Common practice (diagnostics carried in the result rather than logged).
+ */
+export function fitDiagnostic(
+  code: FitDiagnosticCode,
+  params: Record<string, unknown>,
+  extra: { columns?: string[]; rows?: number[] } = {},
+): { code: FitDiagnosticCode; severity: (typeof DIAGNOSTIC_SEVERITY)[FitDiagnosticCode]; message: string; params: Record<string, unknown>; columns?: string[]; rows?: number[] } {
+  return { code, severity: DIAGNOSTIC_SEVERITY[code], message: formatMessage(code, params), params, ...extra };
+}

@@ -75,7 +75,7 @@ import {
 } from "./linalg";
 import { accumulateCrossProducts, accumulateWeightedGrams } from "./blockAccumulate";
 import { wasmKernels } from "./kernels/wasmKernels";
-import { exampleRows, formatMessage, listNames, problem } from "./messages";
+import { exampleRows, fitDiagnostic, listNames, problem } from "./messages";
 import type { Diagnostic, DesignMatrix, ModelFit, MulticlassFitOptions } from "./types";
 
 /** Defaults of {@link fitMulticlassModel}. */
@@ -233,11 +233,7 @@ export function fitMulticlassModel(
 
   const diagnostics: Diagnostic[] = [];
   if (skipped > 0) {
-    diagnostics.push({
-      code: "ROWS_SKIPPED",
-      severity: "note",
-      message: formatMessage("ROWS_SKIPPED", { count: skipped, detail: missingDetail }),
-    });
+    diagnostics.push(fitDiagnostic("ROWS_SKIPPED", { count: skipped, detail: missingDetail }));
   }
 
   // ---- classes present -------------------------------------------------------------------------
@@ -279,18 +275,14 @@ export function fitMulticlassModel(
   const empty = classes.filter((_, k) => classWeight[k] === 0);
   if (empty.length > 0) {
     for (const label of empty) {
-      diagnostics.push({ code: "EMPTY_CLASS", severity: "error", message: formatMessage("EMPTY_CLASS", { label }) });
+      diagnostics.push(fitDiagnostic("EMPTY_CLASS", { label }));
     }
     return failedFit(shell, new Array(pFull).fill(false), diagnostics, 0, false);
   }
 
   // Policy: without a penalty, fewer usable rows than coefficients per equation cannot be estimated.
   if (!penalized && used.length < pFull) {
-    diagnostics.push({
-      code: "TOO_FEW_ROWS",
-      severity: "error",
-      message: formatMessage("TOO_FEW_ROWS", { rows: used.length, parameters: pFull }),
-    });
+    diagnostics.push(fitDiagnostic("TOO_FEW_ROWS", { rows: used.length, parameters: pFull }));
     return failedFit(shell, new Array(pFull).fill(false), diagnostics, 0, false);
   }
 
@@ -312,20 +304,11 @@ export function fitMulticlassModel(
   }
   const aliasedNames = terms.filter((_, t) => aliased[t]);
   if (aliasedNames.length > 0) {
-    diagnostics.push({
-      code: "ALIASED_COLUMNS",
-      severity: "warning",
-      message: formatMessage("ALIASED_COLUMNS", { columns: listNames(aliasedNames) }),
-      columns: aliasedNames,
-    });
+    diagnostics.push(fitDiagnostic("ALIASED_COLUMNS", { columns: listNames(aliasedNames) }, { columns: aliasedNames }));
   }
   if (prep.z.length === 0) {
     // Nothing to estimate (no intercept and every column aliased): the model is p_k = 1/K.
-    diagnostics.push({
-      code: "TOO_FEW_ROWS",
-      severity: "error",
-      message: formatMessage("TOO_FEW_ROWS", { rows: used.length, parameters: 0 }),
-    });
+    diagnostics.push(fitDiagnostic("TOO_FEW_ROWS", { rows: used.length, parameters: 0 }));
     return failedFit(shell, aliased, diagnostics, 0, false);
   }
 
@@ -344,16 +327,15 @@ export function fitMulticlassModel(
       }
     }
   }
-  if (!newton.converged || !Number.isFinite(newton.logLik)) {
-    diagnostics.push({
-      code: "NOT_CONVERGED",
-      severity: "error",
-      message: formatMessage("NOT_CONVERGED", {
-        iterations: newton.iterations,
-        change: Number.isFinite(newton.lastChange) ? newton.lastChange.toPrecision(3) : "not available",
-      }),
-    });
+  // An estimate whose likelihood is not finite is no estimate; one stopped at the iteration cap is
+  // kept with a warning (the severity policy in messages.ts, as in the binary fit).
+  if (!Number.isFinite(newton.logLik)) {
+    diagnostics.push(fitDiagnostic("LIKELIHOOD_NOT_FINITE", {}));
     return failedFit(shell, aliased, diagnostics, newton.iterations, false);
+  }
+  if (!newton.converged) {
+    const change = Number.isFinite(newton.lastChange) ? newton.lastChange.toPrecision(3) : "not available";
+    diagnostics.push(fitDiagnostic("NOT_CONVERGED", { iterations: newton.iterations, change }));
   }
 
   // ---- back to the original scale ------------------------------------------------------------------
@@ -404,7 +386,7 @@ export function fitMulticlassModel(
     rowsUsed: used.length,
     observations,
     iterations: newton.iterations,
-    converged: true,
+    converged: newton.converged,
     diagnostics,
   };
 }
@@ -1063,7 +1045,7 @@ function runNewton(
   const M = E * q;
   const d = prep.penaltyWeight;
   // Convergence floor (0.1 in glm.fit) in units of the mean case weight, so that rescaling every
-  // weight changes nothing (the binary fit's rule, logisticNewton.ts).
+  // weight changes nothing (the binary fit's rule, glm/newton.ts).
   let weightSum = 0;
   for (let i = 0; i < prep.n; i++) weightSum += prep.w[i];
   const floor = 0.1 * (prep.n > 0 && weightSum > 0 ? weightSum / prep.n : 1);
@@ -1438,14 +1420,7 @@ function findSeparation(
     count: namedRows.length,
     rows: exampleRows(namedRows),
   };
-  return {
-    code: "CLASSES_SEPARATED",
-    severity: "error",
-    message: formatMessage("CLASSES_SEPARATED", params),
-    params,
-    columns,
-    rows: namedRows,
-  };
+  return fitDiagnostic("CLASSES_SEPARATED", params, { columns, rows: namedRows });
 }
 
 function joinParts(parts: string[]): string {

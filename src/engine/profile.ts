@@ -15,7 +15,7 @@
 
 import { criticalZ } from "./distributions";
 import type { Interval } from "./inference";
-import { newtonLogistic, withChanges, type NewtonProblem } from "./logisticNewton";
+import { fitBinomial, type BinomialProblem } from "./glm/binomialFit";
 
 /** Data of the fitted model on the original scale (rows already screened, zero weights removed). */
 export interface ProfileData {
@@ -94,7 +94,7 @@ export function profileIntervals(data: ProfileData, level: number): ProfileInter
     const withIntercept = data.intercept && !isIntercept;
     const prep = prepare(isIntercept ? data.columns : others, withIntercept, n, a);
     const offset = new Float64Array(n);
-    const problem: NewtonProblem = {
+    const problem: BinomialProblem = {
       rows: n,
       columns: prep.z,
       successes: data.successes,
@@ -130,7 +130,7 @@ export function profileIntervals(data: ProfileData, level: number): ProfileInter
     const signedRoot = (c: number): number => {
       for (let i = 0; i < n; i++) offset[i] = data.offset[i] + c * xj[i];
       problem.start = warm;
-      const r = newtonLogistic(problem);
+      const r = fitBinomial(problem);
       if (r.converged && !r.singular) warm = Float64Array.from(r.coefficients);
       const dev = 2 * (data.logLikelihood - r.logLikelihood);
       const root = Math.sqrt(Math.max(0, dev));
@@ -238,7 +238,7 @@ export function firthProfileIntervals(data: ProfileData, level: number): Profile
   }
   // gamma_t = b_t * scale_t in these coordinates.
   const gammaHat = Float64Array.from(data.estimate, (b, t) => b * scale[t]);
-  const problem: NewtonProblem = {
+  const problem: BinomialProblem = {
     rows: n,
     columns,
     successes: data.successes,
@@ -251,7 +251,7 @@ export function firthProfileIntervals(data: ProfileData, level: number): Profile
     tolerance: Math.min(data.tolerance, 1e-12),
     start: gammaHat,
   };
-  const best = newtonLogistic(problem);
+  const best = fitBinomial(problem);
   const fMin = best.objective;
   const out: ProfileInterval[] = [];
   const free = new Uint8Array(p);
@@ -263,7 +263,7 @@ export function firthProfileIntervals(data: ProfileData, level: number): Profile
     const signedRoot = (c: number): number => {
       const start = Float64Array.from(warm);
       start[j] = c * scale[j];
-      const r = newtonLogistic(withChanges(problem, { start, free }));
+      const r = fitBinomial({ ...problem, start, free });
       if (r.converged && !r.singular) warm = Float64Array.from(r.coefficients);
       const root = Math.sqrt(Math.max(0, 2 * (r.objective - fMin)));
       return c >= bHat ? root : -root;

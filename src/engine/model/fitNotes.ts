@@ -12,7 +12,7 @@
  */
 import { skippedDetail, type BuiltDesign } from "../data/design";
 import { rangeRow, type Table } from "../data/table";
-import { exampleRows, formatMessage, type MessageCode } from "../messages";
+import { exampleRows, fitDiagnostic, formatMessage, type MessageCode } from "../messages";
 import type { Diagnostic, ModelFit } from "../types";
 
 /** Largest rows x terms^3 for which profile-likelihood intervals are computed; see the policy above. */
@@ -50,13 +50,11 @@ function mapDiagnosticRows(fit: ModelFit, inputRows: Int32Array, predictors: Tab
 /** Skipped rows are a warning carried in the result, counted per column. */
 function skippedWarning(built: BuiltDesign): Diagnostic | null {
   if (built.skipped.total === 0) return null;
-  return {
-    code: "ROWS_SKIPPED",
-    severity: "warning",
-    message: formatMessage("ROWS_SKIPPED", { count: built.skipped.total, detail: skippedDetail(built.skipped) }),
-    columns: built.skipped.perColumn.map((c) => c.column),
-    rows: built.skipped.rows.slice(),
-  };
+  return fitDiagnostic(
+    "ROWS_SKIPPED",
+    { count: built.skipped.total, detail: skippedDetail(built.skipped) },
+    { columns: built.skipped.perColumn.map((c) => c.column), rows: built.skipped.rows.slice() },
+  );
 }
 
 /**

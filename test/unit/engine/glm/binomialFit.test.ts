@@ -1,7 +1,7 @@
-import { fitBinaryModel } from "../../../src/engine/binary";
-import { newtonLogistic, type NewtonProblem } from "../../../src/engine/logisticNewton";
-import { logSigmoid } from "../../../src/engine/numerics";
-import { expectClose, loadFixture } from "./binaryHelpers";
+import { fitBinaryModel } from "../../../../src/engine/binary";
+import { fitBinomial, type BinomialProblem } from "../../../../src/engine/glm/binomialFit";
+import { logSigmoid } from "../../../../src/engine/numerics";
+import { expectClose, loadFixture } from "../binaryHelpers";
 
 /** R glm (epsilon 1e-14) vs our loop on raw (unscaled) columns: condition number ~1e3 only. */
 const R_TOL = 1e-8;
@@ -13,7 +13,7 @@ const ones = new Float64Array(n).fill(1);
 const cols = [ones, ...["GPA", "TUCE", "PSI"].map((k) => Float64Array.from(spector.data[k]))];
 const y = Float64Array.from(spector.data.GRADE);
 
-function problem(extra: Partial<NewtonProblem> = {}): NewtonProblem {
+function problem(extra: Partial<BinomialProblem> = {}): BinomialProblem {
   return {
     rows: n,
     columns: cols,
@@ -41,7 +41,7 @@ function negLogLik(g: Float64Array): number {
 
 describe("Newton-Raphson core", () => {
   test("from the default start it reaches R's glm estimate in a handful of iterations without halving", () => {
-    const r = newtonLogistic(problem());
+    const r = fitBinomial(problem());
     expect(r.converged).toBe(true);
     expect(r.iterations).toBeLessThan(10);
     expect(r.halvings).toBe(0);
@@ -49,7 +49,7 @@ describe("Newton-Raphson core", () => {
   });
 
   test("from a far start a full Newton step overshoots: step halving keeps every accepted step downhill", () => {
-    const r = newtonLogistic(problem({ start: Float64Array.of(8, -3, 0.5, -4), keepHistory: true }));
+    const r = fitBinomial(problem({ start: Float64Array.of(8, -3, 0.5, -4), keepHistory: true }));
     expect(r.halvings).toBeGreaterThan(0);
     expect(r.converged).toBe(true);
     expectClose(r.coefficients, ref.spector.coefficients, R_TOL, "coef");
@@ -62,27 +62,27 @@ describe("Newton-Raphson core", () => {
   });
 
   test("the convergence rule |D - D_old| / (0.1 + |D|) < tol stops earlier for a looser tol", () => {
-    const tight = newtonLogistic(problem({ tolerance: 1e-14 }));
-    const loose = newtonLogistic(problem({ tolerance: 1e-3 }));
+    const tight = fitBinomial(problem({ tolerance: 1e-14 }));
+    const loose = fitBinomial(problem({ tolerance: 1e-3 }));
     expect(loose.iterations).toBeLessThan(tight.iterations);
     expect(loose.lastChange).toBeLessThan(1e-3);
   });
 
   test("the iteration cap is respected and reported as not converged", () => {
-    const r = newtonLogistic(problem({ maxIterations: 1 }));
+    const r = fitBinomial(problem({ maxIterations: 1 }));
     expect(r.iterations).toBe(1);
     expect(r.converged).toBe(false);
   });
 
   test("held (not free) coefficients stay at their start values", () => {
-    const r = newtonLogistic(problem({ free: Uint8Array.of(1, 1, 0, 1), start: Float64Array.of(0, 0, 0.25, 0) }));
+    const r = fitBinomial(problem({ free: Uint8Array.of(1, 1, 0, 1), start: Float64Array.of(0, 0, 0.25, 0) }));
     expect(r.coefficients[2]).toBe(0.25);
     expect(r.converged).toBe(true);
   });
 
   test("a singular information matrix ends the loop with singular = true instead of throwing", () => {
     const dup = [ones, cols[1], cols[1]];
-    const r = newtonLogistic(problem({ columns: dup, penalty: new Float64Array(3) }));
+    const r = fitBinomial(problem({ columns: dup, penalty: new Float64Array(3) }));
     expect(r.singular).toBe(true);
     expect(r.converged).toBe(false);
   });
