@@ -90,6 +90,7 @@ export function fitBinomial(p: BinomialProblem): BinomialOutcome {
     family,
     start: p.start ? Float64Array.from(p.start) : defaultStart(p),
     penalty: p.penalty,
+    sumPenalty: null,
     free: p.free ?? null,
     hook: p.firth ? new FirthPenalty(fittingColumns(design), family) : null,
     startInformation: p.startInformation ?? null,
@@ -97,6 +98,7 @@ export function fitBinomial(p: BinomialProblem): BinomialOutcome {
     tolerance: p.tolerance,
     floor: 0.1 * (p.rows > 0 && weightSum > 0 ? weightSum / p.rows : 1),
     keepHistory: p.keepHistory ?? false,
+    passEconomy: false,
   });
   return { ...outcome, coefficients: outcome.theta, eta: family.eta, mu: family.mu };
 }
