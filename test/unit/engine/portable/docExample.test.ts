@@ -23,5 +23,5 @@ test("the example JSON reads back and scores the crate of weight 130, grade C as
   expect(stated).toBeGreaterThan(0);
   expect(Math.abs(s.prediction.probabilities[1][0] - stated)).toBeLessThanOrEqual(PRINTED_DIGITS);
   const eta = Number(/= (0\.6421317418052488)\n/.exec(page)?.[1]);
-  expect(Math.abs(s.prediction.linearPredictor[0] - eta)).toBeLessThanOrEqual(PRINTED_DIGITS);
+  expect(Math.abs((s.prediction.linearPredictor as Float64Array)[0] - eta)).toBeLessThanOrEqual(PRINTED_DIGITS);
 });
