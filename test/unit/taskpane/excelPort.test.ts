@@ -19,6 +19,7 @@ interface Created {
 function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1", fills: Record<string, string> = {}) {
   const created: Created[] = [];
   const added: string[] = [];
+  const addedSheets: Record<string, unknown>[] = [];
   const events: { sheet: string; handler: () => Promise<void> }[] = [];
   const loads: string[] = [];
   let counter = 0;
@@ -104,6 +105,10 @@ function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1", fills: Re
           },
           add: function (name: string) {
             added.push(name);
+            // The new sheet, recording what the port sets on it (its visibility).
+            const sheet: Record<string, unknown> = { name };
+            addedSheets.push(sheet);
+            return sheet;
           },
         },
         getSelectedRange: function () {
@@ -142,7 +147,7 @@ function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1", fills: Re
     });
     sheetMocks[sheet] = ws;
   }
-  return { root, created, added, events, loads, fills, run: (batch: any) => root.run(batch) };
+  return { root, created, added, addedSheets, events, loads, fills, run: (batch: any) => root.run(batch) };
 }
 
 /** A 12 x 3 grid: header row, then numbers with a blank at row 5, column B. */
@@ -359,5 +364,36 @@ describe("ExcelPort highlighting, selection and events", () => {
     expect(excel.events.map((e) => e.sheet)).toEqual(["Data"]);
     await excel.events[0].handler();
     expect(calls).toBe(1);
+  });
+});
+
+describe("ExcelPort keeping text (the kept model)", () => {
+  test("ensureHiddenSheet adds the sheet hidden when it is missing and leaves an existing one alone", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const port = new ExcelPort({}, excel.run);
+    expect(await port.ensureHiddenSheet("OddsmithModels")).toBe(true);
+    expect(excel.added).toEqual(["OddsmithModels"]);
+    expect(excel.addedSheets[0].visibility).toBe("Hidden");
+    expect(await port.ensureHiddenSheet("Data")).toBe(false);
+    expect(excel.added).toEqual(["OddsmithModels"]);
+  });
+
+  test("writeText formats every cell as text before setting it, and splits a long row into requests", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const port = new ExcelPort({}, excel.run);
+    const part = "x".repeat(30_000);
+    // Header + 40 parts of 30,000 characters: 1,200,000 characters, more than one request carries.
+    const row = ["oddsmith-model 1.0; ...", ...Array.from({ length: 40 }, (_, k) => `part ${k + 1}/40:${part}`), "=looks like a formula"];
+    await port.writeText("Data", "A2", [row]);
+    const writes = excel.created.filter((c) => c.range.values !== undefined && c.range.numberFormat !== undefined && Array.isArray(c.range.numberFormat));
+    expect(writes.length).toBe(2);
+    expect(writes.map((w) => w.address)).toEqual(["A2:AH2", "AI2:AP2"]);
+    for (const w of writes) {
+      expect((w.range.numberFormat as string[][])[0].every((f) => f === "@")).toBe(true);
+      const chars = (w.range.values as string[][])[0].reduce((n, v) => n + v.length, 0);
+      expect(chars).toBeLessThanOrEqual(1_000_000);
+    }
+    const written = writes.flatMap((w) => (w.range.values as string[][])[0]);
+    expect(written).toEqual(row);
   });
 });
