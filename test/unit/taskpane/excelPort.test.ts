@@ -7,6 +7,9 @@ import { OfficeMockObject } from "office-addin-mock";
 
 import { columnNumber, parseAddress, rectAddress } from "../../../src/taskpane/a1";
 import { ExcelPort, OUR_FILL, rowRuns, type TransferProgress } from "../../../src/taskpane/excelPort";
+import { scoreRows, trainModel } from "../../../src/engine";
+import { keptCell } from "../../../src/functions/keptCell";
+import { keepInWorkbook, paneDescription } from "../../../src/taskpane/portableModel";
 
 type Grid = (string | number | boolean)[][];
 
@@ -395,5 +398,31 @@ describe("ExcelPort keeping text (the kept model)", () => {
     }
     const written = writes.flatMap((w) => (w.range.values as string[][])[0]);
     expect(written).toEqual(row);
+  });
+});
+
+/** The brief's agreement for a model read back from its kept cells (JSON keeps doubles: 0 expected). */
+const KEPT_ROUND_TRIP = 1e-12;
+
+describe("ExcelPort: a kept model written through the Excel API reads back with ODDS.KEPT", () => {
+  test("the cells the port writes for a kept model, read back as Excel returns them, score as the fitted model to 1e-12", async () => {
+    const grid = sampleGrid();
+    const labels = grid.map((r) => [r[2]]);
+    const predictors = grid.map((r) => [r[0], r[1] === "" ? null : r[1]]);
+    // Weight and moisture against the yes/no flag (row 5's blank moisture is skipped in the fit).
+    const model = trainModel(labels, predictors, { penalty: 0.5 });
+    const excel = mockExcel({ Data: grid, OddsmithModels: [] });
+    const place = await keepInWorkbook(new ExcelPort({}, excel.run), paneDescription(model, "flag model", "2026-12-05T13:00:00Z"));
+    expect(place).toMatchObject({ row: 2, reference: "OddsmithModels!2:2" });
+    const writes = excel.created.filter((c) => Array.isArray(c.range.numberFormat) && c.range.values !== undefined);
+    const row = writes.flatMap((w) => (w.range.values as string[][])[0]);
+    expect(writes.every((w) => (w.range.numberFormat as string[][])[0].every((f) => f === "@"))).toBe(true);
+    expect(row.length).toBe(place.parts + 1);
+    const scored = keptCell([row], predictors, null);
+    const p = scoreRows(model, predictors).prediction.probabilities[1];
+    for (let i = 0; i < p.length; i++) {
+      if (Number.isNaN(p[i])) expect(scored[i + 1][0]).toBe("");
+      else expect(Math.abs((scored[i + 1][0] as number) - p[i])).toBeLessThanOrEqual(KEPT_ROUND_TRIP);
+    }
   });
 });
