@@ -75,6 +75,12 @@ export const CELL_MESSAGES = {
     template:
       "Every row has the label \"{label}\", and nothing says which class the probabilities are for. Name the class in the probabilities' header row (e.g. \"P({label})\"), or set the positive option.",
   },
+  METRIC_HEADERS_DISAGREE: {
+    cellError: "#VALUE!",
+    title: "Header rows of labels and probabilities disagree",
+    template:
+      "The first row of {other} looks like {otherLooks}, but the first row of {decided} looks like {decidedLooks}. Reading both as {decision} would drop or invent a row of the metric. Select both ranges with their header rows (or both without), or set headers=yes or headers=no.",
+  },
   // ---- evaluation functions (ODDS.FOLDS, ODDS.HOLDOUT) ---------------------------------------
   EVALUATION_SCOPE: {
     cellError: "#N/A",
