@@ -66,6 +66,29 @@ export function agreeHeaders(ranges: RangeArg[], headers: "auto" | "yes" | "no")
 }
 
 /**
+ * Problems a first row read the wrong way can cause: a name read as a value (text in a numeric
+ * column, an extra class or category, a bad probability, weight or count) or a value read as a name
+ * (ranges one row apart, a class or column not found). Shape problems of their own (two weight
+ * columns) get no hint.
+ */
+const HEADER_SENSITIVE = new Set([
+  "NOT_A_NUMBER",
+  "RANGE_SHAPE_MISMATCH",
+  "TOO_MANY_CLASSES",
+  "TOO_MANY_LABELS",
+  "ONE_CLASS_ONLY",
+  "CLASS_NOT_FOUND",
+  "COLUMN_NOT_FOUND",
+  "LEVEL_NOT_FOUND",
+  "BAD_WEIGHT",
+  "BAD_TRIALS",
+  "BAD_PROBABILITY",
+  "PROBABILITY_COLUMN_COUNT",
+  "PROBABILITY_COLUMN_MISSING",
+  "METRIC_MISSING_VALUE",
+]);
+
+/**
  * Run `body` (reading ranges under one header decision); a problem it throws while the ranges' first
  * rows disagreed gets the HEADER_RULE_HINT appended to its message (same code and parameters).
  */
@@ -73,7 +96,7 @@ export function withHeaderHint<T>(agreement: HeaderAgreement, body: () => T): T 
   try {
     return body();
   } catch (error) {
-    if (agreement.disagreement && error instanceof OddsmithError && !error.message.includes("(Header rows:")) {
+    if (agreement.disagreement && error instanceof OddsmithError && HEADER_SENSITIVE.has(error.code) && !error.message.includes("(Header rows:")) {
       error.message += formatMessage("HEADER_RULE_HINT", agreement.disagreement);
     }
     throw error;
