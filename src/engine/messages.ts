@@ -526,7 +526,7 @@ export const ENGINE_MESSAGES = {
     cellError: "#N/A",
     title: "Marginal effects without standard errors",
     template:
-      "The fit has no covariance of its coefficients (a penalized fit), so the marginal effects are shown without standard errors, z, p or intervals.",
+      "The fit has no covariance of its coefficients (a penalized fit, or variances beyond the range of numbers), so the marginal effects are shown without standard errors, z, p or intervals.",
   },
   EFFECTS_NOT_CAUSAL: {
     cellError: "#N/A",

@@ -12,7 +12,8 @@ import { MAX_PARAM_CHARS } from "../../../src/engine/messages";
 import { formatMessage } from "../../../src/shared/messages";
 import { readTable } from "../../../src/engine/data/table";
 import type { CellValue } from "../../../src/engine/types";
-import { firthCaseRanges } from "../../../bench/firthLimit";
+import { FIRTH_CASE, firthCaseRanges } from "../../../bench/firthLimit";
+import rReference from "../../fixtures/binary/extremes.json";
 
 type Range = CellValue[][];
 
@@ -119,6 +120,9 @@ describe("4. Firth's cost is bounded by a work estimate", () => {
   test("FIT firth=true over the limit is FIRTH_TOO_COSTLY; the benchmark's case is accepted by the limit", () => {
     const { labels, predictors } = firthCaseRanges(300, 300);
     expect(failure(() => call("FIT", [labels, predictors, [["firth=true"]]])).code).toBe("FIRTH_TOO_COSTLY");
+    // The benchmark's case (bench/firthLimit.ts: predictors plus the intercept) lies within the limit.
+    expect(() => checkFirthWork(FIRTH_CASE.rows, FIRTH_CASE.predictors + 1)).not.toThrow();
+    expect(FIRTH_CASE.rows * (FIRTH_CASE.predictors + 1) ** 2).toBeLessThanOrEqual(FIRTH_WORK_LIMIT);
   });
 });
 
@@ -139,6 +143,54 @@ describe("5. wrong or blank answers at the ends of the double range", () => {
   test("a binary score whose linear predictor overflows is 1 or 0, not blank", () => {
     const out = call("SCORE", [[["class (positive: y)", "term", "coefficient"], ["y", "(intercept)", 1e308], ["y", "x", 1e308]], [["x"], [1], [-2]]]);
     expect(out).toEqual([["P(y)"], [1], [0]]);
+  });
+});
+
+describe("5. the fit at the ends of the double range, against R (test/fixtures/binary/extremes.R)", () => {
+  const R = rReference;
+  const labels: Range = [["y"], ...R.data.y.map((v) => [v])];
+  const predictors = (f: (x: number, i: number) => number): Range => [["x"], ...R.data.x.map((v, i) => [f(v, i)])];
+  /** R agrees with our ordinary fits to about 1e-10 (DEVELOPERS.md); its JSON keeps 15 digits. */
+  const R_TOL = 1e-9;
+  const rel = (a: unknown, b: number) => Math.abs((a as number) / b - 1);
+  const notes = (table: Range) => table.slice(3).map((r) => String(r[0]));
+
+  test("one outlier at 1e9 (row 20 of 20, label 1): the estimate exists and is the fit of rows 1-19, not separation", () => {
+    const table = call("FIT", [labels, predictors((x, i) => (i === R.outlier.row - 1 ? R.outlier.value : x))]);
+    const ref = R.outlier.first19;
+    // R's own glm does not reach it (not converged, or a lower likelihood): see the fixture's loglikAt.
+    expect(R.outlier.loglikAt.first19).toBeGreaterThan(Math.max(R.outlier.loglikAt.strict, R.outlier.loglikAt.default));
+    for (let t = 0; t < 2; t++) {
+      expect(rel(table[1 + t][2], ref.coefficients[t])).toBeLessThan(R_TOL);
+      expect(rel(table[1 + t][3], ref.standardErrors[t])).toBeLessThan(R_TOL);
+    }
+    expect(notes(table).some((m) => /separated|did not converge/.test(m))).toBe(false);
+  });
+
+  test("a column multiplied by 1e-200: coefficient about 4e200 as R gives it, and the standard error R cannot (its variance overflows)", () => {
+    const table = call("FIT", [labels, predictors((x) => x * R.scaled.factor)]);
+    expect(R.scaled.fit.standardErrors[1]).toBe("Inf");
+    for (let t = 0; t < 2; t++) {
+      expect(rel(table[1 + t][2], R.scaled.fit.coefficients[t])).toBeLessThan(R_TOL);
+      expect(rel(table[1 + t][3], R.scaled.expectedStandardErrors[t])).toBeLessThan(R_TOL);
+      expect(rel(table[1 + t][4], R.plain.z[t])).toBeLessThan(R_TOL);
+    }
+  });
+
+  test.each([
+    ["original", 0],
+    ["original", 1],
+    ["standardized", 0],
+    ["standardized", 1],
+  ] as const)("penalty %s #%d (1e300, 1e305): the intercept kept, the slope of the closed form, converged without warnings", (scale, k) => {
+    const ref = R.ridge[scale][k];
+    const options: Range = [[`penalty=${ref.penalty}; scale=${scale}`]];
+    const table = call("FIT", [labels, predictors((x) => x), options]);
+    expect(rel(table[1][2], ref.intercept)).toBeLessThan(1e-12); // logit(11/20) and a shift of 1e-300
+    expect(rel(table[2][2], ref.slope)).toBeLessThan(1e-12);
+    expect(notes(table).filter((m) => m !== "")).toEqual([expect.stringMatching(/^The fit is penalized/)]);
+    const report = new Map(call("REPORT", [labels, predictors((x) => x), options]).map((r) => [r[0], r[1]]));
+    expect([report.get("converged"), report.get("parameters estimated")]).toEqual([true, 2]);
   });
 });
 
