@@ -100,6 +100,12 @@ export const CELL_MESSAGES = {
     template:
       "The parts of the kept model \"{name}\" hold {got} characters with check {gotCheck}, but its first cell says {characters} characters with check {check}: a part was edited after Oddsmith wrote it. Keep the model again from the Oddsmith pane, or use a downloaded description.",
   },
+  METRIC_HEADERS_DISAGREE: {
+    cellError: "#VALUE!",
+    title: "Header rows of labels and probabilities disagree",
+    template:
+      "The first row of {other} looks like {otherLooks}, but the first row of {decided} looks like {decidedLooks}. Reading both as {decision} would drop or invent a row of the metric. Select both ranges with their header rows (or both without), or set headers=yes or headers=no.",
+  },
   // ---- evaluation functions (ODDS.FOLDS, ODDS.HOLDOUT) ---------------------------------------
   EVALUATION_SCOPE: {
     cellError: "#N/A",
