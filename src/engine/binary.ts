@@ -330,6 +330,12 @@ function columnMoments(x: Float64Array, a: Float64Array, sumA: number, n: number
   return { big, m: m * big, v, ms };
 }
 
+/** Largest fitting value |x - centre| / scale the robust refit allows (its square and sums of them stay finite). */
+const ROBUST_MAX_FITTING_VALUE = 1e100;
+
+/** Above this multiple of the total weight a ridge penalty's share in the rank decision is capped (see its use). */
+const RANK_PENALTY_CAP = 1e12;
+
 /** The one-pass variance is used when sum a (x - x_0)^2 is at most this many times the result (four digits lost at most). */
 const MOMENT_MAX_CANCELLATION = 1e4;
 
@@ -410,6 +416,47 @@ export function fitBinaryModel(
   y: Float64Array,
   options: BinaryFitOptions = {},
   classes: [negative: string, positive: string] = ["0", "1"],
+): ModelFit {
+  const fit = fitInScale(X, y, options, classes, false);
+  // A fit that stalled (separation found from the iterates, or no convergence) may owe it to the
+  // internal scale: one value 1e9 times the others makes every other row's fitting value nearly
+  // constant. Refit once with a robust centre and spread (median and MAD); its answer replaces the
+  // first only when it converges without separation. The estimate does not depend on the
+  // internal scale, so this changes no fit that converges the ordinary way.
+  const stalled = fit.diagnostics.some((d) => d.code === "SEPARATION_QUASI" || d.code === "SEPARATION_COMPLETE" || d.code === "NOT_CONVERGED");
+  if (!stalled || fit.penalized || fit.biasReduced) return fit;
+  const robust = fitInScale(X, y, options, classes, true);
+  const separated = robust.diagnostics.some((d) => d.code.startsWith("SEPARATION_"));
+  const sameTerms = robust.aliased.every((v, j) => v === fit.aliased[j]);
+  return robust.converged && !separated && sameTerms ? robust : fit;
+}
+
+/**
+ * Weighted median and median absolute deviation (times 1.4826, the normal-consistency factor;
+ * Hampel 1974, common practice) of a column over rows of positive weight a; spread 0 when more
+ * than half the weight sits on one value. Sorting costs O(n log n): used only by the refit.
+ */
+function robustCentreSpread(x: Float64Array, a: Float64Array, n: number, sumA: number): { centre: number; spread: number } {
+  const weightedMedian = (v: Float64Array): number => {
+    const order = Array.from({ length: n }, (_, i) => i).sort((i, j) => v[i] - v[j]);
+    let acc = 0;
+    for (const i of order) {
+      acc += a[i];
+      if (acc >= sumA / 2) return v[i];
+    }
+    return v[order[n - 1]];
+  };
+  const centre = weightedMedian(x);
+  const dev = Float64Array.from(x, (v) => Math.abs(v - centre));
+  return { centre, spread: 1.4826 * weightedMedian(dev) };
+}
+
+function fitInScale(
+  X: DesignMatrix,
+  y: Float64Array,
+  options: BinaryFitOptions,
+  classes: [negative: string, positive: string],
+  robust: boolean,
 ): ModelFit {
   const opt = validateOptions(options);
   const data = screen(X, y, options);
@@ -498,6 +545,15 @@ export function fitBinaryModel(
     const s = opt.intercept ? sd[j] : big * Math.sqrt(ms / sumA);
     scale[j] = s > 0 ? s : 1;
     centre[j] = opt.intercept ? m : 0;
+    if (robust) {
+      // The refit's scale (see fitBinaryModel): median and MAD where the MAD is positive.
+      const r = robustCentreSpread(x, a, n, sumA);
+      if (r.spread > 0 && Number.isFinite(r.spread)) {
+        centre[j] = opt.intercept ? r.centre : 0;
+        // No fitting value beyond ROBUST_MAX_FITTING_VALUE, so that no square of one overflows.
+        scale[j] = Math.max(r.spread, big / ROBUST_MAX_FITTING_VALUE, Math.abs(centre[j]) / ROBUST_MAX_FITTING_VALUE);
+      }
+    }
     raw.push(x);
   }
   const off0 = opt.intercept ? 1 : 0;
@@ -516,7 +572,10 @@ export function fitBinaryModel(
   // ---- aliasing: rank-revealing Cholesky of Z'AZ (+ penalty) in column order ---------------
   // A ridge penalty makes collinear columns estimable, so it enters the rank decision; Firth's
   // penalty needs log det of the unpenalized information, so with bias reduction it does not.
-  const rankPenalty = opt.biasReduction ? new Float64Array(p) : penaltyAll;
+  // A penalty beyond RANK_PENALTY_CAP x sumA already makes its column independent of every other
+  // (1 - R^2 >= cap / (cap + 1)); capped, it cannot push an unpenalized column (the intercept)
+  // below the rank check's zero-column floor (a diagonal 1e-300 of the largest): penalty=1e305.
+  const rankPenalty = opt.biasReduction ? new Float64Array(p) : penaltyAll.map((v) => Math.min(v, RANK_PENALTY_CAP * sumA));
   // Large data: a subsample may already prove that no column is aliased (see subsampleRankBound).
   // The full diagonal (Z'AZ)_jj is known from the moments (sumA for a column scaled to unit SD, or
   // unit root mean square without an intercept); a column whose spread is at the rounding level of
@@ -532,7 +591,8 @@ export function fitBinaryModel(
     const spread = opt.intercept ? sd[c] : scale[c];
     fullDiagonal[j] = spread > RANK_PROOF_MIN_SPREAD * big ? (big / scale[c]) ** 2 * (opt.intercept ? v : ms) + rankPenalty[j] : NaN;
   }
-  const provenFullRank = !opt.biasReduction && subsampleRankBound({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a, rankPenalty, fullDiagonal);
+  // (The proof's diagonal comes from moments about the mean: not for the robust refit's centres.)
+  const provenFullRank = !opt.biasReduction && !robust && subsampleRankBound({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a, rankPenalty, fullDiagonal);
   let rr: RankRevealingResult;
   if (provenFullRank) {
     rr = { rank: p, independent: Array.from({ length: p }, (_, j) => j), dependent: [], residualShare: new Float64Array(p).fill(NaN) };
@@ -647,10 +707,13 @@ export function fitBinaryModel(
     fitInverse = invertSymmetric(fit.information, k);
     if (fitInverse) covK = congruence(T, fitInverse, k);
   }
-  // Values so extreme that a coefficient (or its variance) is not representable on the original
-  // scale (above 1.8e308): no usable estimate, and the message asks for a rescaled column.
+  // Standard errors come from the fitting scale without squaring (originalScaleStandardErrors), so
+  // a column multiplied by 1e-200 keeps its SE (about 1e200) although its variance overflows.
+  const seAll = covK ? originalScaleStandardErrors(T, fitInverse!, k, kept, p) : null;
+  // Values so extreme that a coefficient (or its standard error) is not representable on the
+  // original scale (above 1.8e308): no usable estimate, and the message asks for a rescaled column.
   const overflowTerms = kept
-    .filter((j, t) => (!Number.isFinite(coefK[t]) && !Number.isNaN(coefK[t])) || (covK !== null && covK[t * k + t] === Infinity))
+    .filter((j, t) => (!Number.isFinite(coefK[t]) && !Number.isNaN(coefK[t])) || (seAll !== null && seAll[j] === Infinity))
     .map((j) => terms[j]);
   if (overflowTerms.length > 0) {
     diagnostics.push(fitDiagnostic("COEFFICIENT_OVERFLOW", { columns: listNames(overflowTerms) }, { columns: overflowTerms }));
@@ -661,10 +724,15 @@ export function fitBinaryModel(
   let standardErrors: Float64Array | null = null;
   if (!unusable) {
     for (let t = 0; t < k; t++) coefficients[kept[t]] = coefK[t];
-    if (covK) {
+    // A covariance with an entry beyond the double range (a column multiplied by 1e-200: variance
+    // about 1e400) is not published: effects and probability intervals built on it would show
+    // z = 0 and p = 1. The table keeps its standard errors (computed without squaring).
+    if (covK && covK.every((v) => Number.isFinite(v))) {
       covariance = new Float64Array(p * p).fill(NaN);
       for (let r = 0; r < k; r++) for (let c = 0; c < k; c++) covariance[kept[r] * p + kept[c]] = covK[r * k + c];
-      standardErrors = originalScaleStandardErrors(T, fitInverse!, k, kept, p);
+      standardErrors = seAll;
+    } else if (covK) {
+      standardErrors = seAll;
     }
   }
 

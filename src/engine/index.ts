@@ -11,7 +11,7 @@ export { FIRTH_WORK_LIMIT } from "./data/fitWork";
 export type { RecipeState } from "./basis/recipe";
 export { nearBoundaryRows } from "./boundary";
 export type { BoundaryReview } from "./boundary";
-export { agreeHeaders } from "./data/alignRanges";
+export { agreeHeaders, withHeaderHint } from "./data/alignRanges";
 export { compareText, MAX_CLASSES, matchClass, readLabels } from "./data/labels";
 export type { LabelInfo } from "./data/labels";
 export { errorLiteral, isBlankCell, parseNumericText, rangeRow, readTable } from "./data/table";

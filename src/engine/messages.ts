@@ -143,6 +143,12 @@ export const ENGINE_MESSAGES = {
     template:
       "The first row of {decided} looks like {decidedLooks}, but the first row of {other} looks like {otherLooks}; every first row was read as {decision}. Set headers=yes or headers=no if that is wrong.",
   },
+  HEADER_RULE_HINT: {
+    cellError: "#N/A",
+    title: "Header rows disagreed before a problem",
+    template:
+      " (Header rows: the first row of {decided} looks like {decidedLooks} and the first row of {other} like {otherLooks}, so every first row was read as {decision}; if that is wrong, select every range with its header row or every range without, or set headers=yes or headers=no.)",
+  },
   CLASS_NOT_FOUND: {
     cellError: "#VALUE!",
     title: "Class not in the labels",
@@ -170,7 +176,7 @@ export const ENGINE_MESSAGES = {
     cellError: "#N/A",
     title: "Fit did not converge",
     template:
-      "The fit did not converge in {iterations} iterations (last relative change {change}). Results are not reliable: check for separation or extreme values, or set a penalty.",
+      "The fit did not converge in {iterations} {iterations|iteration|iterations} (last relative change {change}). Results are not reliable: check for separation or extreme values, or set a penalty.",
   },
   SEPARATION_COMPLETE: {
     cellError: "#N/A",
@@ -379,7 +385,7 @@ export const ENGINE_MESSAGES = {
     cellError: "#N/A",
     title: "Too few calibration groups",
     template:
-      "The predicted probabilities form only {groups} groups (of {requested} requested), because many rows share the same value; the Hosmer-Lemeshow test needs at least {needed}. Use a different check, such as the calibration slope.",
+      "The predicted probabilities form only {groups} {groups|group|groups} (of {requested} requested), because many rows share the same value; the Hosmer-Lemeshow test needs at least {needed}. Use a different check, such as the calibration slope.",
   },
   CONSTANT_PROBABILITIES: {
     cellError: "#N/A",
@@ -520,7 +526,7 @@ export const ENGINE_MESSAGES = {
     cellError: "#N/A",
     title: "Marginal effects without standard errors",
     template:
-      "The fit has no covariance of its coefficients (a penalized fit), so the marginal effects are shown without standard errors, z, p or intervals.",
+      "The fit has no covariance of its coefficients (a penalized fit, or variances beyond the range of numbers), so the marginal effects are shown without standard errors, z, p or intervals.",
   },
   EFFECTS_NOT_CAUSAL: {
     cellError: "#N/A",

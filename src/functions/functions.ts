@@ -204,6 +204,19 @@ export function formulas(labels: any[][], predictors: any[][], options?: any[][]
   return runCell(F.FORMULAS.doing, () => F.FORMULAS.adapter(labels, predictors, options ?? null, recipe ?? null, data ?? null));
 }
 
+/**
+ * Probabilities (or classes) of new rows from a model kept in the workbook by the Oddsmith pane, read from its stored description without refitting; recomputes when the rows change.
+ * @customfunction KEPT KEPT
+ * @helpurl https://localhost:3000/help.html#kept
+ * @param model_cells The kept model's row on the sheet OddsmithModels, e.g. OddsmithModels!2:2 (its first cell and every part).
+ * @param rows Rows to score, with a header row naming the columns the model was fitted on (raw data columns when it was fitted on basis columns).
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "show=class; threshold=0.3".
+ * @returns Probabilities with a header row naming the class, or the predicted class.
+ */
+export function kept(model_cells: any[][], rows: any[][], options?: any[][]): any[][] {
+  return runCell(F.KEPT.doing, () => F.KEPT.adapter(model_cells, rows, options ?? null));
+}
+
 // ---- Cross-validation (issue 13) ----
 
 /**

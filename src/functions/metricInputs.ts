@@ -6,7 +6,10 @@
  * Policy (one line each):
  * - labels is one column; probabilities one column (positive-class probability, two classes) or one
  *   column per class. Both ranges must be equally tall (header rows included). Under headers=auto
- *   they share one header decision: the range with the stronger evidence decides for both.
+ *   they share one header decision: the range with the stronger evidence decides for both; when a
+ *   range with strong evidence of its own (a number in its first row, or a name over numbers) is
+ *   overruled, the metric asks which is meant (METRIC_HEADERS_DISAGREE) instead of dropping or
+ *   inventing a row; other problems met while the first rows disagreed carry HEADER_RULE_HINT.
  * - Probability columns are matched to classes by their header names, "P(yes)" or "yes" (the header
  *   ODDS.PROB writes); without a header, several columns follow the classes' sorted order.
  * - Two classes and one column: the column is the positive class's probability. The positive class is
@@ -16,10 +19,15 @@
  *   probabilities blank is an error (METRIC_MISSING_VALUE) naming the sheet row.
  * - Every probability lies in [0, 1] (BAD_PROBABILITY, naming the sheet row), for every metric alike.
  * - Row numbers in every message are 1-based rows of the ranges as selected (header row = row 1).
+ * - Labels of one class only: AUC and CALIBRATION refuse (METRIC_NEEDS_BOTH_CLASSES: they compare
+ *   the classes). LOGLOSS and CONFUSION are defined once it is known which class the probabilities are
+ *   for: the positive option, else the probability column's header ("P(yes)"); one unnamed column is
+ *   METRIC_CLASS_UNNAMED. The absent class is the other class the column or option names, or the
+ *   partner of a recognized pair (1/0, TRUE/FALSE, yes/no, y/n), else "not <class>". One column's header names a class only as "P(class)" or as the present class.
  * - An error value (#N/A, #DIV/0!, ...) in either range is refused (ERROR_VALUE_CELL, naming the
  *   cell): a metric over silently fewer rows would look like a result for all of them.
  */
-import { agreeHeaders, compareText, matchClass, readLabels, readTable, type LabelInfo, type Table, type CellValue } from "../engine";
+import { agreeHeaders, withHeaderHint, compareText, matchClass, readLabels, readTable, type LabelInfo, type Table, type TableColumn, type CellValue } from "../engine";
 import { OddsmithError, codeOf, listNames, problem } from "../shared/messages";
 
 export interface MetricInputOptions {
@@ -115,7 +123,16 @@ export function readMetricInputs(
     { argument: "labels", cells: labelCells },
     { argument: "probabilities", cells: probabilityCells },
   ];
-  const agreed = headers === "auto" ? (agreeHeaders(ranges, headers).header ? "yes" : "no") : headers;
+  const agreement = agreeHeaders(ranges, headers);
+  // A metric is one number or a small table with no place for a note: when a range whose first row
+  // is surely data or surely names (a number, or a name over numbers) is overruled, reading either
+  // way would drop or invent a row, so ask. Weak evidence (text that does not recur) yields quietly.
+  if (agreement.disagreement && agreement.overruledEvidence === "strong") throw problem("METRIC_HEADERS_DISAGREE", agreement.disagreement);
+  const agreed = agreement.header ? "yes" : "no";
+  return withHeaderHint(agreement, () => readAgreedInputs(labelCells, probabilityCells, agreed, options));
+}
+
+function readAgreedInputs(labelCells: CellValue[][], probabilityCells: CellValue[][], agreed: "yes" | "no", options: MetricInputOptions): MetricInputs {
   const labelTable = readTable(labelCells, { argument: "labels", headers: agreed, errors: "refuse", errorReason: METRIC_ERROR_REASON });
   if (labelTable.columns.length !== 1) {
     throw problem("SINGLE_COLUMN_NEEDED", { argument: "labels", columns: labelTable.columns.length });
@@ -136,14 +153,21 @@ export function readMetricInputs(
   const cellAt = (col: Float64Array, i: number) => (i < col.length ? col[i] : NaN);
 
   // Rows kept: a label and at least one probability.
-  const labelColumn = labelTable.columns[0];
-  const use = new Uint8Array(labelTable.rows);
+  let labelColumn: TableColumn = labelTable.columns[0];
+  let use: Uint8Array = new Uint8Array(labelTable.rows);
   for (let i = 0; i < labelTable.rows; i++) {
     if (labelColumn.missing[i]) continue;
     if (columns.some((c) => !Number.isNaN(cellAt(c, i)))) use[i] = 1;
   }
   if (!use.some((u) => u === 1)) {
     throw problem("NO_USABLE_ROWS", { missing: `labels ${countMissing(labelColumn.missing)}, probabilities blank in the other rows` });
+  }
+  // One class present: defined for LOGLOSS and CONFUSION once the probability column says which
+  // class it is for (oneClassLabels); AUC and CALIBRATION compare the two classes and are undefined.
+  const oneClass = oneClassLabels(labelColumn, use, probTable, columns.length, options);
+  if (oneClass) {
+    labelColumn = oneClass.column;
+    use = oneClass.use;
   }
   const firstPass = readLabels(labelColumn, { use });
   const named = columnClasses(probTable, firstPass.classes, firstPass.source);
@@ -237,6 +261,80 @@ export function readMetricInputs(
     header: labelTable.header,
     dataRows: n,
   };
+}
+
+/** Partner of a recognized pair (1/0, TRUE/FALSE, yes/no, y/n) in the same letter case, else "not <label>". */
+function absentClass(label: string): string {
+  const pairs: Record<string, string> = { "1": "0", "0": "1", true: "false", false: "true", yes: "no", no: "yes", y: "n", n: "y" };
+  const partner = pairs[label.toLowerCase()];
+  if (partner === undefined) return `not ${label}`;
+  if (label === label.toUpperCase()) return partner.toUpperCase();
+  if (label[0] === label[0].toUpperCase()) return partner[0].toUpperCase() + partner.slice(1);
+  return partner;
+}
+
+/**
+ * Labels of one class only, for the metrics defined then: the label column with one added row per
+ * class that the probabilities name but no row holds (marked usable, beyond the table's rows, so the
+ * label reader sees two or more classes under its usual rules and no real row changes). Null when the
+ * labels hold two or more classes.
+ * @throws OddsmithError METRIC_NEEDS_BOTH_CLASSES (binary-only metrics), METRIC_CLASS_UNNAMED
+ */
+function oneClassLabels(
+  column: TableColumn,
+  use: Uint8Array,
+  probTable: Table,
+  columnCount: number,
+  options: MetricInputOptions,
+): { column: TableColumn; use: Uint8Array } | null {
+  let present: string;
+  try {
+    readLabels(column, { use });
+    return null;
+  } catch (error) {
+    if (!(error instanceof OddsmithError) || codeOf(error) !== "ONE_CLASS_ONLY") throw error;
+    present = String(error.params.label);
+  }
+  if (options.binaryOnly) throw problem("METRIC_NEEDS_BOTH_CLASSES", { metric: options.fn, label: `"${present}"` });
+  const source: LabelInfo["source"] = column.kind === "text" ? "text" : column.kind === "boolean" ? "boolean" : "number";
+  const isPresent = (name: string): boolean => {
+    try {
+      matchClass([present], name, source, "positive");
+      return true;
+    } catch {
+      return false;
+    }
+  };
+  const positive = options.positive != null && String(options.positive).trim() !== "" ? String(options.positive).trim() : null;
+  let named: string[];
+  if (columnCount === 1) {
+    // One column's header names a class when it reads "P(class)" or is the present class itself
+    // (a plain name such as "p" or "score" names none).
+    const header = probTable.header ? probTable.names[0] : "";
+    const headerClass = /^\s*P\s*\(.*\)\s*$/i.test(header) || (header !== "" && isPresent(header)) ? classFromHeader(header) : "";
+    const wanted = positive ?? headerClass;
+    if (wanted === "") throw problem("METRIC_CLASS_UNNAMED", { label: present });
+    named = [isPresent(wanted) ? absentClass(present) : wanted];
+  } else {
+    if (!probTable.header) throw problem("METRIC_CLASS_UNNAMED", { label: present });
+    named = probTable.names.map(classFromHeader).filter((c) => !isPresent(c));
+  }
+  // The added classes keep the column's kind when they can (numbers stay numbers, TRUE/FALSE booleans).
+  const asNumber = (c: string): number => (source === "boolean" ? (/^(true|yes|y|1)$/i.test(c) ? 1 : /^(false|no|n|0)$/i.test(c) ? 0 : NaN) : c.trim() === "" ? NaN : Number(c));
+  const keepKind = column.kind !== "text" && named.every((c) => Number.isFinite(asNumber(c)));
+  const n = column.missing.length;
+  const missing = new Uint8Array(n + named.length);
+  missing.set(column.missing);
+  const grown = new Uint8Array(n + named.length).fill(1);
+  grown.set(use);
+  if (keepKind) {
+    const values = new Float64Array(n + named.length);
+    values.set(column.values as Float64Array);
+    named.forEach((c, k) => (values[n + k] = asNumber(c)));
+    return { column: { name: column.name, kind: column.kind as "number" | "boolean", values, missing }, use: grown };
+  }
+  const text = column.kind === "text" ? (column.values as string[]) : Array.from(column.values as Float64Array, (v, i) => (column.missing[i] ? "" : column.kind === "boolean" ? (v === 1 ? "TRUE" : "FALSE") : String(v)));
+  return { column: { name: column.name, kind: "text", values: [...text, ...named], missing }, use: grown };
 }
 
 function countMissing(missing: Uint8Array): number {

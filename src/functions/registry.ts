@@ -26,6 +26,7 @@ import { calibrationCell } from "./calibrationCell";
 import { scoreCell } from "./scoreCell";
 import { basisCellGuarded } from "./basisCells";
 import { formulasCell } from "./formulasCell";
+import { keptCell } from "./keptCell";
 
 /** A range argument as Excel passes it (row-major), or null for an omitted optional argument. */
 export type CellRange = CellValue[][];
@@ -101,6 +102,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("FORMULAS", "writing the model as formulas", [req("labels"), req("predictors"), opt("options"), opt("recipe"), opt("data")], (l, p, o, r, d) =>
     formulasCell(l, p, o ?? null, r ?? null, d ?? null),
+  ),
+  spec("KEPT", "scoring rows with a kept model", [req("model_cells"), req("rows"), opt("options")], (m, r, o) =>
+    keptCell(m, r, o ?? null),
   ),
   spec("FOLDS", "cross-validating the model", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
     foldsCell(l, p, o ?? null),

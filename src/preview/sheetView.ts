@@ -151,7 +151,7 @@ export class SheetView {
   render(): void {
     // Tabs.
     this.tabs.replaceChildren(
-      ...this.workbook.sheetNames().map((name) => {
+      ...this.workbook.visibleSheetNames().map((name) => {
         const b = el("button", name === this.sheet ? "ledger-tab is-current" : "ledger-tab", name);
         b.type = "button";
         b.dataset.sheet = name;

@@ -21,6 +21,8 @@ import { grownRowCount, isBlankRow } from "./tableExtent";
 export const DEFAULT_CHUNK_CELLS = 50_000;
 /** Our highlight fill: a light amber that reads as "look here" and keeps dark text legible. */
 export const OUR_FILL = "#FBE3B0";
+/** Characters of text per write request (the host carries about 5 MB a request). */
+export const TEXT_BATCH_CHARS = 1_000_000;
 /** Row runs per request when highlighting many scattered rows. */
 const RUNS_PER_REQUEST = 500;
 /** Rows whose own fill is read per request before highlighting. */
@@ -226,6 +228,42 @@ export class ExcelPort implements WorkbookPort {
         }
         await context.sync();
         this.onProgress?.({ task: "write", done: (start + height) * columns, total: rows * columns });
+      }
+    });
+  }
+
+  async ensureHiddenSheet(name: string): Promise<boolean> {
+    const names = await this.sheetNames();
+    if (names.includes(name)) return false;
+    await this.run(async (context) => {
+      const ws = context.workbook.worksheets.add(name);
+      // Excel.SheetVisibility.hidden (the string form, so no global Excel is needed here).
+      ws.visibility = "Hidden";
+      await context.sync();
+    });
+    return true;
+  }
+
+  async writeText(sheet: string, at: string, values: string[][]): Promise<void> {
+    const start = this.rect(at);
+    // Rows are written one request per batch of about TEXT_BATCH_CHARS characters (the host's
+    // request limit is about 5 MB), each cell formatted as text ("@") before its value is set.
+    await this.run(async (context) => {
+      const ws = context.workbook.worksheets.getItem(sheet);
+      for (let r = 0; r < values.length; r++) {
+        const row = values[r];
+        let from = 0;
+        while (from < row.length) {
+          let to = from;
+          let chars = 0;
+          while (to < row.length && (to === from || chars + row[to].length <= TEXT_BATCH_CHARS)) chars += row[to++].length;
+          const range = ws.getRange(rectAddress({ top: start.top + r, bottom: start.top + r, left: start.left + from, right: start.left + to - 1 }));
+          const block = [row.slice(from, to)];
+          range.numberFormat = [block[0].map(() => "@")];
+          range.values = block;
+          await context.sync();
+          from = to;
+        }
       }
     });
   }

@@ -111,6 +111,25 @@ export class MemoryWorkbook {
     return this.sheets.map((s) => s.name);
   }
 
+  /** Sheets hidden from the tabs (as Excel's hidden sheets: still read and written by formulas). */
+  private readonly hidden = new Set<string>();
+
+  /** Names of the sheets the tabs show, in order. */
+  visibleSheetNames(): string[] {
+    return this.sheetNames().filter((n) => !this.hidden.has(n));
+  }
+
+  isHidden(name: string): boolean {
+    return this.hidden.has(name);
+  }
+
+  /** Hide a sheet from the tabs. */
+  hideSheet(name: string): void {
+    this.sheet(name);
+    this.hidden.add(name);
+    this.emit({ kind: "sheets" });
+  }
+
   hasSheet(name: string): boolean {
     return this.sheets.some((s) => s.name === name);
   }
@@ -472,6 +491,19 @@ export class MemoryPort implements WorkbookPort {
     if (!at) throw new Error(`"${request.at}" is not a cell address.`);
     // Literal text starting with "=" stays text when formulas is false.
     this.workbook.setValues(request.sheet, at.top, at.left, request.values, !request.formulas);
+  }
+
+  async ensureHiddenSheet(name: string): Promise<boolean> {
+    if (this.workbook.hasSheet(name)) return false;
+    this.workbook.addSheet(name);
+    this.workbook.hideSheet(name);
+    return true;
+  }
+
+  async writeText(sheet: string, at: string, values: string[][]): Promise<void> {
+    const rect = parseAddress(at);
+    if (!rect) throw new Error(`"${at}" is not a cell address.`);
+    this.workbook.setValues(sheet, rect.top, rect.left, values, true);
   }
 
   async clear(sheet: string, address: string): Promise<void> {

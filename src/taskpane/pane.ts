@@ -33,5 +33,6 @@ export function mountPane(container: HTMLElement, port: WorkbookPort, options: M
   const runner = pathCompute ? new AutoEvaluationRunner(pathCompute, evaluationWorkerUrl, paneOptions.runner ?? "auto") : null;
   const evaluation = new EvaluationController(controller, runner, thresholdChooser);
   new EvaluationView(view.root, evaluation);
+  view.root.append(view.portable);
   return { controller, basis, view, evaluation };
 }

@@ -7,7 +7,9 @@
  * Every workbook access goes through the WorkbookPort. Every failure becomes a status with a
  * catalogue message (what is wrong, where, what to do); nothing is only logged.
  */
-import { readLabels, scoreRows, type RowScores, type CellValue, type Diagnostic } from "../engine";
+import { readLabels, scoreRows, type RowScores, type CellValue, type Diagnostic, type ModelDescription } from "../engine";
+import { KEPT_SHEET } from "../shared/keptModel";
+import { descriptionFile, keepInWorkbook, paneDescription, SCORING_SHEET, scoringWrites, type KeptPlace, type ScoringWrites } from "./portableModel";
 import { OddsmithError, problem } from "../shared/messages";
 import { fitFailure } from "../shared/fitService";
 import { rectAddress } from "./a1";
@@ -310,6 +312,70 @@ export class PaneController {
     const layout = resultsLayout(data, choice, classCount, sheet);
     for (const w of layoutWrites(layout)) await this.port.write(w);
     this.layout = layout;
+  }
+
+  // ---- portable model ----------------------------------------------------------------------
+
+  /** Where the model was last kept in the workbook (this session), or null. */
+  kept: KeptPlace | null = null;
+
+  /** The description of the fitted model, or PORTABLE_NO_FIT. */
+  description(action: string): ModelDescription {
+    const model = this.outcome?.model;
+    if (!model || !this.data || !this.choice || fitFailure(model)) throw problem("PORTABLE_NO_FIT", { action });
+    const label = this.data.columns[this.choice.label].name;
+    return paneDescription(model, `${label} model`, new Date().toISOString());
+  }
+
+  /** Keep the fitted model's description in the workbook (a row of the hidden kept-models sheet). */
+  async keepModel(): Promise<void> {
+    try {
+      const desc = this.description("keep");
+      this.setStatus({ phase: "writing", message: "Keeping the model in the workbook...", busy: false });
+      const place = await keepInWorkbook(this.port, desc);
+      this.kept = place;
+      this.setStatus({
+        phase: "done",
+        message: `Kept "${desc.name}" in the workbook (hidden sheet ${KEPT_SHEET}, row ${place.row}, ${place.parts} ${place.parts === 1 ? "part" : "parts"}); it is saved with the workbook. Score new rows without refitting with =ODDS.KEPT(${place.reference}, rows).`,
+      });
+    } catch (e) {
+      this.fail(e, "keeping the model in the workbook");
+    }
+  }
+
+  /** The description file to download, or null (with the reason in the status) when there is no fit. */
+  descriptionDownload(): { name: string; text: string } | null {
+    try {
+      const file = descriptionFile(this.description("download"));
+      this.setStatus({ phase: "done", message: `Saved the description as ${file.name} (made on this computer; nothing was sent anywhere).` });
+      return file;
+    } catch (e) {
+      this.fail(e, "preparing the description file");
+      return null;
+    }
+  }
+
+  /** Write the model as plain formulas (no add-in needed) on the scoring sheet. */
+  async writeScoringFormulas(): Promise<ScoringWrites | null> {
+    try {
+      const desc = this.description("write as formulas");
+      const data = this.data as DataTable;
+      const sheets = await this.port.sheetNames();
+      if (sheets.includes(SCORING_SHEET)) await this.port.clear(SCORING_SHEET, "A:XFD");
+      else await this.port.addSheet(SCORING_SHEET);
+      const out = scoringWrites(desc, data, this.choice as SetupChoice, SCORING_SHEET);
+      this.setStatus({ phase: "writing", message: "Writing the scoring formulas...", busy: false });
+      for (const w of out.writes) await this.port.write(w);
+      const notes = out.notes.length ? ` ${out.notes.join(" ")}` : "";
+      this.setStatus({
+        phase: "done",
+        message: `Wrote the model as plain formulas on the sheet ${SCORING_SHEET} (${out.columns} columns, probabilities under ${out.probabilityAt}); they need no add-in.${notes}`,
+      });
+      return out;
+    } catch (e) {
+      this.fail(e, "writing the scoring formulas");
+      return null;
+    }
   }
 
   // ---- review ------------------------------------------------------------------------------

@@ -35,8 +35,24 @@ const BASIS_CHOICES: { value: ColumnPick["transform"]; label: string; setting: s
   { value: "bins", label: "quantile bins", setting: "k", initial: 4 },
 ];
 
+/**
+ * Offer text as a file download: a Blob and an object URL on a temporary anchor, all in this page
+ * (works offline; nothing is sent anywhere).
+ */
+function saveTextFile(name: string, text: string): void {
+  const url = URL.createObjectURL(new Blob([text], { type: "application/json" }));
+  const a = h("a", { href: url, download: name });
+  a.style.display = "none";
+  document.body.append(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 0);
+}
+
 export class PaneView {
   readonly root: HTMLElement;
+  /** The portable-model section; mountPane moves it below the evaluation section. */
+  readonly portable: HTMLElement;
   private readonly el: Record<string, HTMLElement> = {};
   private plotAxes: { x: number; y: number } | null = null;
 
@@ -46,7 +62,8 @@ export class PaneView {
     private readonly basis: BasisController,
   ) {
     this.root = h("div", { class: "osm-pane" });
-    this.root.append(this.header(), this.cautions(), this.setupSection(), this.basisSection(), this.reviewSection(), this.plotSection());
+    this.portable = this.portableSection();
+    this.root.append(this.header(), this.cautions(), this.setupSection(), this.basisSection(), this.reviewSection(), this.plotSection(), this.portable);
     container.append(this.root);
     controller.subscribe((change) => this.update(change));
     basis.subscribe((change) => this.updateBasis(change));
@@ -238,6 +255,37 @@ export class PaneView {
     );
   }
 
+  private portableSection(): HTMLElement {
+    const keep = this.keep("keepModel", h("button", { id: "osm-keep-model", type: "button" }, "Keep the model in the workbook"));
+    const said = this.keep("portableStatus", h("p", { id: "osm-portable-status", class: "osm-note", role: "status", "aria-live": "polite" }));
+    // The outcome is said here too, beside the buttons (the pane's status line is far above).
+    const tell = () => {
+      said.textContent = this.controller.status.message;
+      said.className = `osm-note osm-status is-${this.controller.status.phase}`;
+    };
+    keep.addEventListener("click", () => void this.controller.keepModel().then(tell));
+    const download = this.keep("downloadModel", h("button", { id: "osm-download-model", type: "button" }, "Download the description"));
+    download.addEventListener("click", () => {
+      const file = this.controller.descriptionDownload();
+      if (file) saveTextFile(file.name, file.text);
+      tell();
+    });
+    const formulas = this.keep("scoringFormulas", h("button", { id: "osm-scoring-formulas", type: "button" }, "Write scoring formulas"));
+    formulas.addEventListener("click", () => void this.controller.writeScoringFormulas().then(tell));
+    return this.section(
+      "osm-portable",
+      "6",
+      "Portable model",
+      h(
+        "p",
+        { class: "osm-note" },
+        "Keep the fitted model inside the workbook (it is saved with it and scored by =ODDS.KEPT without refitting), save its description as a file, or write it as plain formulas that need no add-in. The description holds coefficients and a summary of the data (counts, ranges, means, level counts), no data rows.",
+      ),
+      h("div", { class: "osm-row" }, keep, download, formulas),
+      said,
+    );
+  }
+
   // ---- updating ----------------------------------------------------------------------------
 
   private update(change: PaneChange): void {
@@ -280,6 +328,8 @@ export class PaneView {
     else progress.value = s.progress;
     (this.byId("cancel") as HTMLButtonElement).disabled = !s.busy;
     (this.byId("fit") as HTMLButtonElement).disabled = s.busy || !this.controller.data;
+    const noModel = s.busy || !this.controller.outcome;
+    for (const id of ["keepModel", "downloadModel", "scoringFormulas"]) (this.byId(id) as HTMLButtonElement).disabled = noModel;
   }
 
   private renderTableInfo(): void {

@@ -56,6 +56,16 @@ export interface WorkbookPort {
   highlightRows(sheet: string, address: string, rows: number[], on: boolean): Promise<void>;
   /** Select a sheet row (1-based) within the columns of `address` and bring it into view. */
   selectRow(sheet: string, address: string, row: number): Promise<void>;
+  /**
+   * Make sure a sheet of exactly this name exists, hidden from the sheet tabs (it is created hidden
+   * when missing; an existing one is left as it is). Returns true when it was created.
+   */
+  ensureHiddenSheet(name: string): Promise<boolean>;
+  /**
+   * Write text as text: no cell is taken for a formula, a number or a date, whatever it starts
+   * with. Long texts (up to a cell's 32,767 characters each) are sent in batches the host can carry.
+   */
+  writeText(sheet: string, at: string, values: string[][]): Promise<void>;
   /** Call `handler` after cells of `sheet` change; returns a function that stops listening. */
   onChanged(sheet: string, handler: () => void): Promise<() => void>;
 }

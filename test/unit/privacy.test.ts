@@ -222,6 +222,46 @@ describe("privacy: built bundles and pages", () => {
     expect(sources).toEqual(expect.arrayContaining(["functions.js", "taskpane.js"]));
   });
 
+  // The production build (npm run build) writes minified pages: attributes unquoted, boolean
+  // attributes bare, no closing slashes (<script defer src=functions.js>). The checks above read the
+  // development pages; here the same checks read them as the production build writes them. These
+  // html-minifier-terser options (the minifier html-webpack-plugin uses) turn the development pages
+  // into the production pages byte for byte: checked against `webpack --mode production` output on
+  // 2026-12-05 (taskpane.html 644 and preview.html 870 characters, both identical).
+  const PRODUCTION_MINIFY = {
+    collapseWhitespace: true,
+    collapseBooleanAttributes: true,
+    removeAttributeQuotes: true,
+    removeComments: true,
+    removeRedundantAttributes: true,
+    removeScriptTypeAttributes: true,
+    removeStyleLinkTypeAttributes: true,
+    useShortDoctype: true,
+  };
+  async function productionPage(page: string): Promise<string> {
+    // The minifier html-webpack-plugin itself loads (a dependency of it, not of ours).
+    const from = path.dirname(require.resolve("html-webpack-plugin"));
+    // eslint-disable-next-line @typescript-eslint/no-require-imports
+    const { minify } = require(require.resolve("html-minifier-terser", { paths: [from] }));
+    return minify(fs.readFileSync(path.join(DIST, page), "utf8"), PRODUCTION_MINIFY);
+  }
+
+  test.each(["taskpane.html", "preview.html"])("%s as the production build minifies it: the same closed policy and own scripts", async (page) => {
+    const original = fs.readFileSync(path.join(DIST, page), "utf8");
+    const html = await productionPage(page);
+    expect(html.length).toBeLessThan(original.length); // the minifier did rewrite the page
+    expect(html).not.toContain("\n"); // whitespace collapsed
+    expect(html).toMatch(/<script defer src=[^"' >]+>/); // unquoted, bare boolean: the production form
+    const policy = metaPolicy(html);
+    expect(policy).not.toBeNull();
+    expectClosedPolicy(policy!, `${page} (production)`);
+    expect(metaPolicy(html)).toBe(metaPolicy(original));
+    const scripts = scriptSources(html);
+    expect(scripts).toEqual(scriptSources(original));
+    expect(scripts.inline).toBe(false);
+    for (const src of scripts.sources) expect([page, src, /^(https?:)?\/\//i.test(src)]).toEqual([page, src, false]);
+  });
+
   test("the development server sends the same closed policy with every page", async () => {
     // eslint-disable-next-line @typescript-eslint/no-require-imports
     const { createStaticServer, listen, CONTENT_SECURITY_POLICY } = require("../../scripts/static-server.cjs");

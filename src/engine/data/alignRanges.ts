@@ -8,11 +8,13 @@
  * - Under "auto", the range with the strongest header evidence (forced > strong > weak > none)
  *   decides for all; the second range wins a tie (the predictors of a fit, the probabilities of a
  *   metric), so a labels column of words and a block of numbers cannot end up shifted by one row.
- * - A range whose own evidence pointed the other way is named in a HEADERS_DISAGREE note.
+ * - A range whose own evidence pointed the other way is named in a HEADERS_DISAGREE note; a problem
+ *   met while reading ranges whose first rows disagreed carries the same facts (HEADER_RULE_HINT,
+ *   appended to its message: a header row read as data, or data read as a header, is often the cause).
  * - Row counts must agree (validate.ts, checkAlignedRows); a range that ends earlier than the others
  *   is blank below its end.
  */
-import { formatMessage } from "../messages";
+import { formatMessage, OddsmithError } from "../messages";
 import type { CellValue, Diagnostic } from "../types";
 import { detectHeader, normalizeRange, padTable, readTable, type HeaderEvidence, type Table } from "./table";
 import { checkAlignedRows } from "./validate";
@@ -28,6 +30,10 @@ export interface HeaderAgreement {
   header: boolean;
   /** The note naming a range whose own evidence pointed the other way, or null. */
   note: Diagnostic | null;
+  /** That note's facts (HEADERS_DISAGREE and HEADER_RULE_HINT parameters), or null. */
+  disagreement: Record<string, string> | null;
+  /** How sure the overruled range was of its own reading ("none" without a disagreement). */
+  overruledEvidence: HeaderEvidence;
 }
 
 const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, weak: 1, none: 0 };
@@ -37,7 +43,7 @@ const EVIDENCE_RANK: Record<HeaderEvidence, number> = { forced: 3, strong: 2, we
  * "auto" each range's evidence comes from readTable's header rule (detectHeader).
  */
 export function agreeHeaders(ranges: RangeArg[], headers: "auto" | "yes" | "no"): HeaderAgreement {
-  if (headers !== "auto") return { header: headers === "yes", note: null };
+  if (headers !== "auto") return { header: headers === "yes", note: null, disagreement: null, overruledEvidence: "none" };
   const detected = ranges.map((r) => detectHeader(normalizeRange(r.cells, r.argument).rows));
   // Under auto, the range with the strongest evidence decides for all (the second range wins a tie).
   let best = 1 < ranges.length ? 1 : 0;
@@ -47,7 +53,7 @@ export function agreeHeaders(ranges: RangeArg[], headers: "auto" | "yes" | "no")
   const header = detected[best].header;
   // A range whose own evidence pointed the other way is named in a note, so the choice is visible.
   const other = detected.findIndex((d) => d.header !== header && d.evidence !== "none");
-  if (other < 0) return { header, note: null };
+  if (other < 0) return { header, note: null, disagreement: null, overruledEvidence: "none" };
   const looks = (h: boolean) => (h ? "column names" : "data");
   const params = {
     decided: ranges[best].argument,
@@ -56,7 +62,45 @@ export function agreeHeaders(ranges: RangeArg[], headers: "auto" | "yes" | "no")
     otherLooks: looks(!header),
     decision: looks(header),
   };
-  return { header, note: { code: "HEADERS_DISAGREE", severity: "note", message: formatMessage("HEADERS_DISAGREE", params) } };
+  return { header, note: { code: "HEADERS_DISAGREE", severity: "note", message: formatMessage("HEADERS_DISAGREE", params) }, disagreement: params, overruledEvidence: detected[other].evidence };
+}
+
+/**
+ * Problems a first row read the wrong way can cause: a name read as a value (text in a numeric
+ * column, an extra class or category, a bad probability, weight or count) or a value read as a name
+ * (ranges one row apart, a class or column not found). Shape problems of their own (two weight
+ * columns) get no hint.
+ */
+const HEADER_SENSITIVE = new Set([
+  "NOT_A_NUMBER",
+  "RANGE_SHAPE_MISMATCH",
+  "TOO_MANY_CLASSES",
+  "TOO_MANY_LABELS",
+  "ONE_CLASS_ONLY",
+  "CLASS_NOT_FOUND",
+  "COLUMN_NOT_FOUND",
+  "LEVEL_NOT_FOUND",
+  "BAD_WEIGHT",
+  "BAD_TRIALS",
+  "BAD_PROBABILITY",
+  "PROBABILITY_COLUMN_COUNT",
+  "PROBABILITY_COLUMN_MISSING",
+  "METRIC_MISSING_VALUE",
+]);
+
+/**
+ * Run `body` (reading ranges under one header decision); a problem it throws while the ranges' first
+ * rows disagreed gets the HEADER_RULE_HINT appended to its message (same code and parameters).
+ */
+export function withHeaderHint<T>(agreement: HeaderAgreement, body: () => T): T {
+  try {
+    return body();
+  } catch (error) {
+    if (agreement.disagreement && error instanceof OddsmithError && HEADER_SENSITIVE.has(error.code) && !error.message.includes("(Header rows:")) {
+      error.message += formatMessage("HEADER_RULE_HINT", agreement.disagreement);
+    }
+    throw error;
+  }
 }
 
 /** Aligned tables of a fit, with what the read found out. */
@@ -67,6 +111,8 @@ export interface AlignedTables {
   ownRows: number[];
   rows: number;
   notes: Diagnostic[];
+  /** The header decision (for withHeaderHint around later reading steps). */
+  agreement: HeaderAgreement;
 }
 
 /**
@@ -77,6 +123,10 @@ export interface AlignedTables {
  */
 export function readAlignedRanges(ranges: RangeArg[], headers: "auto" | "yes" | "no"): AlignedTables {
   const agreement = agreeHeaders(ranges, headers);
+  return withHeaderHint(agreement, () => readAgreed(ranges, agreement));
+}
+
+function readAgreed(ranges: RangeArg[], agreement: HeaderAgreement): AlignedTables {
   const forced = agreement.header ? "yes" : "no";
   const tables = ranges.map((r, k) => {
     const t = readTable(r.cells, { argument: r.argument, headers: forced, namePrefix: k === 1 ? "x" : r.argument });
@@ -96,6 +146,7 @@ export function readAlignedRanges(ranges: RangeArg[], headers: "auto" | "yes" | 
     ownRows: tables.map((t) => t.rows),
     rows,
     notes,
+    agreement,
   };
 }
 

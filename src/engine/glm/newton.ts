@@ -161,18 +161,43 @@ export function newtonStep(task: NewtonTask, at: Pick<Point, "theta" | "score" |
   addPenalty(task, at.theta, score, h);
   if (task.hook) task.hook.addToScore(score);
   const free = task.free ? Array.from({ length: M }, (_, j) => j).filter((j) => task.free![j]) : null;
-  const c = free ? cholesky(subMatrix(h, M, free), free.length) : cholesky(h, M);
-  if (!c.ok) return null;
   const step = new Float64Array(M);
   if (free) {
-    const s = choleskySolve(c.factor, free.length, Float64Array.from(free, (j) => score[j]));
+    const s = equilibratedSolve(subMatrix(h, M, free), free.length, Float64Array.from(free, (j) => score[j]));
+    if (!s) return null;
     free.forEach((j, t) => (step[j] = s[t]));
   } else {
-    choleskySolve(c.factor, M, score, step);
+    const s = equilibratedSolve(h, M, score);
+    if (!s) return null;
+    step.set(s);
   }
   let decrement = 0;
   for (let j = 0; j < M; j++) decrement += score[j] * step[j];
   return { step, decrement };
+}
+
+/**
+ * Solve H x = b for a symmetric positive-definite H through D H D with D = diag(2^-e_j),
+ * 2^e_j the power of two nearest sqrt(H_jj): the Cholesky pivot test is then relative to each
+ * column's own diagonal (1 - R^2 of the column on the earlier ones), not to the largest diagonal,
+ * so a term whose information is 1e300 times another's (a ridge penalty of 1e300, a column with one
+ * value 1e9 times the others) does not make the other term look singular. Powers of two scale
+ * without rounding, so a well-scaled H gives exactly the unscaled factorization's step.
+ * Null when D H D is singular at the Cholesky tolerance. (Equilibration: Golub & Van Loan 2013, sec. 3.5.2.)
+ */
+function equilibratedSolve(h: Float64Array, M: number, b: Float64Array): Float64Array | null {
+  const d = new Float64Array(M);
+  for (let j = 0; j < M; j++) {
+    const hjj = h[j * M + j];
+    d[j] = hjj > 0 && Number.isFinite(hjj) ? 2 ** -Math.round(Math.log2(Math.sqrt(hjj))) : 1;
+  }
+  const hs = new Float64Array(M * M);
+  for (let i = 0; i < M; i++) for (let j = 0; j < M; j++) hs[i * M + j] = h[i * M + j] * d[i] * d[j];
+  const c = cholesky(hs, M);
+  if (!c.ok) return null;
+  const x = choleskySolve(c.factor, M, Float64Array.from(b, (v, j) => v * d[j]));
+  for (let j = 0; j < M; j++) x[j] *= d[j];
+  return x;
 }
 
 /**

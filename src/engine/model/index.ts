@@ -17,7 +17,7 @@
  *   range is given, including rows skipped for a missing label: those can still be scored). A row
  *   that cannot be scored keeps its place with NaN numbers and a per-row problem (model/scoring.ts).
  */
-import { readAlignedRanges, type RangeArg } from "../data/alignRanges";
+import { readAlignedRanges, withHeaderHint, type RangeArg } from "../data/alignRanges";
 import { buildDesign, encodeRows, type EncodedRows } from "../data/design";
 import { problem } from "../messages";
 import { validateColumns, type ValidColumns } from "../data/validate";
@@ -75,7 +75,8 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
   const { ranges, extras } = fitRanges(labels, predictors, options);
   const read = readAlignedRanges(ranges, options.headers ?? "auto");
   const predTable = read.tables[1];
-  const columns = validateColumns(read.tables, extras);
+  // Column and label problems can come from a header row read the wrong way: they carry the hint.
+  const columns = withHeaderHint(read.agreement, () => validateColumns(read.tables, extras));
 
   // A row missing any used value is skipped, counted per column (label and extras first).
   const extra = [{ name: columns.label.name, missing: columns.label.missing }];
@@ -87,7 +88,7 @@ export function trainModel(labels: CellValue[][], predictors: CellValue[][], opt
   const common = fitOptions(options);
   const terms = built.design.columns.length + (common.intercept ? 1 : 0);
   const intervals = affordableIntervals(common.intervalMethod, built.design.rows, terms);
-  const { fit, labels: info } = fitClasses({ columns, built, options, intervalMethod: intervals.method });
+  const { fit, labels: info } = withHeaderHint(read.agreement, () => fitClasses({ columns, built, options, intervalMethod: intervals.method }));
   completeDiagnostics(fit, built, predTable, read.notes, intervals.note);
 
   return {

@@ -75,6 +75,37 @@ export const CELL_MESSAGES = {
     template:
       "Every row has the label \"{label}\", and nothing says which class the probabilities are for. Name the class in the probabilities' header row (e.g. \"P({label})\"), or set the positive option.",
   },
+  // ---- models kept in the workbook (ODDS.KEPT, #VALUE!) -----------------------------------------
+  KEPT_NOT_FOUND: {
+    cellError: "#VALUE!",
+    title: "No kept model in the range",
+    template:
+      "The {argument} range does not start with a kept model: its first cell holds {got}, where a kept model's row starts with a text beginning \"oddsmith-model\". Select the model's row on the sheet {sheet} from column A (e.g. {sheet}!2:2), or keep the model again from the Oddsmith pane.",
+  },
+  KEPT_HEADER: {
+    cellError: "#VALUE!",
+    title: "Kept model's first cell unreadable",
+    template:
+      "The first cell of the {argument} range reads {got}, which is not the header Oddsmith writes (\"oddsmith-model 1.0; parts ...; characters ...; check ...; written ...; by Oddsmith ...; name ...\"). It was changed after Oddsmith wrote it: keep the model again from the Oddsmith pane.",
+  },
+  KEPT_PART: {
+    cellError: "#VALUE!",
+    title: "Part of a kept model missing",
+    template:
+      "The kept model \"{name}\" is stored in {parts} {parts|part|parts} after its first cell, but part {part} (cell {cell} of the {argument} range, read row by row) {reason}; that cell holds {got}. Select the model's whole row on the sheet {sheet} (e.g. {sheet}!2:2), or keep the model again from the Oddsmith pane.",
+  },
+  KEPT_DAMAGED: {
+    cellError: "#VALUE!",
+    title: "Kept model changed after it was written",
+    template:
+      "The parts of the kept model \"{name}\" hold {got} characters with check {gotCheck}, but its first cell says {characters} characters with check {check}: a part was edited after Oddsmith wrote it. Keep the model again from the Oddsmith pane, or use a downloaded description.",
+  },
+  METRIC_HEADERS_DISAGREE: {
+    cellError: "#VALUE!",
+    title: "Header rows of labels and probabilities disagree",
+    template:
+      "The first row of {other} looks like {otherLooks}, but the first row of {decided} looks like {decidedLooks}. Reading both as {decision} would drop or invent a row of the metric. Select both ranges with their header rows (or both without), or set headers=yes or headers=no.",
+  },
   // ---- evaluation functions (ODDS.FOLDS, ODDS.HOLDOUT) ---------------------------------------
   EVALUATION_SCOPE: {
     cellError: "#N/A",

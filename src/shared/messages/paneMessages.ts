@@ -56,4 +56,16 @@ export const PANE_MESSAGES = {
     template:
       "The basis formula at {sheet}!{anchor} was kept over its old rows, because its recipe cannot be computed over the table's new rows: {reason}",
   },
+  // ---- the portable model (keep, download, scoring formulas) -----------------------------------
+  KEPT_NO_ROOM: {
+    cellError: "#VALUE!",
+    title: "No free row for another kept model",
+    template:
+      "The sheet {sheet} already holds {rows} kept models, in rows 2 to {last}. Delete the rows of models you no longer need on that sheet (unhide it first), or keep this model under the name of one to replace.",
+  },
+  PORTABLE_NO_FIT: {
+    cellError: "#N/A",
+    title: "No fitted model yet",
+    template: "There is no fitted model to {action}. Fit a model first (section 1), then press the button again.",
+  },
 } as const satisfies Record<string, MessageEntry>;

@@ -675,8 +675,25 @@ describe("coefficients beyond the range of doubles", () => {
     expect(f.table.every((r) => Number.isNaN(r.estimate))).toBe(true);
   });
 
-  test("a standard error above ~1e154 (variance overflow) is reported the same way", () => {
+  // Issue 12, point 5: a column multiplied by 1e-200 has a coefficient and a standard error of about
+  // 1e200, both representable; only its variance (about 1e400) is not. It was refused as
+  // COEFFICIENT_OVERFLOW; now it is estimated, and the covariance (with that variance) is not published.
+  test("a variance above the double range (column x 1e-200) keeps its estimate and SE; only the covariance is withheld", () => {
     const X = design({ GPA: spX.columns[0].map((v) => v * 1e160), TUCE: spX.columns[1].map((v) => v * 1e-200), PSI: spX.columns[2] });
+    const f = fitBinaryModel(X, spY);
+    const plain = fitBinaryModel(spX, spY);
+    expect(f.diagnostics.map((d) => d.code)).not.toContain("COEFFICIENT_OVERFLOW");
+    expect(f.covariance).toBeNull();
+    const factor = [1, 1e-160, 1e200, 1];
+    f.table.forEach((r, t) => {
+      expect(Math.abs(r.estimate / (plain.table[t].estimate * factor[t]) - 1)).toBeLessThan(1e-9);
+      expect(Math.abs(r.standardError / (plain.table[t].standardError * factor[t]) - 1)).toBeLessThan(1e-9);
+      expect(Math.abs(r.z - plain.table[t].z)).toBeLessThan(1e-9);
+    });
+  });
+
+  test("a coefficient itself beyond the double range (column x 1e-310: about 1e309) is still COEFFICIENT_OVERFLOW", () => {
+    const X = design({ GPA: spX.columns[0], TUCE: spX.columns[1].map((v) => v * 1e-310), PSI: spX.columns[2] });
     const f = fitBinaryModel(X, spY);
     expect(f.diagnostics.find((x) => x.code === "COEFFICIENT_OVERFLOW")!.columns).toEqual(["TUCE"]);
     expect(f.covariance).toBeNull();

@@ -227,7 +227,7 @@ describe("options", () => {
     const fit = fitMulticlassModel(X, y, anes.classes, { maxIterations: 1 });
     const d = fit.diagnostics.find((e) => e.code === "NOT_CONVERGED")!;
     expect(d.severity).toBe("warning");
-    expect(d.message).toContain("did not converge in 1 iterations");
+    expect(d.message).toContain("did not converge in 1 iteration ("); // singular (issue 12, point 8)
     expect(fit.converged).toBe(false);
     expect(fit.iterations).toBe(1);
     expect(fit.coefficients.every((b) => Array.from(b).every(Number.isFinite))).toBe(true);

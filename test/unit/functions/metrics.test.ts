@@ -113,9 +113,12 @@ describe("ODDS.LOGLOSS", () => {
     expect(f.message).toBe(formatMessage("UNKNOWN_OPTION", { name: "treshold", fn: "ODDS.LOGLOSS", valid: "positive, headers" }));
   });
 
-  test("a label column of one class is #VALUE! ONE_CLASS_ONLY", () => {
+  // Issue 12 point 7: one class is defined for log-loss once the column names its class; an unnamed
+  // column (header "p") cannot say which class it is for, so it is still refused, by a message that says so.
+  test("a label column of one class under an unnamed probability column is #VALUE! METRIC_CLASS_UNNAMED", () => {
     const f = failure(() => logLoss(column("y", ["a", "a"]), column("p", [0.9, 0.2]), OMITTED));
-    expect(f.code).toBe("ONE_CLASS_ONLY");
+    expect(f.code).toBe("METRIC_CLASS_UNNAMED");
+    expect(f.message).toBe(formatMessage("METRIC_CLASS_UNNAMED", { label: "a" }));
   });
 });
 

@@ -12,7 +12,8 @@ import { MAX_PARAM_CHARS } from "../../../src/engine/messages";
 import { formatMessage } from "../../../src/shared/messages";
 import { readTable } from "../../../src/engine/data/table";
 import type { CellValue } from "../../../src/engine/types";
-import { firthCaseRanges } from "../../../bench/firthLimit";
+import { FIRTH_CASE, firthCaseRanges } from "../../../bench/firthLimit";
+import rReference from "../../fixtures/binary/extremes.json";
 
 type Range = CellValue[][];
 
@@ -119,6 +120,9 @@ describe("4. Firth's cost is bounded by a work estimate", () => {
   test("FIT firth=true over the limit is FIRTH_TOO_COSTLY; the benchmark's case is accepted by the limit", () => {
     const { labels, predictors } = firthCaseRanges(300, 300);
     expect(failure(() => call("FIT", [labels, predictors, [["firth=true"]]])).code).toBe("FIRTH_TOO_COSTLY");
+    // The benchmark's case (bench/firthLimit.ts: predictors plus the intercept) lies within the limit.
+    expect(() => checkFirthWork(FIRTH_CASE.rows, FIRTH_CASE.predictors + 1)).not.toThrow();
+    expect(FIRTH_CASE.rows * (FIRTH_CASE.predictors + 1) ** 2).toBeLessThanOrEqual(FIRTH_WORK_LIMIT);
   });
 });
 
@@ -139,6 +143,54 @@ describe("5. wrong or blank answers at the ends of the double range", () => {
   test("a binary score whose linear predictor overflows is 1 or 0, not blank", () => {
     const out = call("SCORE", [[["class (positive: y)", "term", "coefficient"], ["y", "(intercept)", 1e308], ["y", "x", 1e308]], [["x"], [1], [-2]]]);
     expect(out).toEqual([["P(y)"], [1], [0]]);
+  });
+});
+
+describe("5. the fit at the ends of the double range, against R (test/fixtures/binary/extremes.R)", () => {
+  const R = rReference;
+  const labels: Range = [["y"], ...R.data.y.map((v) => [v])];
+  const predictors = (f: (x: number, i: number) => number): Range => [["x"], ...R.data.x.map((v, i) => [f(v, i)])];
+  /** R agrees with our ordinary fits to about 1e-10 (DEVELOPERS.md); its JSON keeps 15 digits. */
+  const R_TOL = 1e-9;
+  const rel = (a: unknown, b: number) => Math.abs((a as number) / b - 1);
+  const notes = (table: Range) => table.slice(3).map((r) => String(r[0]));
+
+  test("one outlier at 1e9 (row 20 of 20, label 1): the estimate exists and is the fit of rows 1-19, not separation", () => {
+    const table = call("FIT", [labels, predictors((x, i) => (i === R.outlier.row - 1 ? R.outlier.value : x))]);
+    const ref = R.outlier.first19;
+    // R's own glm does not reach it (not converged, or a lower likelihood): see the fixture's loglikAt.
+    expect(R.outlier.loglikAt.first19).toBeGreaterThan(Math.max(R.outlier.loglikAt.strict, R.outlier.loglikAt.default));
+    for (let t = 0; t < 2; t++) {
+      expect(rel(table[1 + t][2], ref.coefficients[t])).toBeLessThan(R_TOL);
+      expect(rel(table[1 + t][3], ref.standardErrors[t])).toBeLessThan(R_TOL);
+    }
+    expect(notes(table).some((m) => /separated|did not converge/.test(m))).toBe(false);
+  });
+
+  test("a column multiplied by 1e-200: coefficient about 4e200 as R gives it, and the standard error R cannot (its variance overflows)", () => {
+    const table = call("FIT", [labels, predictors((x) => x * R.scaled.factor)]);
+    expect(R.scaled.fit.standardErrors[1]).toBe("Inf");
+    for (let t = 0; t < 2; t++) {
+      expect(rel(table[1 + t][2], R.scaled.fit.coefficients[t])).toBeLessThan(R_TOL);
+      expect(rel(table[1 + t][3], R.scaled.expectedStandardErrors[t])).toBeLessThan(R_TOL);
+      expect(rel(table[1 + t][4], R.plain.z[t])).toBeLessThan(R_TOL);
+    }
+  });
+
+  test.each([
+    ["original", 0],
+    ["original", 1],
+    ["standardized", 0],
+    ["standardized", 1],
+  ] as const)("penalty %s #%d (1e300, 1e305): the intercept kept, the slope of the closed form, converged without warnings", (scale, k) => {
+    const ref = R.ridge[scale][k];
+    const options: Range = [[`penalty=${ref.penalty}; scale=${scale}`]];
+    const table = call("FIT", [labels, predictors((x) => x), options]);
+    expect(rel(table[1][2], ref.intercept)).toBeLessThan(1e-12); // logit(11/20) and a shift of 1e-300
+    expect(rel(table[2][2], ref.slope)).toBeLessThan(1e-12);
+    expect(notes(table).filter((m) => m !== "")).toEqual([expect.stringMatching(/^The fit is penalized/)]);
+    const report = new Map(call("REPORT", [labels, predictors((x) => x), options]).map((r) => [r[0], r[1]]));
+    expect([report.get("converged"), report.get("parameters estimated")]).toEqual([true, 2]);
   });
 });
 
@@ -168,6 +220,48 @@ describe("7. one validation rule for the metrics", () => {
   test("AUC refuses probabilities of 1.5 and -0.1 like LOGLOSS", () => {
     for (const fn of ["AUC", "LOGLOSS", "CONFUSION", "CALIBRATION"]) {
       expect([fn, failure(() => call(fn, [[[1], [0], [1]], [[1.5], [-0.1], [0.4]]])).code]).toEqual([fn, "BAD_PROBABILITY"]);
+    }
+  });
+});
+
+describe("7. metrics over labels of one class: defined where the metric is", () => {
+  const yes: Range = [["y"], ["yes"], ["yes"], ["yes"]];
+  const p = [0.9, 0.8, 0.3];
+  /** Log-loss of three rows of the class the column is for, written out from its definition. */
+  const meanMinusLog = (q: number[]) => -(Math.log(q[0]) + Math.log(q[1]) + Math.log(q[2])) / 3;
+  const LOSS_TOLERANCE = 1e-14; // a mean of three logs in double precision
+
+  test("LOGLOSS is the mean of -log P(observed class), whether the column, its header or positive names the class", () => {
+    const cases: [Range, Range | null, number][] = [
+      [[["P(yes)"], ...p.map((v) => [v])], null, meanMinusLog(p)],
+      [[["p"], ...p.map((v) => [v])], [["positive=yes"]], meanMinusLog(p)],
+      [[["P(no)"], ...p.map((v) => [v])], null, meanMinusLog(p.map((v) => 1 - v))],
+      [[["P(no)", "P(yes)"], ...p.map((v) => [1 - v, v])], null, meanMinusLog(p)],
+    ];
+    for (const [probs, options, expected] of cases) {
+      const out = call("LOGLOSS", options ? [yes, probs, options] : [yes, probs]);
+      expect(Math.abs((out[0][0] as number) - expected)).toBeLessThan(LOSS_TOLERANCE);
+    }
+    const three = call("LOGLOSS", [[["y"], ["b"], ["b"], ["b"]], [["P(a)", "P(b)", "P(c)"], [0.1, 0.8, 0.1], [0.2, 0.7, 0.1], [0.3, 0.3, 0.4]]]);
+    expect(Math.abs((three[0][0] as number) - meanMinusLog([0.8, 0.7, 0.3]))).toBeLessThan(LOSS_TOLERANCE);
+  });
+
+  test("CONFUSION counts one class against its partner (1/0) with the undefined rate left empty", () => {
+    const out = call("CONFUSION", [[["y"], [1], [1], [1]], [["p"], ...p.map((v) => [v])], [["positive=1"]]]);
+    expect(out.slice(0, 3).map((r) => r.slice(0, 3))).toEqual([["actual \\ predicted", "0", "1"], ["0", 0, 0], ["1", 1, 2]]);
+    expect(out.find((r) => r[0] === "sensitivity (1)")?.[1]).toBeCloseTo(2 / 3, 15);
+    expect(out.find((r) => r[0] === "specificity (0)")?.[1]).toBe("");
+  });
+
+  test("one unnamed column is METRIC_CLASS_UNNAMED; AUC and CALIBRATION say they need both classes", () => {
+    const unnamed = failure(() => call("LOGLOSS", [yes, [["p"], ...p.map((v) => [v])]]));
+    expect(unnamed.code).toBe("METRIC_CLASS_UNNAMED");
+    expect(unnamed.message).toContain('Every row has the label "yes"');
+    expect(failure(() => call("CONFUSION", [[[1], [1], [1]], p.map((v) => [v])])).code).toBe("METRIC_CLASS_UNNAMED");
+    for (const fn of ["AUC", "CALIBRATION"]) {
+      const e = failure(() => call(fn, [yes, [["P(yes)"], ...p.map((v) => [v])]]));
+      expect([fn, e.code]).toEqual([fn, "METRIC_NEEDS_BOTH_CLASSES"]);
+      expect(e.message).toContain(`ODDS.${fn}`);
     }
   });
 });
@@ -203,5 +297,40 @@ describe("8. messages", () => {
     expect(formatMessage("RANGE_SHAPE_MISMATCH", { argument: "a", got: 1, expectedArgument: "b", expected: 2 })).toContain("has 1 row but");
     expect(formatMessage("BASIS_MANY_COLUMNS", { columns: 1, rows: 1, ratio: 1, rule: 10 })).toContain("makes 1 column for 1 row (");
     expect(formatMessage("SEPARATION_QUASI", { columns: '"a"', count: 1, rows: "3" })).toMatch(/^The classes are separated by "a" for 1 row \(for example row 3\)/);
+    expect(formatMessage("NOT_CONVERGED", { iterations: 1, change: 0.5 })).toContain("in 1 iteration (");
+    expect(formatMessage("NOT_CONVERGED", { iterations: 25, change: 0.5 })).toContain("in 25 iterations (");
+    expect(formatMessage("TOO_FEW_CALIBRATION_GROUPS", { groups: 1, requested: 10, needed: 3 })).toContain("only 1 group (of 10 requested)");
+  });
+
+  // A header row read the wrong way is a common cause of a problem: the problem says so.
+  const ys = Y.slice(1);
+  const xs: Range = ys.map((_, i) => [(i * 7) % 5]);
+  test("a label header over a predictors range without one: the problem carries the header hint", () => {
+    const e = failure(() => call("FIT", [Y, xs]));
+    expect(e.code).toBe("NOT_A_NUMBER");
+    expect(e.message).toContain('("y") is not a number');
+    expect(e.message).toContain("(Header rows: the first row of predictors looks like data and the first row of labels like column names, so every first row was read as data;");
+    expect(e.message).toContain("set headers=yes or headers=no.)");
+  });
+
+  test("a numeric first label under a predictors header: the shape problem says the labels' first row became a header", () => {
+    const e = failure(() => call("FIT", [ys, [["x"], ...xs]]));
+    expect(e.code).toBe("RANGE_SHAPE_MISMATCH");
+    expect(e.message).toContain("the first row of predictors looks like column names and the first row of labels like data, so every first row was read as column names");
+  });
+
+  test("the hint is absent when the first rows agree, and headers=no settles it", () => {
+    expect(failure(() => call("FIT", [Y, [["x"], ...xs.slice(1)]])).message).not.toContain("Header rows");
+    expect(failure(() => call("FIT", [Y, xs, [["headers=no"]]])).message).not.toContain("Header rows");
+  });
+
+  test("a metric whose labels start with a number under a probabilities header asks instead of dropping the row", () => {
+    const labels: Range = [[1], [0], [1], [0]];
+    const e = failure(() => call("LOGLOSS", [labels, [["P(1)"], [0.9], [0.2], [0.6]]]));
+    expect(e.code).toBe("METRIC_HEADERS_DISAGREE");
+    expect(e.message).toContain("The first row of labels looks like data, but the first row of probabilities looks like column names.");
+    // Said explicitly, the same ranges are read: headers=yes takes row 1 as names (three rows remain).
+    const out = call("LOGLOSS", [labels, [["P(1)"], [0.9], [0.2], [0.6]], [["headers=yes"]]]);
+    expect(out[0][0]).toBeCloseTo(-(Math.log(1 - 0.9) + Math.log(0.2) + Math.log(1 - 0.6)) / 3, 14); // labels 0, 1, 0
   });
 });

@@ -54,6 +54,15 @@ class FakePort implements WorkbookPort {
     this.sheets.set(final, new Map());
     return final;
   }
+  async ensureHiddenSheet(name: string): Promise<boolean> {
+    if (this.sheets.has(name)) return false;
+    this.sheets.set(name, new Map());
+    return true;
+  }
+  async writeText(sheet: string, at: string, values: string[][]): Promise<void> {
+    const r = parseAddress(at)!;
+    this.put(sheet, r.top, r.left, values);
+  }
   async isEmpty(sheet: string, address: string): Promise<boolean> {
     const r = parseAddress(address)!;
     for (let i = r.top; i <= r.bottom; i++) for (let j = r.left; j <= r.right; j++) if (this.get(sheet, i, j) !== null && this.get(sheet, i, j) !== "") return false;

@@ -7,6 +7,9 @@ import { OfficeMockObject } from "office-addin-mock";
 
 import { columnNumber, parseAddress, rectAddress } from "../../../src/taskpane/a1";
 import { ExcelPort, OUR_FILL, rowRuns, type TransferProgress } from "../../../src/taskpane/excelPort";
+import { scoreRows, trainModel } from "../../../src/engine";
+import { keptCell } from "../../../src/functions/keptCell";
+import { keepInWorkbook, paneDescription } from "../../../src/taskpane/portableModel";
 
 type Grid = (string | number | boolean)[][];
 
@@ -19,6 +22,7 @@ interface Created {
 function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1", fills: Record<string, string> = {}) {
   const created: Created[] = [];
   const added: string[] = [];
+  const addedSheets: Record<string, unknown>[] = [];
   const events: { sheet: string; handler: () => Promise<void> }[] = [];
   const loads: string[] = [];
   let counter = 0;
@@ -104,6 +108,10 @@ function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1", fills: Re
           },
           add: function (name: string) {
             added.push(name);
+            // The new sheet, recording what the port sets on it (its visibility).
+            const sheet: Record<string, unknown> = { name };
+            addedSheets.push(sheet);
+            return sheet;
           },
         },
         getSelectedRange: function () {
@@ -142,7 +150,7 @@ function mockExcel(sheets: Record<string, Grid>, selected = "Data!A1", fills: Re
     });
     sheetMocks[sheet] = ws;
   }
-  return { root, created, added, events, loads, fills, run: (batch: any) => root.run(batch) };
+  return { root, created, added, addedSheets, events, loads, fills, run: (batch: any) => root.run(batch) };
 }
 
 /** A 12 x 3 grid: header row, then numbers with a blank at row 5, column B. */
@@ -359,5 +367,62 @@ describe("ExcelPort highlighting, selection and events", () => {
     expect(excel.events.map((e) => e.sheet)).toEqual(["Data"]);
     await excel.events[0].handler();
     expect(calls).toBe(1);
+  });
+});
+
+describe("ExcelPort keeping text (the kept model)", () => {
+  test("ensureHiddenSheet adds the sheet hidden when it is missing and leaves an existing one alone", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const port = new ExcelPort({}, excel.run);
+    expect(await port.ensureHiddenSheet("OddsmithModels")).toBe(true);
+    expect(excel.added).toEqual(["OddsmithModels"]);
+    expect(excel.addedSheets[0].visibility).toBe("Hidden");
+    expect(await port.ensureHiddenSheet("Data")).toBe(false);
+    expect(excel.added).toEqual(["OddsmithModels"]);
+  });
+
+  test("writeText formats every cell as text before setting it, and splits a long row into requests", async () => {
+    const excel = mockExcel({ Data: sampleGrid() });
+    const port = new ExcelPort({}, excel.run);
+    const part = "x".repeat(30_000);
+    // Header + 40 parts of 30,000 characters: 1,200,000 characters, more than one request carries.
+    const row = ["oddsmith-model 1.0; ...", ...Array.from({ length: 40 }, (_, k) => `part ${k + 1}/40:${part}`), "=looks like a formula"];
+    await port.writeText("Data", "A2", [row]);
+    const writes = excel.created.filter((c) => c.range.values !== undefined && c.range.numberFormat !== undefined && Array.isArray(c.range.numberFormat));
+    expect(writes.length).toBe(2);
+    expect(writes.map((w) => w.address)).toEqual(["A2:AH2", "AI2:AP2"]);
+    for (const w of writes) {
+      expect((w.range.numberFormat as string[][])[0].every((f) => f === "@")).toBe(true);
+      const chars = (w.range.values as string[][])[0].reduce((n, v) => n + v.length, 0);
+      expect(chars).toBeLessThanOrEqual(1_000_000);
+    }
+    const written = writes.flatMap((w) => (w.range.values as string[][])[0]);
+    expect(written).toEqual(row);
+  });
+});
+
+/** The brief's agreement for a model read back from its kept cells (JSON keeps doubles: 0 expected). */
+const KEPT_ROUND_TRIP = 1e-12;
+
+describe("ExcelPort: a kept model written through the Excel API reads back with ODDS.KEPT", () => {
+  test("the cells the port writes for a kept model, read back as Excel returns them, score as the fitted model to 1e-12", async () => {
+    const grid = sampleGrid();
+    const labels = grid.map((r) => [r[2]]);
+    const predictors = grid.map((r) => [r[0], r[1] === "" ? null : r[1]]);
+    // Weight and moisture against the yes/no flag (row 5's blank moisture is skipped in the fit).
+    const model = trainModel(labels, predictors, { penalty: 0.5 });
+    const excel = mockExcel({ Data: grid, OddsmithModels: [] });
+    const place = await keepInWorkbook(new ExcelPort({}, excel.run), paneDescription(model, "flag model", "2026-12-05T13:00:00Z"));
+    expect(place).toMatchObject({ row: 2, reference: "OddsmithModels!2:2" });
+    const writes = excel.created.filter((c) => Array.isArray(c.range.numberFormat) && c.range.values !== undefined);
+    const row = writes.flatMap((w) => (w.range.values as string[][])[0]);
+    expect(writes.every((w) => (w.range.numberFormat as string[][])[0].every((f) => f === "@"))).toBe(true);
+    expect(row.length).toBe(place.parts + 1);
+    const scored = keptCell([row], predictors, null);
+    const p = scoreRows(model, predictors).prediction.probabilities[1];
+    for (let i = 0; i < p.length; i++) {
+      if (Number.isNaN(p[i])) expect(scored[i + 1][0]).toBe("");
+      else expect(Math.abs((scored[i + 1][0] as number) - p[i])).toBeLessThanOrEqual(KEPT_ROUND_TRIP);
+    }
   });
 });
