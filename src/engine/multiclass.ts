@@ -10,35 +10,22 @@
  *   are pinned by the side condition sum_k a_k = 0, which the penalized optimum satisfies anyway for
  *   the slopes). Coefficients only: no classical standard errors or p-values.
  *
- * Fitting: Newton-Raphson on the full Hessian (all equations jointly) with step halving and R's glm
- * convergence rule |dev - dev_old| / (0.1 w + |dev|) < tol (w the mean case weight), on internally centred and scaled columns;
- * coefficients and covariance are mapped back to the original scale. The softmax subtracts the row
- * maximum and the log-likelihood uses log-sum-exp, so no exponential overflows.
- * Hessian (information) blocks are I_kl = X' diag(w p_k (delta_kl - p_l)) X (Böhning, "Multinomial
- * logistic regression algorithm", Ann. Inst. Statist. Math. 44 (1992) 197-200): only the E(E+1)/2
- * blocks k <= l, and in each only the upper triangle (each block is symmetric), are accumulated in
- * one pass over the rows, together with the probabilities, the log-likelihood and the score: per
- * chunk of 256 rows (which stays in cache) by the tiled kernels of blockAccumulate.ts; the full
- * matrix is mirrored from them at the end.
- * After convergence one more full Newton step polishes the estimate; the covariance is the inverse
- * information at the last iterate.
+ * Fitting: the one Newton-Raphson loop of the fits (glm/newton.ts, shared with the binary fit) on
+ * the multinomial family (families/multinomial.ts), through glm/multinomialFit.ts: the full
+ * information (all equations jointly), step halving and R's glm convergence rule
+ * |dev - dev_old| / (0.1 w + |dev|) < tol (w the mean case weight), on internally centred and
+ * scaled columns; coefficients and covariance are mapped back to the original scale. The softmax
+ * subtracts the row maximum and the log-likelihood uses log-sum-exp, so no exponential overflows.
+ * Information blocks I_kl = X' diag(w p_k (delta_kl - p_l)) X (Böhning, "Multinomial logistic
+ * regression algorithm", Ann. Inst. Statist. Math. 44 (1992) 197-200) are summed by the kernels
+ * (kernels/: JavaScript blocks, WebAssembly SIMD, and the plain reference they are tested against).
  *
- * Large data (speed): with at least 40,000 rows the iterations start from a fit on a systematic
- * subsample of about 5,000 rows, with that subsample's information (scaled up) standing in for the
- * full-data one; while the steps stay full-length the information is reused (the chord or
- * simplified Newton method, C. T. Kelley, Solving Nonlinear Equations with Newton's Method, SIAM
- * 2003, ch. 2) with a secant (BFGS) correction of its inverse after each step (Nocedal & Wright,
- * Numerical Optimization, 2nd ed., 2006, §6.1), each step then costing one pass for the score
- * instead of the O(n E^2 p^2) information; convergence then also asks for a Newton decrement below
- * 1e-8, and the final information and polishing Newton step are always computed on all rows.
- * Passes over the rows are not repeated: a trial point at which the information will be needed
- * (a fresh-information step, or the predicted last step, judged from the decrement's contraction)
- * is evaluated with it at once, and the polishing step, whose predicted gain g' H^-1 g / 2 is then
- * below the rounding of the objective, is taken without another pass.
- * Result: the same estimate as plain Newton-Raphson (5e-13 relative in the coefficients, 2e-8 in
- * the standard errors on a 100,000 x 20 x 5-class test) with 1 full information pass instead of 7
- * and 6 score passes (100,000 x 20 x 5 classes).
- * Smaller fits (fewer rows, or n q^2 E(E+1)/2 below 2e7) take plain Newton-Raphson steps.
+ * Large data (speed): from 40,000 rows the iterations start from a fit on a systematic subsample
+ * (the warm-start rule of glm/warmStart.ts, the binary fit's too), its information scaled up
+ * standing in for the full-data one and refined by BFGS along each step, each step then costing a
+ * score pass instead of an information pass; where an information pass is costly the loop saves
+ * passes as its file comment describes ("pass economy"). The covariance is the inverse of an
+ * exact full-data information at (or one tiny polishing step before) the estimate.
  *
  * Penalty convention (shared with the binary model): objective = -logLik + (lambda / 2) *
  * sum over equations and non-intercept terms of (s_j b_kj)^2, with s_j the population SD of column j
@@ -47,11 +34,13 @@
  *
  * Edge-case policy (each rule is repeated above the code that applies it):
  * - A row with a non-finite predictor or a negative class index (missing label) is skipped, and
- *   counted in a ROWS_SKIPPED note; a row with weight 0 is left out silently (that is what 0 means).
+ *   counted in a ROWS_SKIPPED warning; a row with weight 0 is left out silently (that is what 0 means).
  * - Aliased columns (1 - R^2 <= 1e-9 on the columns before them, weighted) are dropped, named, and
  *   reported with estimable = false and NaN numbers.
- * - A failed fit (separation, non-convergence, empty class, too few rows) returns NaN numbers and an
- *   "error" diagnostic: diverged numbers are never presented as results.
+ * - A failed fit (separation, empty class, too few rows, a likelihood that is not finite) returns
+ *   NaN numbers and an "error" diagnostic: diverged numbers are never presented as results. A fit
+ *   stopped at the iteration cap keeps its estimate with a NOT_CONVERGED warning. Severities come
+ *   from the one table of the catalogue (DIAGNOSTIC_SEVERITY in messages.ts), as in the binary fit.
  */
 
 import {
@@ -139,9 +128,10 @@ interface NewtonResult {
  *   penalty lambda [0], penaltyScale ["standardized"], form ["reference"], reference [0],
  *   level [0.95], maxIterations [100], tolerance [1e-10]
  * @returns a {@link ModelFit} of kind "multiclass"; every problem found is in `diagnostics`:
- *   ALIASED_COLUMNS (warning), ROWS_SKIPPED and PENALIZED_NO_P_VALUES (notes), and as errors with
- *   NaN estimates EMPTY_CLASS, TOO_FEW_ROWS, NOT_CONVERGED and CLASSES_SEPARATED (unpenalized fits;
- *   the method, a certified diverging Newton direction, is described at findSeparation below)
+ *   ALIASED_COLUMNS, ROWS_SKIPPED and NOT_CONVERGED (warnings), PENALIZED_NO_P_VALUES (note), and as
+ *   errors with NaN estimates EMPTY_CLASS, TOO_FEW_ROWS, LIKELIHOOD_NOT_FINITE and CLASSES_SEPARATED
+ *   (unpenalized fits; the method, a certified diverging Newton direction, is described at
+ *   findSeparation below); severities from DIAGNOSTIC_SEVERITY in messages.ts
  * @throws OddsmithError for input the caller must correct: RANGE_SHAPE_MISMATCH, BAD_WEIGHT,
  *   BAD_OPTION_VALUE, CLASS_INDEX_OUT_OF_RANGE, SYMMETRIC_NEEDS_PENALTY, ONE_CLASS_ONLY, NO_USABLE_ROWS
  *

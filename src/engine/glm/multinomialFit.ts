@@ -12,7 +12,7 @@ import { MultinomialLikelihood, type MultinomialData } from "../families/multino
 import { createKernel } from "../kernels";
 import { pairCount } from "../kernels/types";
 import { newtonStep, runNewton, type NewtonOutcome, type NewtonTask } from "./newton";
-import { pickIntegers, pickRows, scaledCopy, subsampleSettings, subsampleStride } from "./warmStart";
+import { pickIntegers, pickRows, scaledCopy, subsampleWarmStart, type WarmStart, type WarmStartFamily } from "./warmStart";
 
 /** A multinomial fit in the fitting coordinates. */
 export interface MultinomialProblem extends MultinomialData {
@@ -98,43 +98,53 @@ function run(task: NewtonTask): MultinomialOutcome {
   return { ...outcome, finalStep: step ? step.step : null };
 }
 
+/** The multinomial family's part of the warm start (glm/warmStart.ts). */
+const MULTINOMIAL_WARM_START: WarmStartFamily<MultinomialProblem> = {
+  subsample(p: MultinomialProblem, stride: number): MultinomialProblem {
+    const weights = pickRows(p.weights, stride);
+    return {
+      rows: weights.length,
+      classOf: pickIntegers(p.classOf, stride),
+      weights,
+      classes: p.classes,
+      equationClasses: p.equationClasses,
+      symmetric: p.symmetric,
+      columns: p.columns.map((c) => pickRows(c, stride)),
+      intercept: p.intercept,
+      penalty: p.penalty,
+      maxIterations: p.maxIterations,
+      tolerance: p.tolerance,
+    };
+  },
+  weight(p: MultinomialProblem): number {
+    let total = 0;
+    for (let i = 0; i < p.rows; i++) total += p.weights[i];
+    return total;
+  },
+  fit(sub: MultinomialProblem, settings: { tolerance: number; maxIterations: number; share: number }) {
+    // A class with (almost) no rows in the subsample (a rare class) would send its fit off to
+    // infinity. (Every class has rows in the full data: the fit refuses an empty class before.)
+    if (!classWeights(sub).every((v) => v >= WARM_START_MIN_CLASS_WEIGHT)) return null;
+    sub.tolerance = settings.tolerance;
+    sub.maxIterations = settings.maxIterations;
+    sub.penalty = scaledCopy(sub.penalty, settings.share);
+    const fit = run(taskOf(sub, null, null));
+    // A last Newton step that still moves a coefficient by more than WARM_START_MAX_STEP: the
+    // subsample fit may be diverging (separation in the subsample).
+    if (!fit.finalStep) return null;
+    for (const v of fit.finalStep) if (Math.abs(v) > WARM_START_MAX_STEP) return null;
+    return fit;
+  },
+};
+
 /**
- * The shared warm start (glm/warmStart.ts) for a multinomial problem: the fit on every stride-th
- * row, and its information scaled up by total weight / subsample weight. Null below the subsample
- * size, or when the subsample fit is not usable (a class with too little weight in it, not
- * converged, a singular information, or a last Newton step that still moves a coefficient by more
- * than WARM_START_MAX_STEP, which may signal separation): the fit then starts at the null model.
+ * Starting values for a large multinomial fit by the shared warm-start rule (glm/warmStart.ts);
+ * null when there is none (small data, or a subsample fit that is no guide: a class with too
+ * little weight in the subsample, or a last Newton step above WARM_START_MAX_STEP).
+ * Reference: Nocedal & Wright, Numerical Optimization, 2nd ed. (2006), ch. 6.
  */
-function warmStart(p: MultinomialProblem): { start: Float64Array; information: Float64Array } | null {
-  const stride = subsampleStride(p.rows, p.columns.length);
-  if (stride === 0) return null;
-  const weights = pickRows(p.weights, stride);
-  const sub: MultinomialProblem = {
-    rows: weights.length,
-    classOf: pickIntegers(p.classOf, stride),
-    weights,
-    classes: p.classes,
-    equationClasses: p.equationClasses,
-    symmetric: p.symmetric,
-    columns: p.columns.map((c) => pickRows(c, stride)),
-    intercept: p.intercept,
-    penalty: p.penalty,
-    ...subsampleSettings(p.tolerance, p.maxIterations),
-  };
-  const full = classWeights(p);
-  const part = classWeights(sub);
-  // A class the subsample misses (a rare class) would send the subsample fit off to infinity.
-  if (!full.every((v, k) => !(v > 0) || part[k] >= WARM_START_MIN_CLASS_WEIGHT)) return null;
-  let total = 0;
-  let subTotal = 0;
-  for (const v of full) total += v;
-  for (const v of part) subTotal += v;
-  // The penalty keeps its share of the objective on the subsample (as in the binary warm start).
-  sub.penalty = scaledCopy(p.penalty, subTotal / total);
-  const fit = run(taskOf(sub, null, null));
-  if (!fit.converged || fit.singular || !fit.theta.every(Number.isFinite) || !fit.finalStep) return null;
-  for (const v of fit.finalStep) if (Math.abs(v) > WARM_START_MAX_STEP) return null;
-  return { start: fit.theta, information: scaledCopy(fit.information, total / subTotal) };
+export function multinomialWarmStart(p: MultinomialProblem): WarmStart | null {
+  return subsampleWarmStart(p, { rows: p.rows, columns: p.columns.length, tolerance: p.tolerance, maxIterations: p.maxIterations }, MULTINOMIAL_WARM_START);
 }
 
 /**
@@ -143,6 +153,6 @@ function warmStart(p: MultinomialProblem): { start: Float64Array; information: F
  * Reference: Agresti (2013), sec. 8.1; McCullagh & Nelder (1989), ch. 2.
  */
 export function fitMultinomial(p: MultinomialProblem): MultinomialOutcome {
-  const warm = warmStart(p);
+  const warm = multinomialWarmStart(p);
   return run(taskOf(p, warm ? warm.start : null, warm ? warm.information : null));
 }

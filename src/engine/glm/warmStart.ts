@@ -41,6 +41,58 @@ export function subsampleSettings(tolerance: number, maxIterations: number): { t
   return { tolerance: Math.max(tolerance, WARM_START_TOLERANCE), maxIterations: Math.min(maxIterations, WARM_START_MAX_ITERATIONS) };
 }
 
+/** A warm start: starting values and an approximate information there (see glm/newton.ts). */
+export interface WarmStart {
+  start: Float64Array;
+  information: Float64Array;
+}
+
+/** What the warm-start rule reads from a subsample fit. */
+export interface SubsampleFit {
+  theta: Float64Array;
+  information: Float64Array;
+  converged: boolean;
+  singular: boolean;
+}
+
+/** A family's part of the warm start: how to take its rows and weigh them, and how to fit them. */
+export interface WarmStartFamily<P> {
+  /** The problem on every stride-th row (the same columns, classes and options). */
+  subsample(problem: P, stride: number): P;
+  /** Total weight of a problem's rows (sum of w, or of w t for grouped binomial rows). */
+  weight(problem: P): number;
+  /**
+   * Fit the subsample with `settings`: the tolerance and iteration cap of the subsample fit, and
+   * the subsample's share of the total weight, by which its ridge penalty is multiplied. Null when
+   * the family sees the fit as no guide (a class missing from the subsample, a sign of separation).
+   */
+  fit(subsample: P, settings: { tolerance: number; maxIterations: number; share: number }): SubsampleFit | null;
+}
+
+/**
+ * The one warm-start rule of the large fits (see the file comment): the family's fit on every
+ * stride-th row, its ridge penalty multiplied by the subsample's share w_s / w of the total weight
+ * (so the penalty keeps its share of the objective), and its information scaled up by w / w_s as
+ * the stand-in for the full one. Null below WARM_START_MIN_ROWS, or when the subsample fit is no
+ * guide (the family says so, or it did not converge, or its information is singular, or an
+ * estimate is not finite): the full fit then starts from its usual start.
+ * Reference: Nocedal & Wright (2006), ch. 6; common practice of subsampled Newton methods.
+ */
+export function subsampleWarmStart<P>(
+  problem: P,
+  size: { rows: number; columns: number; tolerance: number; maxIterations: number },
+  family: WarmStartFamily<P>,
+): WarmStart | null {
+  const stride = subsampleStride(size.rows, size.columns);
+  if (stride === 0) return null;
+  const sub = family.subsample(problem, stride);
+  const share = family.weight(sub) / family.weight(problem);
+  if (!(share > 0 && share < 1)) return null;
+  const fit = family.fit(sub, { ...subsampleSettings(size.tolerance, size.maxIterations), share });
+  if (!fit || !fit.converged || fit.singular || !fit.theta.every(Number.isFinite)) return null;
+  return { start: fit.theta, information: scaledCopy(fit.information, 1 / share) };
+}
+
 /** Every stride-th entry of an array. */
 export function pickRows(src: Float64Array, stride: number): Float64Array {
   const m = Math.floor((src.length - 1) / stride) + 1;
