@@ -34,7 +34,7 @@
  * - Missing values: NaN in the response, a predictor, a weight, the offset or the trials marks the
  *   row missing; it is skipped and counted in a ROWS_SKIPPED warning. Infinite values are invalid.
  * - Large data: from WARM_START_MIN_ROWS rows the Newton-Raphson iterations start from a fit on a
- *   systematic subsample (see subsampleWarmStart and NewtonProblem.startInformation); from
+ *   systematic subsample (the one rule of glm/warmStart.ts, shared with the multi-class fit); from
  *   SPARSE_MIN_ROWS rows, mostly-zero columns (such as text-level indicators) enter the
  *   information matrix through their non-zero rows. Neither changes the estimate, covariance
  *   (always from the information at the estimate) or log-likelihood beyond rounding and the
@@ -58,8 +58,9 @@ import {
   penalizedNote,
   type Interval,
 } from "./inference";
-import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, subsampleProvesFullRank, type RankRevealingResult } from "./linalg";
-import { fitBinomial, fittingColumns, type BinomialProblem } from "./glm/binomialFit";
+import { congruence, invertSymmetric, rankRevealingCholesky, subMatrix, type RankRevealingResult } from "./linalg";
+import { binomialWarmStart, fitBinomial, fittingColumns, type BinomialProblem } from "./glm/binomialFit";
+import { subsampleRankProof } from "./glm/warmStart";
 import { createKernel } from "./kernels";
 import type { KernelDesign } from "./kernels/types";
 import { exampleRows, fitDiagnostic, listNames, problem, type FitDiagnosticCode } from "./messages";
@@ -576,7 +577,7 @@ function fitInScale(
   // (1 - R^2 >= cap / (cap + 1)); capped, it cannot push an unpenalized column (the intercept)
   // below the rank check's zero-column floor (a diagonal 1e-300 of the largest): penalty=1e305.
   const rankPenalty = opt.biasReduction ? new Float64Array(p) : penaltyAll.map((v) => Math.min(v, RANK_PENALTY_CAP * sumA));
-  // Large data: a subsample may already prove that no column is aliased (see subsampleRankBound).
+  // Large data: a subsample may already prove that no column is aliased (see subsampleRankProof in glm/warmStart.ts).
   // The full diagonal (Z'AZ)_jj is known from the moments (sumA for a column scaled to unit SD, or
   // unit root mean square without an intercept); a column whose spread is at the rounding level of
   // its values (or zero) gets NaN, which no proof passes, and is left to the full check.
@@ -592,7 +593,7 @@ function fitInScale(
     fullDiagonal[j] = spread > RANK_PROOF_MIN_SPREAD * big ? (big / scale[c]) ** 2 * (opt.intercept ? v : ms) + rankPenalty[j] : NaN;
   }
   // (The proof's diagonal comes from moments about the mean: not for the robust refit's centres.)
-  const provenFullRank = !opt.biasReduction && !robust && subsampleRankBound({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a, rankPenalty, fullDiagonal);
+  const provenFullRank = !opt.biasReduction && !robust && subsampleRankProof({ rows: n, columns: raw, centre: centreAll, scale: scaleAll }, a, rankPenalty, fullDiagonal, ALIAS_TOLERANCE);
   let rr: RankRevealingResult;
   if (provenFullRank) {
     rr = { rank: p, independent: Array.from({ length: p }, (_, j) => j), dependent: [], residualShare: new Float64Array(p).fill(NaN) };
@@ -637,7 +638,7 @@ function fitInScale(
   };
   // Large data: start from a fit on a systematic subsample, with its information scaled up
   // standing in for the full-data one at first (see the warm start in glm/newton.ts).
-  const warm = opt.biasReduction ? null : subsampleWarmStart(problemK);
+  const warm = binomialWarmStart(problemK);
   const fit = fitBinomial(warm ? { ...problemK, start: warm.start, startInformation: warm.information } : problemK);
   const { logBinom, saturated } = constantTerms(data);
 
@@ -837,119 +838,17 @@ function fitInScale(
 /** Designs with at least this many rows look for mostly-zero columns (see kernels/sparse.ts). */
 export { SPARSE_MIN_ROWS } from "./kernels";
 
+/** The shared warm-start sizes (glm/warmStart.ts), re-exported for the tests of the large fits. */
+export { WARM_START_MIN_ROWS, WARM_START_ROWS, WARM_START_ROWS_PER_COLUMN } from "./glm/warmStart";
+
 /** Z' diag(a) Z of a design, from its kernel. */
 function designGram(design: KernelDesign, a: Float64Array): Float64Array {
   const p = design.columns.length;
   return createKernel(design, 1).gram(a, new Float64Array(p * p));
 }
 
-/** Rows from which the fit starts from a subsample fit (below it a fit from the usual start is quick). */
-export const WARM_START_MIN_ROWS = 40000;
-/** Target number of rows of the warm-start subsample (at least WARM_START_ROWS_PER_COLUMN per column). */
-export const WARM_START_ROWS = 5000;
-/** Rows of the warm-start subsample per design column (wide designs need more for a close information). */
-export const WARM_START_ROWS_PER_COLUMN = 100;
-/**
- * Convergence tolerance of the subsample fit. Its estimate only chooses where the full-data
- * iterations begin: it differs from the full-data estimate by the subsample's sampling error (about
- * sqrt(rows / subsample rows) full-data standard errors), far more than a tighter tolerance removes.
- */
-const WARM_START_TOLERANCE = 1e-4;
-/** A subsample fit with a fitted probability this far out (|eta| above it) may be near separation: no warm start. */
-const WARM_START_MAX_ETA = 15;
-
 /** The subsample rank proof is only tried for columns whose spread is above this share of their largest magnitude. */
 const RANK_PROOF_MIN_SPREAD = 1e-8;
-
-/** Every stride-th row of a large design for the warm start and the rank proof, or 0 (no subsample). */
-function subsampleStride(n: number, k: number): number {
-  if (n < WARM_START_MIN_ROWS) return 0;
-  // Enough rows per coefficient that the subsample's information is close to the full one's.
-  const stride = Math.max(1, Math.floor(n / Math.max(WARM_START_ROWS, WARM_START_ROWS_PER_COLUMN * k)));
-  return stride < 2 ? 0 : stride;
-}
-
-/** Every stride-th entry of a column. */
-function pickRows(src: Float64Array, stride: number): Float64Array {
-  const m = Math.floor((src.length - 1) / stride) + 1;
-  const out = new Float64Array(m);
-  for (let r = 0; r < m; r++) out[r] = src[r * stride];
-  return out;
-}
-
-/**
- * True when a subsample proves that the full-data rank check (rankRevealingCholesky of Z'AZ + P
- * with ALIAS_TOLERANCE) keeps every column (see subsampleProvesFullRank), so that large fits skip
- * that full pass; P enters with the subsample's share of it, which keeps the full matrix dominant.
- */
-function subsampleRankBound(design: KernelDesign, a: Float64Array, penalty: Float64Array, fullDiagonal: Float64Array): boolean {
-  const n = design.rows;
-  const p = design.columns.length;
-  const stride = subsampleStride(n, p);
-  if (stride === 0) return false;
-  const columns: Float64Array[] = [];
-  for (let j = 0; j < p; j++) columns.push(pickRows(design.columns[j], stride));
-  const subA = pickRows(a, stride);
-  const m = subA.length;
-  const gram = designGram({ rows: m, columns, centre: design.centre, scale: design.scale }, subA);
-  for (let j = 0; j < p; j++) gram[j * p + j] += penalty[j] * (m / n);
-  return subsampleProvesFullRank(gram, p, fullDiagonal, ALIAS_TOLERANCE);
-}
-
-/**
- * Starting values for a large fit: the (penalized) maximum likelihood estimate on every
- * stride-th row, and that fit's information scaled up by total weight / subsample weight as an
- * approximation of the full information there (they differ by about 1/sqrt(subsample size)).
- * Null below WARM_START_MIN_ROWS, or when the subsample fit is not usable (one class only,
- * singular information, not converged, or fitted probabilities near 0 or 1, which may signal
- * separation): the fit then starts as usual. The subsample fit only chooses where the full
- * Newton-Raphson iterations begin; the estimate and covariance are those of the full data.
- */
-function subsampleWarmStart(prob: BinomialProblem): { start: Float64Array; information: Float64Array } | null {
-  const n = prob.rows;
-  const stride = subsampleStride(n, prob.columns.length);
-  if (stride === 0) return null;
-  const m = Math.floor((n - 1) / stride) + 1;
-  const successes = pickRows(prob.successes, stride);
-  const trials = pickRows(prob.trials, stride);
-  const weights = pickRows(prob.weights, stride);
-  let total = 0;
-  for (let i = 0; i < n; i++) total += prob.weights[i] * prob.trials[i];
-  let part = 0;
-  let partSucc = 0;
-  for (let r = 0; r < m; r++) {
-    part += weights[r] * trials[r];
-    partSucc += weights[r] * successes[r];
-  }
-  if (!(partSucc > 0 && partSucc < part)) return null;
-  const fraction = part / total;
-  const columns: Float64Array[] = [];
-  for (let j = 0; j < prob.columns.length; j++) columns.push(pickRows(prob.columns[j], stride));
-  const sub = fitBinomial({
-    ...prob,
-    rows: m,
-    columns,
-    successes,
-    trials,
-    weights,
-    offset: pickRows(prob.offset, stride),
-    penalty: scaledCopy(prob.penalty, fraction),
-    tolerance: Math.max(prob.tolerance, WARM_START_TOLERANCE),
-    keepHistory: false,
-    start: null,
-    startInformation: null,
-  });
-  if (!sub.converged || sub.singular || !sub.coefficients.every(Number.isFinite)) return null;
-  for (let r = 0; r < m; r++) if (Math.abs(sub.eta[r]) > WARM_START_MAX_ETA) return null;
-  return { start: sub.coefficients, information: scaledCopy(sub.information, 1 / fraction) };
-}
-
-/** v times each entry of x (a loop rather than a closure, see weightedTotals). */
-function scaledCopy(x: Float64Array, v: number): Float64Array {
-  const out = new Float64Array(x.length);
-  for (let i = 0; i < x.length; i++) out[i] = x[i] * v;
-  return out;
-}
 
 /**
  * Intercept-only model with the same weights, trials and offset (or the offset alone without an

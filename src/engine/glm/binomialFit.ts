@@ -9,6 +9,7 @@ import { BinomialLikelihood, FirthPenalty, type BinomialData } from "../families
 import { createKernel } from "../kernels";
 import type { KernelDesign } from "../kernels/types";
 import { runNewton, type NewtonOutcome } from "./newton";
+import { pickRows, scaledCopy, subsampleWarmStart, type WarmStart, type WarmStartFamily } from "./warmStart";
 
 /** A binomial fit in the fitting coordinates. */
 export interface BinomialProblem extends BinomialData {
@@ -90,6 +91,7 @@ export function fitBinomial(p: BinomialProblem): BinomialOutcome {
     family,
     start: p.start ? Float64Array.from(p.start) : defaultStart(p),
     penalty: p.penalty,
+    sumPenalty: null,
     free: p.free ?? null,
     hook: p.firth ? new FirthPenalty(fittingColumns(design), family) : null,
     startInformation: p.startInformation ?? null,
@@ -97,6 +99,66 @@ export function fitBinomial(p: BinomialProblem): BinomialOutcome {
     tolerance: p.tolerance,
     floor: 0.1 * (p.rows > 0 && weightSum > 0 ? weightSum / p.rows : 1),
     keepHistory: p.keepHistory ?? false,
+    passEconomy: false,
   });
   return { ...outcome, coefficients: outcome.theta, eta: family.eta, mu: family.mu };
+}
+
+/** A subsample fit with a fitted probability this far out (|eta| above it) may be near separation: no warm start. */
+const WARM_START_MAX_ETA = 15;
+
+/** The binomial family's part of the warm start (glm/warmStart.ts). */
+const BINOMIAL_WARM_START: WarmStartFamily<BinomialProblem> = {
+  subsample(p: BinomialProblem, stride: number): BinomialProblem {
+    const successes = pickRows(p.successes, stride);
+    return {
+      rows: successes.length,
+      successes,
+      trials: pickRows(p.trials, stride),
+      weights: pickRows(p.weights, stride),
+      offset: pickRows(p.offset, stride),
+      columns: p.columns.map((c) => pickRows(c, stride)),
+      centre: p.centre ?? null,
+      scale: p.scale ?? null,
+      penalty: p.penalty,
+      firth: p.firth,
+      maxIterations: p.maxIterations,
+      tolerance: p.tolerance,
+      start: null,
+      free: p.free ?? null,
+      startInformation: null,
+      keepHistory: false,
+    };
+  },
+  weight(p: BinomialProblem): number {
+    let total = 0;
+    for (let i = 0; i < p.rows; i++) total += p.weights[i] * p.trials[i];
+    return total;
+  },
+  fit(sub: BinomialProblem, settings: { tolerance: number; maxIterations: number; share: number }) {
+    // One class only in the subsample: its estimate runs off to infinity.
+    let successes = 0;
+    for (let i = 0; i < sub.rows; i++) successes += sub.weights[i] * sub.successes[i];
+    if (!(successes > 0 && successes < BINOMIAL_WARM_START.weight(sub))) return null;
+    // (Set field by field: the problem keeps the one shape of `subsample`, see DEVELOPERS.md.)
+    sub.tolerance = settings.tolerance;
+    sub.maxIterations = settings.maxIterations;
+    sub.penalty = scaledCopy(sub.penalty, settings.share);
+    const fit = fitBinomial(sub);
+    for (let i = 0; i < sub.rows; i++) if (Math.abs(fit.eta[i]) > WARM_START_MAX_ETA) return null;
+    return fit;
+  },
+};
+
+/**
+ * Starting values for a large binomial fit by the shared warm-start rule (glm/warmStart.ts); null
+ * when there is none (small data, Firth's fit, held coefficients, or a subsample fit that is no
+ * guide: one class only, or fitted probabilities near 0 or 1, which may signal separation). The
+ * subsample fit only chooses where the full iterations begin; estimate and covariance are the
+ * full data's.
+ * Reference: Nocedal & Wright, Numerical Optimization, 2nd ed. (2006), ch. 6.
+ */
+export function binomialWarmStart(p: BinomialProblem): WarmStart | null {
+  if (p.firth || p.free) return null;
+  return subsampleWarmStart(p, { rows: p.rows, columns: p.columns.length, tolerance: p.tolerance, maxIterations: p.maxIterations }, BINOMIAL_WARM_START);
 }

@@ -18,7 +18,17 @@
  * sec. 9.5.1) predicts a change below the tolerance, or after MAX_APPROXIMATE_STEPS, the exact
  * information is formed and the loop finishes as Newton-Raphson under the usual rule; an exact step
  * predicting a change below tolerance^2 is not taken (the last quadratically convergent step leaves
- * about that). The information returned is always the exact one at the returned estimate.
+ * about that). The information returned is the exact one at the returned estimate (but see pass
+ * economy below).
+ * Pass economy (families whose information pass costs many score passes, such as the multinomial
+ * one with its E(E+1)/2 weighted Gram blocks): the approximate phase then ends only once the
+ * decrement is also below POLISH_DECREMENT (about the squared distance to the maximum in
+ * standard-error units); the trial predicted to end it (its decrement extrapolated from the last
+ * contraction) is evaluated with the information at once, so that the exact information costs no
+ * extra pass; and the last exact step, whose predicted gain is then below the rounding allowance of
+ * the objective, is taken without a pass: the information returned is then the one just before
+ * that step (as R's glm reports the covariance from the weights of its previous iterate). The
+ * iterates are those of the plain method; only what a pass computes changes.
  * Reference: McCullagh & Nelder, Generalized Linear Models, 2nd ed. (1989), ch. 2 (IRLS).
  */
 import type { InformationPenalty } from "../families/binomial";
@@ -34,6 +44,11 @@ export interface NewtonTask {
   start: Float64Array;
   /** Ridge penalty per parameter, >= 0. */
   penalty: Float64Array;
+  /**
+   * A penalty (weight / 2) (sum of theta_j over `indices`)^2, or null: the side condition of the
+   * symmetric softmax form (its intercepts sum to 0).
+   */
+  sumPenalty: { weight: number; indices: Int32Array } | null;
   /** Parameters estimated (1) or held at their start (0); null: all free. */
   free: Uint8Array | null;
   /** An information penalty such as Firth's; null for none. */
@@ -46,6 +61,15 @@ export interface NewtonTask {
   floor: number;
   /** Keep every accepted iterate (the separation check reads them). */
   keepHistory: boolean;
+  /** Save information passes as described in the file comment (costly information only). */
+  passEconomy: boolean;
+}
+
+/** Passes over the rows a run took, by what they computed. */
+export interface PassCounts {
+  value: number;
+  score: number;
+  information: number;
 }
 
 /** The loop's state at one point. */
@@ -69,6 +93,9 @@ export interface NewtonOutcome extends Point {
   singular: boolean;
   history: Float64Array[];
   halvings: number;
+  /** The last step taken (theta minus the point before it), or null before any step. */
+  lastStep: Float64Array | null;
+  passes: PassCounts;
 }
 
 /** Largest relative step a fit with an information penalty must reach as well. */
@@ -77,26 +104,62 @@ const FIRTH_STEP_TOLERANCE = 1e-11;
 const MAX_APPROXIMATE_STEPS = 12;
 /** Halvings tried before a step is declared unable to improve the objective. */
 const MAX_HALVINGS = 30;
+/** Pass economy: decrement U'H^{-1}U below which the last exact step is taken without a pass. */
+const POLISH_DECREMENT = 1e-8;
+/** Pass economy: rounding allowance of the objective (relative) that step's predicted gain must be below. */
+const POLISH_SLACK = 1e-11;
+
+/** The quadratic penalties at theta: (1/2) sum_j pen_j theta_j^2 plus the sum penalty. */
+export function penaltyValue(task: Pick<NewtonTask, "penalty" | "sumPenalty">, theta: Float64Array): number {
+  let v = 0;
+  for (let j = 0; j < theta.length; j++) v += 0.5 * task.penalty[j] * theta[j] * theta[j];
+  if (task.sumPenalty) {
+    let sum = 0;
+    for (const j of task.sumPenalty.indices) sum += theta[j];
+    v += 0.5 * task.sumPenalty.weight * sum * sum;
+  }
+  return v;
+}
+
+/** Subtract the gradient of the quadratic penalties from `score` and add their Hessian to `h` (M x M), in place. */
+function addPenalty(task: Pick<NewtonTask, "penalty" | "sumPenalty">, theta: Float64Array, score: Float64Array, h: Float64Array): void {
+  const M = theta.length;
+  for (let j = 0; j < M; j++) {
+    score[j] -= task.penalty[j] * theta[j];
+    h[j * M + j] += task.penalty[j];
+  }
+  if (!task.sumPenalty) return;
+  const { weight, indices } = task.sumPenalty;
+  let sum = 0;
+  for (const j of indices) sum += theta[j];
+  for (const j of indices) {
+    score[j] -= weight * sum;
+    for (const l of indices) h[j * M + l] += weight;
+  }
+}
 
 /** One pass of the kernel at theta, and the objective there. */
-function evaluate(task: NewtonTask, theta: Float64Array, wants: PassWants): Point {
+function evaluate(task: NewtonTask, theta: Float64Array, wants: PassWants, passes: PassCounts): Point {
   const M = theta.length;
   const out = { score: new Float64Array(M), information: new Float64Array(M * M) };
   const logLikelihood = task.kernel.pass(theta, task.family, wants, out);
-  let objective = -logLikelihood;
-  for (let j = 0; j < M; j++) objective += 0.5 * task.penalty[j] * theta[j] * theta[j];
+  passes[wants]++;
+  let objective = -logLikelihood + penaltyValue(task, theta);
   if (task.hook) objective -= task.hook.value(out.information, M);
   return { theta, logLikelihood, objective, score: out.score, information: out.information };
 }
 
-/** The Newton step H^{-1} U at a point (on the free parameters only) and its decrement U'H^{-1}U; null when H is singular. */
-function newtonStep(task: NewtonTask, at: Point): { step: Float64Array; decrement: number } | null {
+/**
+ * The Newton step H^{-1} U at a point (on the free parameters only) and its decrement U'H^{-1}U;
+ * null when H is singular. Callers use it on an outcome too (the direction the separation checks
+ * examine); the hook's score term is the one of its last pass.
+ */
+export function newtonStep(task: NewtonTask, at: Pick<Point, "theta" | "score" | "information">): { step: Float64Array; decrement: number } | null {
   const M = at.theta.length;
   const score = Float64Array.from(at.score);
-  for (let j = 0; j < M; j++) score[j] -= task.penalty[j] * at.theta[j];
-  if (task.hook) task.hook.addToScore(score);
   const h = Float64Array.from(at.information);
-  for (let j = 0; j < M; j++) h[j * M + j] += task.penalty[j];
+  addPenalty(task, at.theta, score, h);
+  if (task.hook) task.hook.addToScore(score);
   const free = task.free ? Array.from({ length: M }, (_, j) => j).filter((j) => task.free![j]) : null;
   const step = new Float64Array(M);
   if (free) {
@@ -158,17 +221,26 @@ function aitkenScale(step: Float64Array, prev: Float64Array | null): number {
  * Step halving from scale `first`: the first candidate where F falls by at least 1e-4 of the
  * predicted decrease (Armijo), or, once that prediction is below the rounding of F, does not rise.
  */
-function halvingSearch(task: NewtonTask, at: Point, step: Float64Array, decrement: number, first: number, wants: PassWants): { point: Point; halvings: number } | null {
+function halvingSearch(
+  task: NewtonTask,
+  at: Point,
+  newton: { step: Float64Array; decrement: number },
+  first: number,
+  wants: { first: PassWants; later: PassWants },
+  passes: PassCounts,
+): { point: Point; halvings: number; wants: PassWants } | null {
+  const { step, decrement } = newton;
   let scale = first;
   for (let h = 0; h <= MAX_HALVINGS; h++) {
     const theta = Float64Array.from(at.theta, (g, j) => g + scale * step[j]);
-    const trial = evaluate(task, theta, wants);
+    const trialWants = h === 0 ? wants.first : wants.later;
+    const trial = evaluate(task, theta, trialWants, passes);
     const predicted = scale * decrement;
     const sufficient =
       predicted > 1e-14 * (task.floor + Math.abs(at.objective))
         ? trial.objective <= at.objective - 1e-4 * predicted
         : trial.objective <= at.objective + 1e-13 * Math.abs(at.objective);
-    if (sufficient && Number.isFinite(trial.objective)) return { point: trial, halvings: h };
+    if (sufficient && Number.isFinite(trial.objective)) return { point: trial, halvings: h, wants: trialWants };
     scale *= 0.5;
   }
   return null;
@@ -186,80 +258,168 @@ function largestRelativeStep(from: Float64Array, to: Float64Array): number {
   return m;
 }
 
+/** The mutable state of one run of the loop. */
+interface RunState {
+  at: Point;
+  /** In the warm start's approximate phase. */
+  approximate: boolean;
+  /** True when at.information is the exact information at at.theta. */
+  exact: boolean;
+  iterations: number;
+  converged: boolean;
+  lastChange: number;
+  singular: boolean;
+  halvings: number;
+  approximateSteps: number;
+  /** The first exact step after the approximate phase: it may finish the fit (see finishes). */
+  checkDecrement: boolean;
+  lastStep: Float64Array | null;
+  /** Decrement of the previous approximate step (pass economy's prediction), NaN before one. */
+  previousDecrement: number;
+  history: Float64Array[];
+  passes: PassCounts;
+}
+
+/** True when the approximate phase ends at a step of this decrement (see the file comment). */
+function approximateEnds(task: NewtonTask, s: RunState, decrement: number, predicted: number): boolean {
+  if (s.approximateSteps >= MAX_APPROXIMATE_STEPS) return true;
+  return predicted < task.tolerance && (!task.passEconomy || decrement < POLISH_DECREMENT);
+}
+
+/** Pass economy: true when the step after this one is predicted to end the approximate phase. */
+function predictsEnd(task: NewtonTask, s: RunState, decrement: number, objective: number): boolean {
+  if (!task.passEconomy || !(s.previousDecrement > 0)) return false;
+  const next = decrement * (decrement / s.previousDecrement);
+  return next < POLISH_DECREMENT / 4 && relative(next, objective, task.floor) < task.tolerance / 4;
+}
+
+/**
+ * The first exact step after the approximate phase: with pass economy, a step whose decrement is
+ * below POLISH_DECREMENT and whose predicted gain is below the rounding allowance is taken without
+ * a pass (the objective is the quadratic model's); otherwise a step predicting a change below
+ * tolerance^2 is not taken. Either ends the fit, converged; neither counts as an iteration.
+ */
+function finishes(task: NewtonTask, s: RunState, newton: { step: Float64Array; decrement: number }, predicted: number): boolean {
+  const gain = 0.5 * newton.decrement;
+  if (task.passEconomy && !task.hook && newton.decrement < POLISH_DECREMENT && gain >= 0 && gain <= POLISH_SLACK * (1 + Math.abs(s.at.objective))) {
+    const theta = Float64Array.from(s.at.theta, (g, j) => g + newton.step[j]);
+    const objective = s.at.objective - gain;
+    s.at = { ...s.at, theta, objective, logLikelihood: penaltyValue(task, theta) - objective };
+    s.lastStep = newton.step;
+  } else if (!(predicted < task.tolerance * task.tolerance)) {
+    return false;
+  }
+  s.iterations--;
+  s.lastChange = predicted;
+  s.converged = true;
+  return true;
+}
+
+/** The exact information at the current point, unless it is at hand. */
+function makeExact(task: NewtonTask, s: RunState): void {
+  if (!s.exact) s.at = evaluate(task, s.at.theta, "information", s.passes);
+  s.exact = true;
+}
+
+/** One step of the loop from s.at along `newton`; false when the loop ends. */
+function takeStep(task: NewtonTask, s: RunState, newton: { step: Float64Array; decrement: number }, predicted: number): boolean {
+  const first: PassWants = !s.approximate || predictsEnd(task, s, newton.decrement, s.at.objective) ? "information" : "score";
+  const wants = { first, later: s.approximate ? ("score" as const) : ("information" as const) };
+  const found = halvingSearch(task, s.at, newton, task.hook ? aitkenScale(newton.step, s.lastStep) : 1, wants, s.passes);
+  if (!found && s.approximate) {
+    // No descent along the approximate direction: continue with the exact information.
+    s.iterations--;
+    s.approximate = false;
+    makeExact(task, s);
+    return true;
+  }
+  if (!found) {
+    // No decrease along the Newton direction: at the optimum up to rounding when the predicted change is negligible.
+    // The last passes were at rejected candidates: evaluate theta again so the family's rows are current.
+    s.lastChange = predicted;
+    s.converged = predicted < 10 * task.tolerance;
+    s.at = evaluate(task, s.at.theta, "information", s.passes);
+    s.exact = true;
+    return false;
+  }
+  const next = found.point;
+  const at = s.at;
+  s.halvings += found.halvings;
+  s.lastChange = relative(Math.abs(2 * next.objective - 2 * at.objective), next.objective, task.floor);
+  s.lastStep = Float64Array.from(next.theta, (g, j) => g - at.theta[j]);
+  s.exact = found.wants === "information";
+  if (s.approximate) {
+    // Refine the approximation with the curvature seen along the step (gradient of -l), unless
+    // the exact information came with the pass.
+    if (!s.exact) {
+      next.information = Float64Array.from(at.information);
+      bfgsUpdate(next.information, s.lastStep, Float64Array.from(at.score, (u, j) => u - next.score[j]));
+    }
+    s.approximateSteps++;
+    s.previousDecrement = newton.decrement;
+    s.at = next;
+    return true;
+  }
+  const stepSize = largestRelativeStep(at.theta, next.theta);
+  s.at = next;
+  if (task.keepHistory) s.history.push(Float64Array.from(next.theta));
+  if (s.lastChange < task.tolerance && (!task.hook || stepSize < FIRTH_STEP_TOLERANCE)) {
+    s.converged = true;
+    return false;
+  }
+  return true;
+}
+
 /**
  * Minimize F by Newton-Raphson with step halving (see the file comment). Never throws: a singular
  * H ends the loop with singular = true.
  * Reference: McCullagh & Nelder (1989), ch. 2; Nocedal & Wright (2006), ch. 3 and eq. 6.19 (BFGS).
  */
 export function runNewton(task: NewtonTask): NewtonOutcome {
-  let approximate = !!task.startInformation && !task.hook && !task.free;
-  let at = evaluate(task, Float64Array.from(task.start), approximate ? "score" : "information");
+  const passes: PassCounts = { value: 0, score: 0, information: 0 };
+  const approximate = !!task.startInformation && !task.hook && !task.free;
+  const at = evaluate(task, Float64Array.from(task.start), approximate ? "score" : "information", passes);
   if (approximate) at.information = Float64Array.from(task.startInformation!);
-  const tol = task.tolerance;
-  const history: Float64Array[] = [];
-  let state = { iterations: 0, converged: false, lastChange: NaN, singular: task.hook !== null && Number.isNaN(at.objective), halvings: 0 };
-  let approximateSteps = 0;
-  let checkDecrement = false;
-  let prevStep: Float64Array | null = null;
-  while (!state.singular && state.iterations < task.maxIterations) {
-    state.iterations++;
-    const newton = newtonStep(task, at);
+  const s: RunState = {
+    at,
+    approximate,
+    exact: !approximate,
+    iterations: 0,
+    converged: false,
+    lastChange: NaN,
+    singular: task.hook !== null && Number.isNaN(at.objective),
+    halvings: 0,
+    approximateSteps: 0,
+    checkDecrement: false,
+    lastStep: null,
+    previousDecrement: NaN,
+    history: [],
+    passes,
+  };
+  while (!s.singular && s.iterations < task.maxIterations) {
+    s.iterations++;
+    const newton = newtonStep(task, s.at);
     if (!newton) {
-      state.singular = true;
+      s.singular = true;
       break;
     }
-    const predicted = relative(newton.decrement, at.objective, task.floor);
-    if (approximate && (predicted < tol || approximateSteps >= MAX_APPROXIMATE_STEPS)) {
+    const predicted = relative(newton.decrement, s.at.objective, task.floor);
+    if (s.approximate && approximateEnds(task, s, newton.decrement, predicted)) {
       // The approximate phase ends: the exact step that follows finishes the fit.
-      state.iterations--;
-      approximate = false;
-      at = evaluate(task, at.theta, "information");
-      checkDecrement = true;
+      s.iterations--;
+      s.approximate = false;
+      makeExact(task, s);
+      s.checkDecrement = true;
       continue;
     }
-    if (checkDecrement) {
-      checkDecrement = false;
-      if (predicted < tol * tol) {
-        state = { ...state, iterations: state.iterations - 1, lastChange: predicted, converged: true };
-        break;
-      }
+    if (s.checkDecrement) {
+      s.checkDecrement = false;
+      if (finishes(task, s, newton, predicted)) break;
     }
-    const found = halvingSearch(task, at, newton.step, newton.decrement, task.hook ? aitkenScale(newton.step, prevStep) : 1, approximate ? "score" : "information");
-    if (!found && approximate) {
-      // No descent along the approximate direction: continue with the exact information.
-      state.iterations--;
-      approximate = false;
-      at = evaluate(task, at.theta, "information");
-      continue;
-    }
-    if (!found) {
-      // No decrease along the Newton direction: at the optimum up to rounding when the predicted change is negligible.
-      // The last passes were at rejected candidates: evaluate theta again so the family's rows are current.
-      state = { ...state, lastChange: predicted, converged: predicted < 10 * tol };
-      at = evaluate(task, at.theta, "information");
-      break;
-    }
-    const next = found.point;
-    state.halvings += found.halvings;
-    state.lastChange = relative(Math.abs(2 * next.objective - 2 * at.objective), next.objective, task.floor);
-    prevStep = Float64Array.from(next.theta, (g, j) => g - at.theta[j]);
-    if (approximate) {
-      // Refine the approximation with the curvature seen along the step (gradient of -l).
-      next.information = Float64Array.from(at.information);
-      bfgsUpdate(next.information, prevStep, Float64Array.from(at.score, (u, j) => u - next.score[j]));
-      approximateSteps++;
-      at = next;
-      continue;
-    }
-    const stepSize = largestRelativeStep(at.theta, next.theta);
-    at = next;
-    if (task.keepHistory) history.push(Float64Array.from(at.theta));
-    if (state.lastChange < tol && (!task.hook || stepSize < FIRTH_STEP_TOLERANCE)) {
-      state.converged = true;
-      break;
-    }
+    if (!takeStep(task, s, newton, predicted)) break;
   }
   // The iteration cap can end the approximate phase: the information returned is the exact one.
-  if (approximate) at = evaluate(task, at.theta, "information");
-  return { ...at, ...state, history };
+  if (s.approximate) makeExact(task, s);
+  const { iterations, converged, lastChange, singular, halvings, history, lastStep } = s;
+  return { ...s.at, iterations, converged, lastChange, singular, halvings, history, lastStep, passes };
 }

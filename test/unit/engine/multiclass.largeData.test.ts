@@ -1,7 +1,7 @@
 /**
  * The large-data path of the multi-class fit (at least 40,000 used rows: warm start from a subsample,
- * reused information with secant corrections, trial points evaluated together with the information,
- * polishing step) must give the same result as plain Newton-Raphson: the maximum-likelihood estimate,
+ * its information refined by BFGS along the steps, trial points evaluated together with the
+ * information, polishing step: the pass economy of glm/newton.ts) must give the same result as plain Newton-Raphson: the maximum-likelihood estimate,
  * the log-likelihood at it, and the covariance = inverse information at it (Agresti, Categorical
  * Data Analysis, 3rd ed., 2013, §8.1; information blocks X' diag(w p_e (delta_ef - p_f)) X, Böhning,
  * Ann. Inst. Statist. Math. 44 (1992) 197-200). Data: invented, seeded LCG.
