@@ -31,6 +31,7 @@ import * as vm from "vm";
 import { DATA_DIR, ensureData, loadDataSet, type LoadedDataSet } from "./generate";
 import { firthLimitCase, type FirthLimitInfo } from "./firthLimit";
 import { setWasmKernelsEnabled, wasmKernels } from "../src/engine/kernels/wasmKernels";
+import { setKernelChoice, type KernelChoice } from "../src/engine/kernels";
 import type { CellValue, DesignMatrix, ModelFit, Prediction } from "../src/engine/types";
 
 const ROOT = path.resolve(__dirname, "..");
@@ -313,6 +314,8 @@ interface Plan {
   skip?: string[];
   /** Label of the peer whose log-likelihood is the reference [the statsmodels Newton fit]. */
   referenceLabel?: string;
+  /** Runs of our fit on the other kernel paths (JavaScript blocks, plain reference), side by side. */
+  kernels?: RunPolicy;
 }
 
 interface OursResult extends Timing {
@@ -336,6 +339,8 @@ interface CaseResult {
   loadBefore: string;
   loadAfter: string;
   ours: OursResult;
+  /** Our fit forced onto another kernel path (absent in records written before this comparison). */
+  kernelRuns?: { choice: KernelChoice; label: string; result: OursResult }[];
   peers: PeerResult[];
   skipped?: string[];
 }
@@ -356,6 +361,7 @@ function fitCase(id: string, title: string, ds: LoadedDataSet, plan: Plan, avail
     ours = fn ? runOurs(() => fn(X, ds.classIndex!, ds.meta.classes), plan.ours) : missing(why);
   }
   log(`  ours: ${ours.ok ? `${fmtS(ours.median)} (runs ${ours.times.map((t) => fmtS(t)).join(", ")}; cpu/wall ${cpuWall(ours)}) logLik ${ours.logLik}` : `not run: ${ours.error}`}`);
+  const kernelRuns = plan.kernels && !NO_WASM ? otherKernels(ds, X, plan.kernels) : undefined;
   const peers: PeerResult[] = [];
   if (avail) {
     for (const spec of peerSpecs(avail, ds, plan)) {
@@ -364,7 +370,36 @@ function fitCase(id: string, title: string, ds: LoadedDataSet, plan: Plan, avail
       log(`  ${p.label}: ${p.ok ? `${fmtS(p.median)} (runs ${p.times!.map((t) => fmtS(t)).join(", ")}${p.coldFirst ? ", cold" : ""}) logLik ${p.logLik}` : `FAILED ${p.error}`}`);
     }
   }
-  return { id, title, dataset: ds.meta.name, rows: ds.meta.rows, cols: ds.meta.cols, classes: ds.meta.classes.length, loadBefore, loadAfter: loadNow(), ours, peers, skipped: avail ? plan.skip ?? [] : [] };
+  return { id, title, dataset: ds.meta.name, rows: ds.meta.rows, cols: ds.meta.cols, classes: ds.meta.classes.length, loadBefore, loadAfter: loadNow(), ours, kernelRuns, peers, skipped: avail ? plan.skip ?? [] : [] };
+}
+
+/** The kernel paths timed beside the automatic choice: the JavaScript blocks and the plain reference loops. */
+const OTHER_KERNELS: { choice: KernelChoice; label: string }[] = [
+  { choice: "blocks", label: "Oddsmith, JavaScript kernel" },
+  { choice: "reference", label: "Oddsmith, reference kernel" },
+];
+
+/** Our fit of the same case on each other kernel path (same data, same rules, only the kernel differs). */
+function otherKernels(ds: LoadedDataSet, X: DesignMatrix, p: RunPolicy): { choice: KernelChoice; label: string; result: OursResult }[] {
+  const out: { choice: KernelChoice; label: string; result: OursResult }[] = [];
+  for (const k of OTHER_KERNELS) {
+    setKernelChoice(k.choice);
+    try {
+      let result: OursResult;
+      if (ds.meta.kind === "binary") {
+        const { fn, why } = loadPiece<FitBinary>("src/engine/binary", "fitBinaryModel");
+        result = fn ? runOurs(() => fn(X, ds.y!), p) : missing(why);
+      } else {
+        const { fn, why } = loadPiece<FitMulticlass>("src/engine/multiclass", "fitMulticlassModel");
+        result = fn ? runOurs(() => fn(X, ds.classIndex!, ds.meta.classes), p) : missing(why);
+      }
+      out.push({ ...k, result });
+      log(`  ${k.label}: ${result.ok ? `${fmtS(result.median)} logLik ${result.logLik}` : `not run: ${result.error}`}`);
+    } finally {
+      setKernelChoice("auto");
+    }
+  }
+  return out;
 }
 
 function runOurs(fit: () => ModelFit, p: RunPolicy): OursResult {
@@ -870,6 +905,17 @@ function caseTable(c: CaseResult): string[] {
       `| **Oddsmith** | **${fmtS(c.ours.median)}** | ${c.ours.times.map((t) => t.toFixed(3)).join(", ")}${c.ours.coldFirst ? " (cold)" : ""}${c.ours.warmupTimes && c.ours.warmupTimes.length ? `; warm-up ${c.ours.warmupTimes.map((t) => t.toFixed(3)).join(", ")}` : ""} | ${cpuWall(c.ours)} | 1 | ${c.ours.logLik?.toFixed(6)} | ${fmtRel(relDiff(c.ours.logLik, ref?.logLik))} | ${c.ours.iterations}${c.ours.converged ? "" : " (not converged)"} |`,
     );
   } else lines.push(`| Oddsmith | not run: ${c.ours.error} | | | | | | |`);
+  for (const k of c.kernelRuns ?? []) {
+    const r = k.result;
+    if (!r.ok) {
+      lines.push(`| ${k.label} | not run: ${r.error} | | | | | | |`);
+      continue;
+    }
+    const ratio = c.ours.ok ? (c.ours.median / r.median).toFixed(2) : "-";
+    lines.push(
+      `| ${k.label} | ${fmtS(r.median)} | ${r.times.map((t) => t.toFixed(3)).join(", ")}${r.coldFirst ? " (cold)" : ""} | ${cpuWall(r)} | ${ratio} | ${r.logLik?.toFixed(6)} | ${fmtRel(relDiff(r.logLik, ref?.logLik))} | ${r.iterations}${r.converged ? "" : " (not converged)"} |`,
+    );
+  }
   for (const p of c.peers) {
     if (!p.ok) {
       lines.push(`| ${p.label} | failed: ${p.error} | | | | | | |`);
@@ -1036,10 +1082,10 @@ function main(): void {
         { id: "onehot_10k", title: "One-hot-heavy 10,000 rows", plan: { ours: pol(1, 3, 5), peer: pol(1, 3, 5), allSolvers: true } },
       ]
     : [
-        { id: "binary_10k", title: "Binary 10,000 x 20", plan: { ours: pol(3, 9, 10), peer: pol(1, 7, 10), allSolvers: true } },
-        { id: "binary_100k", title: "Binary 100,000 x 20", plan: { ours: pol(2, 7, 15), peer: pol(1, 7, 15), allSolvers: true } },
-        { id: "binary_1m", title: "Binary 1,000,000 x 20", plan: { ours: pol(1, 3, 20), peer: pol(1, 3, 20), referencePeer: pol(1, 2, 12), allSolvers: true, skip: ["sklearn newton-cg", "R glm.fit (IRLS)"] } },
-        { id: "multi_100k", title: "Multi-class 100,000 x 20 x 5", plan: { ours: pol(1, 5, 15), peer: pol(1, 5, 15), referencePeer: pol(1, 2, 12), slowPeer: pol(1, 1, 1), allSolvers: true } },
+        { id: "binary_10k", title: "Binary 10,000 x 20", plan: { ours: pol(3, 9, 10), peer: pol(1, 7, 10), allSolvers: true, kernels: pol(2, 5, 5) } },
+        { id: "binary_100k", title: "Binary 100,000 x 20", plan: { ours: pol(2, 7, 15), peer: pol(1, 7, 15), allSolvers: true, kernels: pol(1, 5, 8) } },
+        { id: "binary_1m", title: "Binary 1,000,000 x 20", plan: { ours: pol(1, 3, 20), peer: pol(1, 3, 20), referencePeer: pol(1, 2, 12), allSolvers: true, skip: ["sklearn newton-cg", "R glm.fit (IRLS)"], kernels: pol(1, 2, 12) } },
+        { id: "multi_100k", title: "Multi-class 100,000 x 20 x 5", plan: { ours: pol(1, 5, 15), peer: pol(1, 5, 15), referencePeer: pol(1, 2, 12), slowPeer: pol(1, 1, 1), allSolvers: true, kernels: pol(1, 3, 12) } },
         { id: "onehot_100k", title: "One-hot-heavy 100,000 rows (3 text x 50 levels + 5 numeric = 152 columns)", plan: { ours: pol(1, 3, 15), peer: pol(1, 2, 15), allSolvers: true, skip: ["statsmodels Logit newton"], referenceLabel: "R glm.fit (IRLS)" } },
       ];
   for (const { id, title, plan } of plans) {
