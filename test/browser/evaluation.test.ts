@@ -14,6 +14,9 @@ import { scoreRows, trainModel } from "../../src/engine/model";
 import { readModelOptions } from "../../src/shared/fitService";
 import { DEMO_SHEETS } from "../../src/preview/demo";
 import { EVALUATION_CAUTIONS } from "../../src/taskpane/cautions";
+import { crossValidate } from "../../src/engine/evaluation/crossValidate";
+import { PANE_BUDGET } from "../../src/engine/evaluation/cvWork";
+import { logSpacedPenalties } from "../../src/taskpane/evaluationController";
 import { saveArtifact, useBrowser } from "./harness";
 
 jest.setTimeout(120_000);
@@ -240,6 +243,71 @@ describe("evaluation section", () => {
     expect(await page.inputValue("#osm-penalty")).toBe("3.981");
     await page.setViewportSize({ width: 1360, height: 4200 });
     saveArtifact("evaluation-path-330.png", await page.locator("#osm-cv").screenshot());
+    await page.close();
+  });
+
+  test("the run control cross-validates the demo table in the page: progress, the engine's path and marks, out-of-fold view", async () => {
+    const page = await openFitted(330);
+    expect(await page.isVisible("#osm-cv-run")).toBe(true);
+    await page.fill("#osm-cv-folds", "5");
+    await page.fill("#osm-cv-seed", "7");
+    await page.fill("#osm-cv-count", "6");
+    await page.fill("#osm-cv-from", "0.01");
+    await page.fill("#osm-cv-to", "100");
+    await page.click("#osm-cv-run");
+    await page.waitForFunction(() => /^Done in/.test(document.querySelector("#osm-cv-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+
+    // The same cross-validation in Node, through the engine: same cells, options, folds and seed.
+    const values = DEMO_SHEETS[0].values;
+    const penalties = logSpacedPenalties(0.01, 100, 6);
+    const cv = crossValidate({
+      labels: values.map((r) => [r[6]]),
+      predictors: values.map((r) => r.slice(2, 6)),
+      options: readModelOptions("test", [["penalty=0; level=0.95; threshold=0.5"]]).model,
+      folds: 5,
+      seed: 7,
+      penalties,
+      outOfFold: true,
+      budget: PANE_BUDGET,
+    });
+    expect(await page.$$eval("#osm-cv-chart .osm-path-bar", (b) => b.length)).toBe(cv.entries.filter((e) => Number.isFinite(e.scores.logLoss.mean)).length);
+    const legend = await page.textContent("#osm-cv-legend");
+    expect(legend).toContain(`lowest log-loss (penalty ${penalties[cv.lowest]})`);
+    expect(legend).toContain(`one-SE choice (penalty ${penalties[cv.oneSe]})`);
+    expect(await page.textContent("#osm-cv-status")).toContain(`one-standard-error choice is ${penalties[cv.oneSe]}`);
+    expect(overlaps(await textBoxes(page, "#osm-cv-chart"))).toEqual([]);
+
+    // Judge the fit on the out-of-fold probabilities: the ROC caption gives their AUC.
+    await page.check("#osm-source-oof");
+    const oof = cv.outOfFold!.probabilities[1];
+    const labels = Float64Array.from(values.slice(1), (r) => (r[6] === "yes" ? 1 : 0));
+    const auc = rocAuc(labels, oof, { level: 0.95 });
+    await page.waitForFunction(() => /out-of-fold/.test(document.querySelector("#osm-roc-caption")?.textContent ?? ""));
+    expect(await page.textContent("#osm-roc-caption")).toContain(`AUC ${auc.auc.toFixed(3)}`);
+    await page.setViewportSize({ width: 1360, height: 4200 });
+    saveArtifact("evaluation-path-run-330.png", await page.locator("#osm-cv").screenshot());
+    saveArtifact("evaluation-oof-330.png", await page.locator("#osm-eval").screenshot());
+    await page.close();
+  });
+
+  test("a long cross-validation shows progress and Cancel stops it; the pane stays usable", async () => {
+    const page = await openFitted(330);
+    // 20 folds x 30 penalties = 600 fits: seconds of work, run in the background worker.
+    await page.fill("#osm-cv-folds", "20");
+    await page.fill("#osm-cv-count", "30");
+    await page.click("#osm-cv-run");
+    await page.waitForFunction(() => /^Cross-validation: \d+ of \d+ fits/.test(document.querySelector("#osm-cv-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+    expect(await page.isVisible("#osm-cv-progress")).toBe(true);
+    expect(await page.isVisible("#osm-cv-cancel")).toBe(true);
+    saveArtifact("evaluation-path-progress-330.png", await page.locator("#osm-cv").screenshot());
+    await page.click("#osm-cv-cancel");
+    await page.waitForFunction(() => /cancelled/.test(document.querySelector("#osm-cv-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+    // Still usable: a small path runs to the end afterwards.
+    await page.fill("#osm-cv-folds", "5");
+    await page.fill("#osm-cv-count", "4");
+    await page.click("#osm-cv-run");
+    await page.waitForFunction(() => /^Done in/.test(document.querySelector("#osm-cv-status")?.textContent ?? ""), null, { timeout: FIT_WAIT_MS });
+    expect(await page.$$eval("#osm-cv-chart .osm-path-bar", (b) => b.length)).toBe(4);
     await page.close();
   });
 
