@@ -53,6 +53,8 @@ export { tableBasisColumns } from "./evaluation/foldPredictors";
 export type { FoldSummary } from "./evaluation/foldSummary";
 export type { HeldOutScores } from "./evaluation/heldOutScores";
 export { choosePenalty } from "./evaluation/penaltyChoice";
+export { DEFAULT_HOLDOUT_SHARE, holdOut, readMarks, seededRoles } from "./evaluation/holdOut";
+export type { HoldOutRequest, HoldOutResult, SideScores } from "./evaluation/holdOut";
 export { givenPenalties, logSpacedPenalties, MAX_PENALTIES } from "./evaluation/penaltyGrid";
 export { MAX_FOLDS, MIN_FOLDS } from "./evaluation/stratifiedFolds";
 export { EFFECTS_WORK_LIMIT, averageMarginalEffects } from "./evaluation/marginalEffects";

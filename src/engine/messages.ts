@@ -509,6 +509,11 @@ export const ENGINE_MESSAGES = {
     template:
       "The class \"{label}\" occurs in {count} held-out {count|row|rows} (for example row {row}) but in no training row, so the model cannot give it a probability. Move some of its rows into training.",
   },
+  HOLDOUT_FIT_FAILED: {
+    cellError: "#VALUE!",
+    title: "No usable fit on the training rows",
+    template: "The fit on the {count} training rows gave no usable model: {reason}",
+  },
   // ---- marginal effects ------------------------------------------------------------------------
   EFFECTS_TWO_CLASSES_ONLY: {
     cellError: "#VALUE!",

@@ -107,8 +107,16 @@ export const OPT_HOLDOUT = {
   help: "Share of the rows held out by a seeded split stratified by class, e.g. holdout=0.3 (used when no split column is given; default 0.3).",
 } as const satisfies NumberSpec;
 
+export const OPT_HOLDOUT_SHOW = {
+  name: "show",
+  type: "choice",
+  choices: ["scores", "held-out", "probabilities", "split"],
+  default: "scores",
+  help: "What to spill: scores (training and held-out side by side), held-out (the held-out rows' probabilities, aligned with the rows), probabilities (every row's, from the training fit) or split (each row's role).",
+} as const satisfies ChoiceSpec;
+
 export const FOLDS_OPTIONS = [...MODEL_OPTIONS, OPT_FOLDS, OPT_SEED, OPT_PENALTIES, OPT_STEPS, OPT_SHOW, OPT_PICK, OPT_RECIPE] as const;
-export const HOLDOUT_OPTIONS = [...MODEL_OPTIONS, OPT_HOLDOUT, OPT_SEED, OPT_RECIPE] as const;
+export const HOLDOUT_OPTIONS = [...MODEL_OPTIONS, OPT_HOLDOUT, OPT_SEED, OPT_HOLDOUT_SHOW, OPT_RECIPE] as const;
 
 /** Default number of log-spaced penalties. */
 export const DEFAULT_STEPS = 10;

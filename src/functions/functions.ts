@@ -232,6 +232,22 @@ export function folds(labels: any[][], predictors: any[][], options?: any[][]): 
   return runCell(F.FOLDS.doing, () => F.FOLDS.adapter(labels, predictors, options ?? null));
 }
 
+// ---- Held-out check (issue 13) ----
+
+/**
+ * Fits the model ODDS.FIT would fit on the training rows only (marked in a split column, or a seeded split stratified by class) and spills log-loss, Brier score, AUC, accuracy, calibration and counts on the held-out rows beside the training rows; or the held-out probabilities, or each row's role.
+ * @customfunction HOLDOUT HOLDOUT
+ * @helpurl https://localhost:3000/help.html#holdout
+ * @param labels Label column: one class per row, with or without a header.
+ * @param predictors Predictor columns, one row per label; text levels, scales and basis columns are learned from the training rows only.
+ * @param [split] Split column, one cell per row: TRUE or 1 for a training row, FALSE or 0 for a held-out row, blank to leave the row out. Leave out for a seeded split (option holdout).
+ * @param [options] Settings as text "name=value; ..." or a two-column range, e.g. "holdout=0.3; seed=7" or "show=held-out".
+ * @returns Scores of the training and held-out rows side by side, or per-row probabilities or roles.
+ */
+export function holdout(labels: any[][], predictors: any[][], split?: any[][], options?: any[][]): any[][] {
+  return runCell(F.HOLDOUT.doing, () => F.HOLDOUT.adapter(labels, predictors, split ?? null, options ?? null));
+}
+
 // ---- Group comparison (issue 13) ----
 
 /**

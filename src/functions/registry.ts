@@ -19,6 +19,7 @@ import { logLossCell } from "./logLossCell";
 import { aucCell } from "./aucCell";
 import { cutoffCell } from "./cutoffCell";
 import { foldsCell } from "./foldsCell";
+import { holdoutCell } from "./holdoutCell";
 import { effectsCell } from "./effectsCell";
 import { groupsCell } from "./groupsCell";
 import { confusionCell } from "./confusionCell";
@@ -108,6 +109,9 @@ export const CELL_FUNCTIONS: readonly CellFunctionSpec[] = [
   ),
   spec("FOLDS", "cross-validating the model", [req("labels"), req("predictors"), opt("options")], (l, p, o) =>
     foldsCell(l, p, o ?? null),
+  ),
+  spec("HOLDOUT", "checking the model on held-out rows", [req("labels"), req("predictors"), opt("split"), opt("options")], (l, p, sp, o) =>
+    holdoutCell(l, p, sp ?? null, o ?? null),
   ),
   spec("GROUPS", "comparing groups", [req("labels"), req("probabilities_or_predictors"), req("group"), opt("options")], (l, p, g, o) =>
     groupsCell(l, p, g, o ?? null),

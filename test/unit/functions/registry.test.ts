@@ -24,7 +24,7 @@ describe("cell-function registry", () => {
 
   test("lists every cell function, each with its required parameters before its optional ones", () => {
     expect(CELL_FUNCTIONS.map((f) => f.name)).toEqual([
-      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS", "FORMULAS", "KEPT", "FOLDS", "GROUPS",
+      "FIT", "PROB", "CLASS", "MARGIN", "REPORT", "LOGLOSS", "AUC", "CONFUSION", "CALIBRATION", "SCORE", "BASIS", "CUTOFF", "EFFECTS", "FORMULAS", "KEPT", "FOLDS", "HOLDOUT", "GROUPS",
     ]);
     for (const f of CELL_FUNCTIONS) {
       const firstOptional = f.parameters.findIndex((p) => p.optional);
